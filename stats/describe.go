@@ -53,6 +53,34 @@ func checkFinite(x []float64) error {
 // The second term corrects the rounding error left in the first-pass mean.
 // For n < 2 the variance is NaN.
 func meanVar(x []float64) (mean, variance float64) {
+	return meanVarRaw(x)
+}
+
+// meanSD returns the mean and sample SD of x (corrected two-pass, as in
+// meanVar). If the sums overflow, the data are scaled by their largest
+// magnitude and the results scaled back; the SD is +Inf only when it is
+// not representable.
+func meanSD(x []float64) (mean, sd float64) {
+	m, v := meanVarRaw(x)
+	if len(x) == 0 || (!math.IsNaN(m) && !math.IsInf(m, 0) && !math.IsInf(v, 0)) {
+		return m, math.Sqrt(v)
+	}
+	var amax float64
+	for _, v := range x {
+		amax = math.Max(amax, math.Abs(v))
+	}
+	if amax == 0 || math.IsInf(amax, 0) || math.IsNaN(amax) {
+		return m, math.Sqrt(v)
+	}
+	y := make([]float64, len(x))
+	for i, v := range x {
+		y[i] = v / amax
+	}
+	m, v = meanVarRaw(y)
+	return m * amax, math.Sqrt(v) * amax
+}
+
+func meanVarRaw(x []float64) (mean, variance float64) {
 	n := float64(len(x))
 	var s float64
 	for _, v := range x {
@@ -110,12 +138,12 @@ func Describe(x []float64) (Summary, error) {
 	if err := checkFinite(x); err != nil {
 		return Summary{}, fmt.Errorf("describe: %w", err)
 	}
-	m, v := meanVar(x)
-	if math.IsInf(v, 0) || math.IsInf(m, 0) {
+	m, sd := meanSD(x)
+	if math.IsInf(sd, 0) || math.IsInf(m, 0) || math.IsNaN(m) || math.IsNaN(sd) {
 		return Summary{}, fmt.Errorf("describe: values too large, sums overflow: %w", ErrNonFinite)
 	}
 	s := sortedCopy(x)
-	out := Summary{N: len(x), Mean: m, SD: math.Sqrt(v), Min: s[0], Max: s[len(s)-1], Median: medianSorted(s)}
+	out := Summary{N: len(x), Mean: m, SD: sd, Min: s[0], Max: s[len(s)-1], Median: medianSorted(s)}
 	if out.SD == 0 {
 		out.Warnings = append(out.Warnings, "all values are equal: SD is 0")
 	}

@@ -26,14 +26,14 @@ func FitNormal(x []float64) (NormalFit, error) {
 	if err := checkFinite(x); err != nil {
 		return NormalFit{}, fmt.Errorf("normal fit: %w", err)
 	}
-	m, v := meanVar(x)
-	if math.IsInf(v, 0) || math.IsNaN(v) || math.IsInf(m, 0) {
+	m, sd := meanSD(x)
+	if math.IsInf(sd, 0) || math.IsNaN(sd) || math.IsInf(m, 0) || math.IsNaN(m) {
 		return NormalFit{}, fmt.Errorf("normal fit: values too large, sums overflow: %w", ErrNonFinite)
 	}
-	if v == 0 {
+	if sd == 0 {
 		return NormalFit{}, fmt.Errorf("normal fit: all values equal: %w", ErrZeroSpread)
 	}
-	return NormalFit{Mu: m, Sigma: math.Sqrt(v)}, nil
+	return NormalFit{Mu: m, Sigma: sd}, nil
 }
 
 // LognormalFit holds the parameters of a lognormal distribution: the mean
