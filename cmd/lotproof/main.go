@@ -1,0 +1,17 @@
+// Command lotproof judges incoming metal heats and composite batches
+// against their purchase specifications, derives A- and B-basis design
+// values from test campaigns and trends supplier quality.
+package main
+
+import (
+	"os"
+
+	"golang.org/x/term"
+)
+
+func main() {
+	st := streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
+		OutTerminal: term.IsTerminal(int(os.Stdout.Fd())),
+		ErrTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
+	os.Exit(execute(os.Args[1:], st))
+}

@@ -1,0 +1,75 @@
+package main
+
+import (
+	"io"
+	"strconv"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/render"
+)
+
+type summaryOptions struct {
+	Data  string
+	Input inputOptions
+	Out   output
+}
+
+func newSummaryCmd(g *globalOptions, st streams) *cobra.Command {
+	var o summaryOptions
+	cmd := &cobra.Command{
+		Use:   "summary DATA",
+		Short: "Describe every lot: count, mean, SD, minimum and maximum per property",
+		Long: `summary reads a specimen results file (CSV, .xlsx, or - for standard input)
+and prints, for every lot (or heat) and property, the number of values, the
+number missing, the mean, the sample standard deviation, the minimum and the
+maximum.`,
+		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			o.Data = args[0]
+			return runSummary(o, st)
+		},
+	}
+	addInputFlags(cmd, &o.Input)
+	return cmd
+}
+
+func addInputFlags(cmd *cobra.Command, in *inputOptions) {
+	cmd.Flags().StringVar(&in.Sheet, "sheet", "", "sheet of an .xlsx workbook (default: the first)")
+	cmd.Flags().StringVar(&in.GroupBy, "group-by", "lot", "group specimens by lot or heat")
+}
+
+func runSummary(o summaryOptions, st streams) error {
+	d, by, err := readData(o.Data, o.Input, st)
+	if err != nil {
+		return err
+	}
+	groups, err := d.Group(by, nil)
+	if err != nil {
+		return err
+	}
+	sum := lots.Summarize(d, groups, o.Out.System)
+	return emit(st.Out, func(w io.Writer) error {
+		if o.Out.Format == render.JSON {
+			return render.WriteJSON(w, sum)
+		}
+		return writeTables(w, o.Out.Format, summaryTable(string(by), sum))
+	})
+}
+
+// summaryTable lays a summary out as one row per group and property.
+func summaryTable(by string, sum []lots.GroupSummary) *render.Table {
+	t := render.NewTable("", by, "supplier", "property", "unit", ">n", ">missing", ">mean", ">sd", ">min", ">max")
+	for _, g := range sum {
+		for _, p := range g.Properties {
+			t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
+				render.Num(float64(p.Mean), 4), render.Num(float64(p.SD), 3), render.Num(float64(p.Min), 4), render.Num(float64(p.Max), 4))
+		}
+	}
+	return t
+}

@@ -1,0 +1,416 @@
+package lots
+
+import (
+	"bufio"
+	"bytes"
+	"crypto/sha256"
+	"encoding/csv"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"hash"
+	"hash/maphash"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"lotproof/lots/units"
+)
+
+// Header describes the columns of a specimen results table.
+type Header struct {
+	Properties []Property
+	idCol      int
+	lotCol     int
+	heatCol    int
+	suppCol    int
+	matCol     int
+	testedCol  int
+	condCol    int
+	propCols   []int // column of each property
+	width      int
+}
+
+// The identity columns, by their heading.
+var identityColumns = []string{"specimen", "lot", "heat", "supplier", "material", "tested", "condition"}
+
+// locator names the place of a field in the input, for error messages.
+type locator interface {
+	at(field int) string
+}
+
+// table turns rows of strings into validated specimens. It is shared by the
+// CSV and xlsx readers so both check the same things with the same words.
+type table struct {
+	name     string
+	header   *Header
+	problems problems
+	seen     map[uint64]int // hash of specimen id -> line first seen
+	seed     maphash.Seed
+	rows     int
+}
+
+func newTable(name string) *table {
+	return &table{name: name, seen: map[uint64]int{}, seed: maphash.MakeSeed()}
+}
+
+// parseHeader reads the heading row. It returns false when the header is
+// unusable (no rows can be read against it).
+func (t *table) parseHeader(fields []string, loc locator) bool {
+	h := &Header{idCol: -1, lotCol: -1, heatCol: -1, suppCol: -1, matCol: -1, testedCol: -1, condCol: -1, width: len(fields)}
+	names := map[string]int{}
+	ok := true
+	for i, raw := range fields {
+		f := strings.TrimSpace(raw)
+		if i == 0 {
+			f = strings.TrimPrefix(f, "\uFEFF")
+		}
+		if f == "" {
+			t.problems.add(loc.at(i), fmt.Sprintf("column %d has no heading", i+1), "give every column a heading, or delete the empty column")
+			ok = false
+			continue
+		}
+		name, unit, hasUnit := splitHeading(f)
+		key := strings.ToLower(name)
+		if prev, dup := names[key]; dup {
+			t.problems.add(loc.at(i), fmt.Sprintf("column %q appears twice (first as column %d)", name, prev+1), "keep one of the two columns")
+			ok = false
+			continue
+		}
+		names[key] = i
+		if col := identityIndex(key); col >= 0 && !hasUnit {
+			switch col {
+			case 0:
+				h.idCol = i
+			case 1:
+				h.lotCol = i
+			case 2:
+				h.heatCol = i
+			case 3:
+				h.suppCol = i
+			case 4:
+				h.matCol = i
+			case 5:
+				h.testedCol = i
+			case 6:
+				h.condCol = i
+			}
+			continue
+		}
+		if !hasUnit {
+			t.problems.add(loc.at(i), fmt.Sprintf("property column %q has no unit", name),
+				fmt.Sprintf("write the unit in square brackets, e.g. %q, or %q for a plain number", name+" [MPa]", name+" [1]"))
+			ok = false
+			continue
+		}
+		u, err := units.Parse(unit)
+		if err != nil {
+			t.problems.add(loc.at(i), fmt.Sprintf("column %q has unknown unit %q", name, unit),
+				"use one of: "+strings.Join(units.Symbols(), ", "))
+			ok = false
+			continue
+		}
+		h.Properties = append(h.Properties, Property{Name: name, Unit: u})
+		h.propCols = append(h.propCols, i)
+	}
+	if h.idCol < 0 {
+		t.problems.add(loc.at(0), "required column \"specimen\" is missing", "add a column headed specimen with a unique id for every row")
+		ok = false
+	}
+	if h.lotCol < 0 {
+		t.problems.add(loc.at(0), "required column \"lot\" is missing", "add a column headed lot naming each specimen's lot")
+		ok = false
+	}
+	if ok && len(h.Properties) == 0 {
+		t.problems.add(loc.at(0), "no property columns", "add at least one property column with its unit, e.g. \"tensile [MPa]\"")
+		ok = false
+	}
+	t.header = h
+	return ok
+}
+
+// splitHeading splits "tensile [MPa]" into ("tensile", "MPa", true).
+func splitHeading(f string) (name, unit string, hasUnit bool) {
+	if strings.HasSuffix(f, "]") {
+		if i := strings.LastIndexByte(f, '['); i >= 0 {
+			return strings.TrimSpace(f[:i]), strings.TrimSpace(f[i+1 : len(f)-1]), true
+		}
+	}
+	return f, "", false
+}
+
+func identityIndex(key string) int {
+	for i, c := range identityColumns {
+		if c == key {
+			return i
+		}
+	}
+	return -1
+}
+
+// parseRow validates one data row into s (whose Values slice is reused).
+// It returns false when the row has a problem.
+func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bool {
+	h := t.header
+	t.rows++
+	if len(fields) != h.width {
+		last := len(fields) - 1
+		if last < 0 {
+			last = 0
+		}
+		t.problems.add(loc.at(last), fmt.Sprintf("row has %d fields, the header has %d", len(fields), h.width),
+			"give every row as many fields as the header (an empty field is a missing value)")
+		return false
+	}
+	ok := true
+	get := func(col int) string {
+		if col < 0 {
+			return ""
+		}
+		return strings.TrimSpace(fields[col])
+	}
+	s.ID = get(h.idCol)
+	s.Lot = get(h.lotCol)
+	s.Heat = get(h.heatCol)
+	s.Supplier = get(h.suppCol)
+	s.Material = get(h.matCol)
+	s.Tested = get(h.testedCol)
+	s.Condition = get(h.condCol)
+	s.Line = line
+	if s.ID == "" {
+		t.problems.add(loc.at(h.idCol), "specimen id is empty", "give every specimen a unique id")
+		ok = false
+	} else {
+		k := maphash.String(t.seed, s.ID)
+		if first, dup := t.seen[k]; dup {
+			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %q (first on line %d)", s.ID, first),
+				"specimen ids must be unique; rename or remove one of them")
+			ok = false
+		} else {
+			t.seen[k] = line
+		}
+	}
+	if s.Lot == "" {
+		t.problems.add(loc.at(h.lotCol), "lot is empty", "name the lot of every specimen")
+		ok = false
+	}
+	if s.Tested != "" {
+		if _, err := time.Parse("2006-01-02", s.Tested); err != nil {
+			t.problems.add(loc.at(h.testedCol), fmt.Sprintf("tested date %q is not an ISO 8601 date", s.Tested), "write dates as YYYY-MM-DD, e.g. 2026-03-31")
+			ok = false
+		}
+	}
+	for i, col := range h.propCols {
+		p := h.Properties[i]
+		raw := strings.TrimSpace(fields[col])
+		if raw == "" {
+			s.Values[i] = math.NaN()
+			continue
+		}
+		v, err := strconv.ParseFloat(raw, 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			what := fmt.Sprintf("%s: %q is not a number", p.Name, raw)
+			if err == nil || errors.Is(err, strconv.ErrRange) {
+				what = fmt.Sprintf("%s: %q is not a finite number", p.Name, raw)
+			}
+			t.problems.add(loc.at(col), what, "write a decimal number such as 1034.5, or leave the cell empty for a missing value")
+			ok = false
+			continue
+		}
+		v = p.Unit.ToInternal(v)
+		if msg := units.CheckValue(p.Unit.Quantity, v); msg != "" {
+			t.problems.add(loc.at(col), fmt.Sprintf("%s: %s is impossible (%s)", p.Name, raw, msg), "check the value and its unit")
+			ok = false
+			continue
+		}
+		s.Values[i] = v
+	}
+	return ok
+}
+
+// ScanCSV reads a specimen results CSV from r as a stream, calling fn with
+// every valid specimen in file order; the specimen and its Values are
+// reused after fn returns, so fn copies what it keeps. Memory use does not
+// grow with the file except for the duplicate-id index (a 64-bit hash and
+// a line number per specimen). When any row is bad, ScanCSV still reads to
+// the end to report every problem (up to MaxProblems) and returns an
+// *InputError: a caller that wrote anything from fn must discard it.
+func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Header, error) {
+	t := newTable(name)
+	br := bufio.NewReaderSize(r, 1<<16)
+	// A UTF-8 byte order mark is not part of the first heading.
+	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte("\xEF\xBB\xBF")) {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.FieldsPerRecord = -1
+	cr.ReuseRecord = true
+	loc := csvLocator{name: name, r: cr}
+	fields, err := cr.Read()
+	if err == io.EOF {
+		return nil, Inputf(name+":1:1", "write a header row such as \"specimen,lot,tensile [MPa]\" and one row per specimen", "the file is empty")
+	}
+	if err != nil {
+		return nil, csvError(name, err)
+	}
+	if !t.parseHeader(fields, loc) {
+		return nil, t.problems.err()
+	}
+	h := t.header
+	s := Specimen{Values: make([]float64, len(h.Properties))}
+	for {
+		fields, err = cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.problems.add(csvWhere(name, err), csvWhat(err), "fix the quoting: a field with a comma, quote or line break is enclosed in double quotes, and a quote inside it is doubled")
+			var pe *csv.ParseError
+			if errors.As(err, &pe) && (errors.Is(pe.Err, csv.ErrQuote) || errors.Is(pe.Err, csv.ErrBareQuote)) {
+				break // the rest of the file cannot be trusted to line up
+			}
+			continue
+		}
+		line, _ := cr.FieldPos(0)
+		if len(fields) == 1 && strings.TrimSpace(fields[0]) == "" && h.width > 1 {
+			continue // a blank line
+		}
+		if !t.parseRow(fields, line, loc, &s) || t.problems.any() {
+			continue
+		}
+		if fn != nil {
+			if err := fn(h, &s); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if t.rows == 0 && !t.problems.any() {
+		line, _ := cr.FieldPos(0)
+		return nil, Inputf(fmt.Sprintf("%s:%d:1", name, line+1), "add one row per specimen below the header", "the file has a header but no specimen rows")
+	}
+	return h, t.problems.err()
+}
+
+type csvLocator struct {
+	name string
+	r    *csv.Reader
+}
+
+func (l csvLocator) at(field int) string {
+	line, col := l.r.FieldPos(field)
+	return fmt.Sprintf("%s:%d:%d", l.name, line, col)
+}
+
+func csvWhere(name string, err error) string {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return fmt.Sprintf("%s:%d:%d", name, pe.Line, pe.Column)
+	}
+	return name
+}
+
+func csvWhat(err error) string {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return "cannot read the CSV: " + pe.Err.Error()
+	}
+	return "cannot read the CSV: " + err.Error()
+}
+
+func csvError(name string, err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return Inputf(csvWhere(name, err), "fix the quoting: a field with a comma, quote or line break is enclosed in double quotes", "%s", csvWhat(err))
+	}
+	return fmt.Errorf("%s: %w", name, err)
+}
+
+// ReadCSV reads a whole specimen results CSV into a Dataset, with the
+// SHA-256 of the bytes read.
+func ReadCSV(r io.Reader, name string) (*Dataset, error) {
+	sum := sha256.New()
+	cnt := &countingReader{r: io.TeeReader(r, sum)}
+	d := &Dataset{Source: name}
+	var backing []float64
+	h, err := ScanCSV(cnt, name, func(h *Header, s *Specimen) error {
+		np := len(h.Properties)
+		if len(backing) < np {
+			backing = make([]float64, np*1024)
+		}
+		c := *s
+		c.Values, backing = backing[:np:np], backing[np:]
+		copy(c.Values, s.Values)
+		d.Specimens = append(d.Specimens, c)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	io.Copy(io.Discard, cnt) // digest covers the whole input
+	finish(d, h, sum, cnt.n)
+	return d, nil
+}
+
+func finish(d *Dataset, h *Header, sum hash.Hash, n int64) {
+	d.Properties = h.Properties
+	d.Digest = hex.EncodeToString(sum.Sum(nil))
+	d.Bytes = n
+	d.Missing = make([]int, len(h.Properties))
+	for i := range d.Specimens {
+		for j, v := range d.Specimens[i].Values {
+			if math.IsNaN(v) {
+				d.Missing[j]++
+			}
+		}
+	}
+}
+
+type countingReader struct {
+	r io.Reader
+	n int64
+}
+
+func (c *countingReader) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	c.n += int64(n)
+	return n, err
+}
+
+// ReadOptions select how a results file is read.
+type ReadOptions struct {
+	Sheet string    // xlsx: the sheet to read (default: the first)
+	Stdin io.Reader // what "-" reads (default os.Stdin)
+}
+
+// ReadFile reads a specimen results file by name: "-" is standard input
+// (CSV), a name ending in .xlsx is an Excel workbook, anything else CSV.
+func ReadFile(name string, opt ReadOptions) (*Dataset, error) {
+	if name == "-" {
+		in := opt.Stdin
+		if in == nil {
+			in = os.Stdin
+		}
+		return ReadCSV(in, "-")
+	}
+	if strings.EqualFold(filepath.Ext(name), ".xlsx") {
+		return ReadXLSX(name, opt.Sheet)
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, Inputf(name, "check the path", "cannot open the results file: %v", unwrapPath(err))
+	}
+	defer f.Close()
+	return ReadCSV(f, name)
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}

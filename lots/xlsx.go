@@ -1,0 +1,119 @@
+package lots
+
+import (
+	"crypto/sha256"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+)
+
+type xlsxLocator struct {
+	name, sheet string
+	row         int // 1-based
+}
+
+func (l xlsxLocator) at(field int) string {
+	cell, err := excelize.CoordinatesToCellName(field+1, l.row)
+	if err != nil {
+		cell = fmt.Sprintf("R%dC%d", l.row, field+1)
+	}
+	return fmt.Sprintf("%s:%s!%s", l.name, l.sheet, cell)
+}
+
+// ReadXLSX reads a specimen results table from the first sheet of an
+// Excel workbook, or from the named sheet. Problems are located as
+// file:sheet!cell. Cells are read as displayed text and parsed as in CSV;
+// trailing empty cells of a row count as missing values.
+func ReadXLSX(name, sheet string) (*Dataset, error) {
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, Inputf(name, "check the path", "cannot open the workbook: %v", unwrapPath(err))
+	}
+	defer f.Close()
+	sum := sha256.New()
+	cnt := &countingReader{r: io.TeeReader(f, sum)}
+	book, err := excelize.OpenReader(cnt)
+	if err != nil {
+		return nil, Inputf(name, "save the workbook as .xlsx (Excel 2007 or later) and try again", "cannot read the workbook: %v", err)
+	}
+	defer book.Close()
+	io.Copy(io.Discard, cnt)
+	sheets := book.GetSheetList()
+	if sheet == "" {
+		if len(sheets) == 0 {
+			return nil, Inputf(name, "add a sheet with the specimen table", "the workbook has no sheets")
+		}
+		sheet = sheets[0]
+	} else {
+		found := false
+		for _, s := range sheets {
+			if s == sheet {
+				found = true
+			}
+		}
+		if !found {
+			return nil, Inputf(name, "use --sheet with one of: "+strings.Join(sheets, ", "), "the workbook has no sheet %q", sheet)
+		}
+	}
+	rows, err := book.Rows(sheet)
+	if err != nil {
+		return nil, Inputf(name+":"+sheet, "", "cannot read sheet %q: %v", sheet, err)
+	}
+	defer rows.Close()
+	t := newTable(name)
+	d := &Dataset{Source: name}
+	var h *Header
+	row := 0
+	for rows.Next() {
+		row++
+		cols, err := rows.Columns(excelize.Options{RawCellValue: true})
+		if err != nil {
+			return nil, Inputf(fmt.Sprintf("%s:%s!A%d", name, sheet, row), "", "cannot read row %d: %v", row, err)
+		}
+		loc := xlsxLocator{name: name, sheet: sheet, row: row}
+		if h == nil {
+			if isBlank(cols) {
+				continue
+			}
+			if !t.parseHeader(cols, loc) {
+				return nil, t.problems.err()
+			}
+			h = t.header
+			continue
+		}
+		if isBlank(cols) {
+			continue
+		}
+		// Excel leaves out trailing empty cells; they are missing values.
+		for len(cols) < h.width {
+			cols = append(cols, "")
+		}
+		s := Specimen{Values: make([]float64, len(h.Properties))}
+		if t.parseRow(cols, row, loc, &s) {
+			d.Specimens = append(d.Specimens, s)
+		}
+	}
+	if h == nil {
+		return nil, Inputf(fmt.Sprintf("%s:%s!A1", name, sheet), "write a header row such as specimen, lot, tensile [MPa] and one row per specimen", "the sheet is empty")
+	}
+	if err := t.problems.err(); err != nil {
+		return nil, err
+	}
+	if len(d.Specimens) == 0 {
+		return nil, Inputf(fmt.Sprintf("%s:%s!A%d", name, sheet, row+1), "add one row per specimen below the header", "the sheet has a header but no specimen rows")
+	}
+	finish(d, h, sum, cnt.n)
+	return d, nil
+}
+
+func isBlank(cols []string) bool {
+	for _, c := range cols {
+		if strings.TrimSpace(c) != "" {
+			return false
+		}
+	}
+	return true
+}
