@@ -1,0 +1,113 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// run executes a command line with captured streams.
+func run(t *testing.T, stdin string, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = execute(args, streams{In: strings.NewReader(stdin), Out: &out, Err: &errb})
+	return code, out.String(), errb.String()
+}
+
+func writeFile(t *testing.T, name, content string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+func TestSummaryCSVFromStdin(t *testing.T) {
+	in := "specimen,lot,supplier,tensile [ksi]\nA,L1,M,150\nB,L1,M,152\nC,L2,M,149\n"
+	code, out, errs := run(t, in, "summary", "-", "--format", "csv", "--units", "us")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	want := "lot,supplier,property,unit,n,missing,mean,sd,min,max\n" +
+		"L1,M,tensile,ksi,2,0,151.0,1.41,150.0,152.0\n" +
+		"L2,M,tensile,ksi,1,0,149.0,-,149.0,149.0\n"
+	if out != want {
+		t.Errorf("got\n%s\nwant\n%s", out, want)
+	}
+}
+
+func TestSummaryJSONNullForMissingSD(t *testing.T) {
+	in := "specimen,lot,tensile [MPa]\nA,L1,1000\n"
+	code, out, _ := run(t, in, "summary", "-", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	var got []map[string]any
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	p := got[0]["properties"].([]any)[0].(map[string]any)
+	if p["sd"] != nil || p["mean"].(float64) != 1000 {
+		t.Errorf("got %v", p)
+	}
+}
+
+// Bad input: exit status 2, the located message on stderr, nothing on stdout.
+func TestBadInputExitsTwoAndWritesNothing(t *testing.T) {
+	p := writeFile(t, "bad.csv", "specimen,lot,tensile [MPa]\nA,L1,1000\nB,L1,abc\n")
+	code, out, errs := run(t, "", "summary", p, "--format", "table")
+	if code != 2 || out != "" {
+		t.Fatalf("exit %d, stdout %q", code, out)
+	}
+	want := "lotproof: " + p + `:3:6: tensile: "abc" is not a number; write a decimal number such as 1034.5, or leave the cell empty for a missing value` + "\n"
+	if errs != want {
+		t.Errorf("stderr\n got %q\nwant %q", errs, want)
+	}
+	for _, args := range [][]string{
+		{"summary"},
+		{"summary", p, "--format", "xml"},
+		{"summary", p, "--units", "imperial"},
+		{"summary", p, "--group-by", "batch"},
+		{"summary", filepath.Join(t.TempDir(), "none.csv")},
+		{"summary", p, "--no-such-flag"},
+	} {
+		if code, out, _ := run(t, "", args...); code != 2 || out != "" {
+			t.Errorf("%v: exit %d, stdout %q", args, code, out)
+		}
+	}
+}
+
+func TestDemoSummary(t *testing.T) {
+	code, out, errs := run(t, "", "demo", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var res struct {
+		Receipts []struct {
+			Lot       string `json:"lot"`
+			Specimens int    `json:"specimens"`
+		} `json:"receipts"`
+	}
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Receipts) != 64 {
+		t.Errorf("demo receipts: %d lots, want 64", len(res.Receipts))
+	}
+	for _, l := range res.Receipts {
+		if l.Specimens != 5 {
+			t.Errorf("lot %s has %d specimens", l.Lot, l.Specimens)
+		}
+	}
+}
+
+func TestVersion(t *testing.T) {
+	code, out, _ := run(t, "", "version")
+	if code != 0 || !strings.HasPrefix(out, "lotproof 0.") {
+		t.Errorf("exit %d, %q", code, out)
+	}
+}

@@ -1,0 +1,163 @@
+package lots
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+// The bad-input cases of the specimen results format, each with the exact
+// message a user sees (file:line:column, what was expected, what to do).
+func TestReadCSVBadInput(t *testing.T) {
+	cases := []struct {
+		name, in, want string
+	}{
+		{"missing required column", "specimen,tensile [MPa]\nS1,1000\n",
+			`r.csv:1:1: required column "lot" is missing; add a column headed lot naming each specimen's lot`},
+		{"duplicate specimen id", "specimen,lot,tensile [MPa]\nS1,L1,1000\nS2,L1,1001\nS1,L1,1002\n",
+			`r.csv:4:1: duplicate specimen id "S1" (first on line 2); specimen ids must be unique; rename or remove one of them`},
+		{"non-numeric value", "specimen,lot,tensile [MPa]\nS1,L1,10O0\n",
+			`r.csv:2:7: tensile: "10O0" is not a number; write a decimal number such as 1034.5, or leave the cell empty for a missing value`},
+		{"NaN", "specimen,lot,tensile [MPa]\nS1,L1,NaN\n",
+			`r.csv:2:7: tensile: "NaN" is not a finite number; write a decimal number such as 1034.5, or leave the cell empty for a missing value`},
+		{"Inf", "specimen,lot,tensile [MPa]\nS1,L1,-Inf\n",
+			`r.csv:2:7: tensile: "-Inf" is not a finite number; write a decimal number such as 1034.5, or leave the cell empty for a missing value`},
+		{"overflow", "specimen,lot,tensile [MPa]\nS1,L1,1e999\n",
+			`r.csv:2:7: tensile: "1e999" is not a finite number; write a decimal number such as 1034.5, or leave the cell empty for a missing value`},
+		{"unknown unit", "specimen,lot,tensile [MPA2]\nS1,L1,1000\n",
+			`r.csv:1:14: column "tensile" has unknown unit "MPA2"; use one of: ` + strings.Join(unitsList(), ", ")},
+		{"unit missing", "specimen,lot,tensile\nS1,L1,1000\n",
+			`r.csv:1:14: property column "tensile" has no unit; write the unit in square brackets, e.g. "tensile [MPa]", or "tensile [1]" for a plain number`},
+		{"negative strength", "specimen,lot,tensile [MPa]\nS1,L1,-980\n",
+			`r.csv:2:7: tensile: -980 is impossible (a stress must be positive); check the value and its unit`},
+		{"ragged row", "specimen,lot,tensile [MPa]\nS1,L1,1000,7\n",
+			`r.csv:2:12: row has 4 fields, the header has 3; give every row as many fields as the header (an empty field is a missing value)`},
+		{"empty file", "",
+			`r.csv:1:1: the file is empty; write a header row such as "specimen,lot,tensile [MPa]" and one row per specimen`},
+		{"header only", "specimen,lot,tensile [MPa]\n",
+			`r.csv:2:1: the file has a header but no specimen rows; add one row per specimen below the header`},
+		{"bad date", "specimen,lot,tested,tensile [MPa]\nS1,L1,31/03/2026,1000\n",
+			`r.csv:2:7: tested date "31/03/2026" is not an ISO 8601 date; write dates as YYYY-MM-DD, e.g. 2026-03-31`},
+		{"bare quote", "specimen,lot,tensile [MPa]\nS\"1,L1,1000\n",
+			`r.csv:2:2: cannot read the CSV: bare " in non-quoted-field; fix the quoting: a field with a comma, quote or line break is enclosed in double quotes, and a quote inside it is doubled`},
+		{"empty lot", "specimen,lot,tensile [MPa]\nS1,,1000\n",
+			`r.csv:2:4: lot is empty; name the lot of every specimen`},
+		{"duplicate column", "specimen,lot,tensile [MPa],Tensile [ksi]\nS1,L1,1000,145\n",
+			`r.csv:1:28: column "Tensile" appears twice (first as column 3); keep one of the two columns`},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			d, err := ReadCSV(strings.NewReader(c.in), "r.csv")
+			if d != nil {
+				t.Fatalf("got a dataset for bad input")
+			}
+			var ie *InputError
+			if !errors.As(err, &ie) {
+				t.Fatalf("want *InputError, got %T %v", err, err)
+			}
+			if got := err.Error(); got != c.want {
+				t.Errorf("message\n got: %s\nwant: %s", got, c.want)
+			}
+		})
+	}
+}
+
+func unitsList() []string {
+	return []string{"Pa", "kPa", "MPa", "GPa", "N/mm^2", "psi", "ksi", "Msi", "%", "mm/mm", "in/in", "J/m^3", "kJ/m^3", "MJ/m^3", "in-lbf/in^3", "J", "ft-lbf", "HBW", "HRC", "HRB", "HV", "1", "-"}
+}
+
+// All problems in a file are reported together, up to MaxProblems, then counted.
+func TestReadCSVCollectsProblems(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("specimen,lot,tensile [MPa]\n")
+	for i := 0; i < 30; i++ {
+		b.WriteString("S,L1,x\n")
+	}
+	_, err := ReadCSV(strings.NewReader(b.String()), "r.csv")
+	var ie *InputError
+	if !errors.As(err, &ie) {
+		t.Fatalf("want *InputError, got %v", err)
+	}
+	// 30 non-numbers and 29 duplicate ids: 59 problems, 20 listed.
+	if len(ie.Problems) != MaxProblems || ie.More != 59-MaxProblems {
+		t.Fatalf("listed %d, more %d; want %d and %d", len(ie.Problems), ie.More, MaxProblems, 59-MaxProblems)
+	}
+	if !strings.HasSuffix(err.Error(), "... and 39 more problems") {
+		t.Errorf("missing count line: %q", err.Error()[len(err.Error())-40:])
+	}
+}
+
+// A byte order mark, CRLF line ends, quoted fields with commas, missing
+// values and unit conversion (1 ksi = 6.894757293168361 MPa by the
+// definitions 1 lbf = 4.4482216152605 N, 1 in = 25.4 mm; NIST SP 811).
+func TestReadCSVGoodInput(t *testing.T) {
+	in := "\xEF\xBB\xBFspecimen,lot,heat,supplier,tested,condition,tensile [ksi],elongation [%],modulus [GPa]\r\n" +
+		"A-1,\"L, 1\",H1,\"Mill \"\"North\"\"\",2026-01-05,RT,150,12.5,200\r\n" +
+		"A-2,\"L, 1\",H1,\"Mill \"\"North\"\"\",2026-01-05,RT,151,,201\r\n"
+	d, err := ReadCSV(strings.NewReader(in), "ok.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.Specimens) != 2 || len(d.Properties) != 3 {
+		t.Fatalf("got %d specimens, %d properties", len(d.Specimens), len(d.Properties))
+	}
+	s := d.Specimens[0]
+	if s.ID != "A-1" || s.Lot != "L, 1" || s.Supplier != `Mill "North"` || s.Tested != "2026-01-05" || s.Condition != "RT" {
+		t.Errorf("identity read wrong: %+v", s)
+	}
+	if got, want := s.Values[0], 150*6.894757293168361; math.Abs(got-want) > 1e-12*want {
+		t.Errorf("150 ksi = %.15g MPa, want %.15g", got, want)
+	}
+	if got := s.Values[1]; math.Abs(got-0.125) > 1e-15 {
+		t.Errorf("12.5 %% = %g, want 0.125", got)
+	}
+	if got := s.Values[2]; got != 200000 {
+		t.Errorf("200 GPa = %g MPa, want 200000", got)
+	}
+	if !d.Specimens[1].Missing(1) || d.Missing[1] != 1 || d.Missing[0] != 0 {
+		t.Errorf("missing value not counted: %v", d.Missing)
+	}
+	if d.Digest == "" || d.Bytes != int64(len(in)) {
+		t.Errorf("digest %q bytes %d", d.Digest, d.Bytes)
+	}
+	if d.Properties[0].Name != "tensile" || d.Properties[0].Unit.Symbol != "ksi" {
+		t.Errorf("property %+v", d.Properties[0])
+	}
+}
+
+func TestGroupByHeat(t *testing.T) {
+	in := "specimen,lot,heat,tensile [MPa]\n1,L1,H1,900\n2,L2,H1,901\n3,L3,H2,902\n"
+	d, err := ReadCSV(strings.NewReader(in), "g.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	gs, err := d.Group(ByHeat, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(gs) != 2 || gs[0].Key != "H1" || len(gs[0].Specimens) != 2 || gs[1].Key != "H2" {
+		t.Errorf("heat groups %+v", gs)
+	}
+	gl, _ := d.Group(ByLot, nil)
+	if len(gl) != 3 {
+		t.Errorf("lot groups %d", len(gl))
+	}
+	d2, _ := ReadCSV(strings.NewReader("specimen,lot,heat,tensile [MPa]\n1,L1,,900\n"), "g.csv")
+	if _, err := d2.Group(ByHeat, nil); err == nil || err.Error() != `g.csv:2: specimen "1" has no heat, so specimens cannot be grouped by heat; fill the heat column or group by lot` {
+		t.Errorf("heat missing: %v", err)
+	}
+}
+
+// Calendar rules of the Gregorian calendar (ISO 8601), common knowledge.
+func TestIsDate(t *testing.T) {
+	for s, want := range map[string]bool{
+		"2026-03-31": true, "2024-02-29": true, "2000-02-29": true, "1900-02-29": false,
+		"2026-02-29": false, "2026-04-31": false, "2026-13-01": false, "2026-00-10": false,
+		"2026-1-01": false, "26-01-01xx": false, "2026/01/01": false, "2026-01-00": false,
+	} {
+		if got := isDate(s); got != want {
+			t.Errorf("isDate(%q) = %v, want %v", s, got, want)
+		}
+	}
+}

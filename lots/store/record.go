@@ -1,0 +1,402 @@
+package store
+
+import (
+	"context"
+	"database/sql"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"lotproof/lots"
+	"lotproof/lots/units"
+)
+
+// Verdict is the acceptance verdict of one lot against one specification.
+type Verdict struct {
+	Lot     string
+	Spec    string // specification id (and revision)
+	Verdict string // conforming, nonconforming, undecided, not judged
+}
+
+// SpecLimit is one property limit of a specification used in an import,
+// in the property's internal unit (Unit names it). NaN: no such limit.
+type SpecLimit struct {
+	Spec     string
+	Material string
+	Property string
+	Minimum  float64
+	Maximum  float64
+	Unit     string
+}
+
+// Meta describes an import: when and by whom. Time comes from the caller
+// (an injectable clock) so that results are reproducible.
+type Meta struct {
+	Time    time.Time
+	User    string
+	Version string // lotproof version that recorded it
+}
+
+// RecordResult says what an import changed.
+type RecordResult struct {
+	Digest          string `json:"digest"`
+	Source          string `json:"source"`
+	AlreadyRecorded bool   `json:"already_recorded"` // the same file (SHA-256) was recorded before: nothing changed
+	SpecimensNew    int    `json:"specimens_new"`
+	SpecimensSame   int    `json:"specimens_same"` // already stored with identical values
+	LotsNew         int    `json:"lots_new"`
+	Verdicts        int    `json:"verdicts"`
+	SpecLimits      int    `json:"spec_limits"`
+	ImportedAt      string `json:"imported_at"`
+	User            string `json:"user"`
+}
+
+// Conflict is a specimen (or lot, or property) already stored with
+// different values than the file gives.
+type Conflict struct {
+	Kind     string `json:"kind"` // specimen, lot or property
+	Key      string `json:"key"`
+	Field    string `json:"field"`
+	Stored   string `json:"stored"`
+	Incoming string `json:"incoming"`
+	Line     int    `json:"line,omitempty"` // line of the incoming file
+}
+
+func (c Conflict) String() string {
+	return fmt.Sprintf("%s %q: %s is %s in the database but %s in the file", c.Kind, c.Key, c.Field, c.Stored, c.Incoming)
+}
+
+// ConflictError reports conflicts found during an import; nothing of the
+// import was written.
+type ConflictError struct {
+	Source    string
+	Conflicts []Conflict // at most MaxConflicts
+	More      int        // conflicts beyond those listed
+}
+
+// MaxConflicts is how many conflicts an import lists before counting.
+const MaxConflicts = 20
+
+func (e *ConflictError) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s conflicts with the recorded history; nothing was written", e.Source)
+	for _, c := range e.Conflicts {
+		b.WriteString("\n  ")
+		if c.Line > 0 {
+			fmt.Fprintf(&b, "%s:%d: ", e.Source, c.Line)
+		}
+		b.WriteString(c.String())
+	}
+	if e.More > 0 {
+		fmt.Fprintf(&b, "\n  ... and %d more conflicts", e.More)
+	}
+	return b.String()
+}
+
+func (e *ConflictError) add(c Conflict) {
+	if len(e.Conflicts) < MaxConflicts {
+		e.Conflicts = append(e.Conflicts, c)
+	} else {
+		e.More++
+	}
+}
+
+// fmtValue writes a stored or incoming value for a conflict message.
+func fmtValue(v float64, present bool, unit string) string {
+	if !present || math.IsNaN(v) {
+		return "missing"
+	}
+	s := strconv.FormatFloat(v, 'g', -1, 64)
+	if unit != "" {
+		s += " " + unit
+	}
+	return s
+}
+
+// Record stores the dataset's specimens and lots, the verdicts and the
+// specification limits used, in one transaction. When the file's SHA-256
+// was recorded before, nothing changes and the result says so. A specimen
+// stored before with identical values is skipped; with different values it
+// is a conflict: Record returns a *ConflictError and writes nothing.
+func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
+	if d == nil {
+		return nil, fmt.Errorf("store: no dataset")
+	}
+	if len(d.Digest) != 64 {
+		return nil, fmt.Errorf("store: dataset %s has no SHA-256 digest", d.Source)
+	}
+	if meta.Time.IsZero() {
+		return nil, fmt.Errorf("store: import time not set")
+	}
+	if meta.User == "" {
+		meta.User = "unknown"
+	}
+	verdicts = dedupeVerdicts(verdicts)
+	limits = dedupeLimits(limits)
+	res := &RecordResult{}
+	err := s.inTx(ctx, func(tx *sql.Tx) error {
+		r, err := s.record(ctx, tx, d, verdicts, limits, meta)
+		if err == nil {
+			*res = *r
+		}
+		return err
+	})
+	if err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+func dedupeVerdicts(in []Verdict) []Verdict {
+	seen := map[[2]string]int{}
+	var out []Verdict
+	for _, v := range in {
+		k := [2]string{v.Lot, v.Spec}
+		if i, ok := seen[k]; ok {
+			out[i] = v
+			continue
+		}
+		seen[k] = len(out)
+		out = append(out, v)
+	}
+	return out
+}
+
+func dedupeLimits(in []SpecLimit) []SpecLimit {
+	seen := map[[3]string]int{}
+	var out []SpecLimit
+	for _, l := range in {
+		k := [3]string{l.Spec, l.Material, l.Property}
+		if i, ok := seen[k]; ok {
+			out[i] = l
+			continue
+		}
+		seen[k] = len(out)
+		out = append(out, l)
+	}
+	return out
+}
+
+func nullable(v float64) any {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return v
+}
+
+func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
+	res := &RecordResult{
+		Digest:     d.Digest,
+		Source:     d.Source,
+		ImportedAt: meta.Time.UTC().Format(time.RFC3339Nano),
+		User:       meta.User,
+	}
+	var one int
+	err := tx.QueryRowContext(ctx, s.q(`SELECT 1 FROM imports WHERE digest = ?`), d.Digest).Scan(&one)
+	if err == nil {
+		res.AlreadyRecorded = true
+		var at, user string
+		var n, same int
+		if err := tx.QueryRowContext(ctx, s.q(`SELECT imported_at, user_name, specimens_new, specimens_same FROM imports WHERE digest = ?`), d.Digest).Scan(&at, &user, &n, &same); err != nil {
+			return nil, err
+		}
+		res.ImportedAt, res.User, res.SpecimensNew, res.SpecimensSame = at, user, n, same
+		return res, nil
+	}
+	if err != sql.ErrNoRows {
+		return nil, err
+	}
+	if _, err := tx.ExecContext(ctx, s.q(`INSERT INTO imports (digest, source, imported_at, user_name, specimens_new, specimens_same, tool_version) VALUES (?, ?, ?, ?, 0, 0, ?)`),
+		d.Digest, d.Source, res.ImportedAt, meta.User, meta.Version); err != nil {
+		return nil, err
+	}
+	conf := &ConflictError{Source: d.Source}
+
+	// Properties: the same name must keep the same quantity.
+	unitOf := make([]string, len(d.Properties))
+	for i, p := range d.Properties {
+		in := units.Internal(p.Unit.Quantity)
+		unitOf[i] = in.Symbol
+		if _, err := tx.ExecContext(ctx, s.q(`INSERT INTO properties (property, quantity, unit) VALUES (?, ?, ?) ON CONFLICT (property) DO NOTHING`),
+			p.Name, p.Unit.Quantity.String(), in.Symbol); err != nil {
+			return nil, err
+		}
+		var q, u string
+		if err := tx.QueryRowContext(ctx, s.q(`SELECT quantity, unit FROM properties WHERE property = ?`), p.Name).Scan(&q, &u); err != nil {
+			return nil, err
+		}
+		if q != p.Unit.Quantity.String() {
+			conf.add(Conflict{Kind: "property", Key: p.Name, Field: "quantity", Stored: q + " [" + u + "]", Incoming: p.Unit.Quantity.String() + " [" + p.Unit.Symbol + "]"})
+		}
+	}
+
+	// Lots: the same lot must keep its supplier and material.
+	groups, err := d.Group(lots.ByLot, nil)
+	if err != nil {
+		return nil, err
+	}
+	lotStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO lots (lot, supplier, material, import_digest) VALUES (?, ?, ?, ?) ON CONFLICT (lot) DO NOTHING`))
+	if err != nil {
+		return nil, err
+	}
+	defer lotStmt.Close()
+	for _, g := range groups {
+		r, err := lotStmt.ExecContext(ctx, g.Key, g.Supplier, g.Material, d.Digest)
+		if err != nil {
+			return nil, err
+		}
+		if n, _ := r.RowsAffected(); n == 1 {
+			res.LotsNew++
+			continue
+		}
+		var sup, mat string
+		if err := tx.QueryRowContext(ctx, s.q(`SELECT supplier, material FROM lots WHERE lot = ?`), g.Key).Scan(&sup, &mat); err != nil {
+			return nil, err
+		}
+		line := d.Specimens[g.Specimens[0]].Line
+		if sup != g.Supplier {
+			conf.add(Conflict{Kind: "lot", Key: g.Key, Field: "supplier", Stored: strconv.Quote(sup), Incoming: strconv.Quote(g.Supplier), Line: line})
+		}
+		if mat != g.Material {
+			conf.add(Conflict{Kind: "lot", Key: g.Key, Field: "material", Stored: strconv.Quote(mat), Incoming: strconv.Quote(g.Material), Line: line})
+		}
+	}
+
+	// Specimens and their values.
+	specStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO specimens (specimen, lot, heat, tested, test_condition, import_digest) VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT (specimen) DO NOTHING`))
+	if err != nil {
+		return nil, err
+	}
+	defer specStmt.Close()
+	valStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO measurements (specimen, property, value) VALUES (?, ?, ?)`))
+	if err != nil {
+		return nil, err
+	}
+	defer valStmt.Close()
+	for i := range d.Specimens {
+		if i%4096 == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+		}
+		sp := &d.Specimens[i]
+		r, err := specStmt.ExecContext(ctx, sp.ID, sp.Lot, sp.Heat, sp.Tested, sp.Condition, d.Digest)
+		if err != nil {
+			return nil, err
+		}
+		if n, _ := r.RowsAffected(); n == 0 {
+			if err := s.compare(ctx, tx, d, sp, unitOf, conf); err != nil {
+				return nil, err
+			}
+			res.SpecimensSame++
+			continue
+		}
+		res.SpecimensNew++
+		if len(conf.Conflicts) > 0 {
+			continue // nothing will be written; only look for more conflicts
+		}
+		for pi, v := range sp.Values {
+			if math.IsNaN(v) {
+				continue
+			}
+			if _, err := valStmt.ExecContext(ctx, sp.ID, d.Properties[pi].Name, v); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if len(conf.Conflicts) > 0 {
+		return nil, conf
+	}
+
+	for _, v := range verdicts {
+		if _, err := tx.ExecContext(ctx, s.q(`INSERT INTO verdicts (import_digest, lot, spec, verdict) VALUES (?, ?, ?, ?)`), d.Digest, v.Lot, v.Spec, v.Verdict); err != nil {
+			return nil, fmt.Errorf("store: verdict of lot %q: %w", v.Lot, err)
+		}
+		res.Verdicts++
+	}
+	for _, l := range limits {
+		if _, err := tx.ExecContext(ctx, s.q(`INSERT INTO spec_limits (import_digest, spec, material, property, minimum, maximum, unit) VALUES (?, ?, ?, ?, ?, ?, ?)`),
+			d.Digest, l.Spec, l.Material, l.Property, nullable(l.Minimum), nullable(l.Maximum), l.Unit); err != nil {
+			return nil, err
+		}
+		res.SpecLimits++
+	}
+	if _, err := tx.ExecContext(ctx, s.q(`UPDATE imports SET specimens_new = ?, specimens_same = ? WHERE digest = ?`), res.SpecimensNew, res.SpecimensSame, d.Digest); err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+// compare checks a specimen already stored against the incoming one.
+func (s *Store) compare(ctx context.Context, tx *sql.Tx, d *lots.Dataset, sp *lots.Specimen, unitOf []string, conf *ConflictError) error {
+	var lot, heat, tested, cond string
+	if err := tx.QueryRowContext(ctx, s.q(`SELECT lot, heat, tested, test_condition FROM specimens WHERE specimen = ?`), sp.ID).Scan(&lot, &heat, &tested, &cond); err != nil {
+		return err
+	}
+	add := func(field, stored, incoming string) {
+		conf.add(Conflict{Kind: "specimen", Key: sp.ID, Field: field, Stored: stored, Incoming: incoming, Line: sp.Line})
+	}
+	for _, f := range []struct{ name, a, b string }{{"lot", lot, sp.Lot}, {"heat", heat, sp.Heat}, {"tested", tested, sp.Tested}, {"condition", cond, sp.Condition}} {
+		if f.a != f.b {
+			add(f.name, strconv.Quote(f.a), strconv.Quote(f.b))
+		}
+	}
+	rows, err := tx.QueryContext(ctx, s.q(`SELECT property, value FROM measurements WHERE specimen = ?`), sp.ID)
+	if err != nil {
+		return err
+	}
+	stored := map[string]float64{}
+	for rows.Next() {
+		var p string
+		var v float64
+		if err := rows.Scan(&p, &v); err != nil {
+			rows.Close()
+			return err
+		}
+		stored[p] = v
+	}
+	if err := rows.Close(); err != nil {
+		return err
+	}
+	for pi, p := range d.Properties {
+		v := sp.Values[pi]
+		sv, ok := stored[p.Name]
+		switch {
+		case !ok && math.IsNaN(v):
+		case ok && !math.IsNaN(v) && sv == v:
+		default:
+			add(p.Name, fmtValue(sv, ok, unitOf[pi]), fmtValue(v, true, unitOf[pi]))
+		}
+	}
+	return nil
+}
+
+// Import is one recorded file.
+type Import struct {
+	Digest        string `json:"digest"`
+	Source        string `json:"source"`
+	ImportedAt    string `json:"imported_at"`
+	User          string `json:"user"`
+	SpecimensNew  int    `json:"specimens_new"`
+	SpecimensSame int    `json:"specimens_same"`
+}
+
+// Imports lists the recorded files in the order they were recorded.
+func (s *Store) Imports(ctx context.Context) ([]Import, error) {
+	rows, err := s.db.QueryContext(ctx, `SELECT digest, source, imported_at, user_name, specimens_new, specimens_same FROM imports ORDER BY imported_at, digest`)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var out []Import
+	for rows.Next() {
+		var im Import
+		if err := rows.Scan(&im.Digest, &im.Source, &im.ImportedAt, &im.User, &im.SpecimensNew, &im.SpecimensSame); err != nil {
+			return nil, err
+		}
+		out = append(out, im)
+	}
+	return out, rows.Err()
+}

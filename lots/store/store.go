@@ -1,0 +1,224 @@
+// Package store keeps the history of recorded specimens, lots, verdicts and
+// the specification limits used, in an embedded SQLite database file
+// (modernc.org/sqlite, pure Go) or on a shared PostgreSQL server
+// (github.com/jackc/pgx/v5). Both backends share one schema, built by
+// versioned migrations (ordered SQL steps valid on both) that are recorded
+// in the schema_version table.
+//
+// Every import is one transaction: all of a file is written or nothing is.
+// Imports are idempotent: a file whose SHA-256 was recorded before changes
+// nothing, and a specimen already stored with identical values is skipped.
+// A specimen id stored with different values is a conflict: nothing is
+// written and the conflict is reported with both values.
+//
+// Concurrent writers are safe: SQLite runs in WAL mode with a busy timeout
+// and starts every write transaction with BEGIN IMMEDIATE; PostgreSQL runs
+// them SERIALIZABLE and retries on serialization failures, deadlocks and
+// unique-violation races.
+package store
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/jackc/pgx/v5/pgconn"
+	_ "github.com/jackc/pgx/v5/stdlib" // driver "pgx"
+	_ "modernc.org/sqlite"             // driver "sqlite"
+)
+
+// DefaultPath is the SQLite database file used when neither --db nor
+// $LOTPROOF_DB names one: lotproof.db in the current folder.
+const DefaultPath = "lotproof.db"
+
+// EnvVar names the environment variable that overrides DefaultPath.
+const EnvVar = "LOTPROOF_DB"
+
+// Backend is the kind of database behind a Store.
+type Backend string
+
+// The two backends.
+const (
+	SQLite   Backend = "sqlite"
+	Postgres Backend = "postgres"
+)
+
+// Store is an open lot-history database.
+type Store struct {
+	db      *sql.DB
+	backend Backend
+	where   string // file path or URL without password, for messages
+}
+
+// ResolveURL picks the database: the given url, else $LOTPROOF_DB, else
+// DefaultPath.
+func ResolveURL(url string) string {
+	if strings.TrimSpace(url) != "" {
+		return url
+	}
+	if v := strings.TrimSpace(os.Getenv(EnvVar)); v != "" {
+		return v
+	}
+	return DefaultPath
+}
+
+// IsPostgres reports whether url names a PostgreSQL server.
+func IsPostgres(url string) bool {
+	return strings.HasPrefix(url, "postgres://") || strings.HasPrefix(url, "postgresql://")
+}
+
+// Open opens (creating it if needed) the database at url and brings its
+// schema up to date. A url starting with postgres:// or postgresql:// is a
+// PostgreSQL connection URL; anything else is a SQLite file path (an
+// optional "sqlite:" or "file:" prefix is removed).
+func Open(ctx context.Context, url string) (*Store, error) {
+	url = strings.TrimSpace(url)
+	if url == "" {
+		return nil, errors.New("store: empty database location")
+	}
+	var s *Store
+	if IsPostgres(url) {
+		db, err := sql.Open("pgx", url)
+		if err != nil {
+			return nil, fmt.Errorf("store: %w", err)
+		}
+		db.SetMaxOpenConns(4)
+		s = &Store{db: db, backend: Postgres, where: redact(url)}
+	} else {
+		path := strings.TrimPrefix(strings.TrimPrefix(url, "sqlite:"), "file:")
+		if strings.ContainsAny(path, "?#") {
+			return nil, fmt.Errorf("store: SQLite file name %q contains ? or #; rename the file", path)
+		}
+		if dir := filepath.Dir(path); dir != "" {
+			if fi, err := os.Stat(dir); err != nil || !fi.IsDir() {
+				return nil, fmt.Errorf("store: folder %q of the database file does not exist", dir)
+			}
+		}
+		dsn := path + "?_pragma=busy_timeout(20000)&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_txlock=immediate"
+		db, err := sql.Open("sqlite", dsn)
+		if err != nil {
+			return nil, fmt.Errorf("store: %w", err)
+		}
+		// One connection: SQLite allows one writer at a time anyway, and
+		// a single connection keeps this process from locking itself out.
+		db.SetMaxOpenConns(1)
+		s = &Store{db: db, backend: SQLite, where: path}
+	}
+	if err := s.db.PingContext(ctx); err != nil {
+		s.db.Close()
+		return nil, fmt.Errorf("store: cannot reach %s: %w", s.where, err)
+	}
+	if err := s.migrate(ctx, Latest()); err != nil {
+		s.db.Close()
+		return nil, err
+	}
+	return s, nil
+}
+
+// redact removes a password from a connection URL.
+func redact(url string) string {
+	at := strings.LastIndex(url, "@")
+	scheme := strings.Index(url, "://")
+	if at < 0 || scheme < 0 {
+		return url
+	}
+	cred := url[scheme+3 : at]
+	if i := strings.Index(cred, ":"); i >= 0 {
+		cred = cred[:i] + ":***"
+	}
+	return url[:scheme+3] + cred + url[at:]
+}
+
+// Close closes the database.
+func (s *Store) Close() error { return s.db.Close() }
+
+// Backend tells which kind of database this is.
+func (s *Store) Backend() Backend { return s.backend }
+
+// Where is the database file or URL (without a password).
+func (s *Store) Where() string { return s.where }
+
+// q rewrites ? placeholders into $1, $2, ... for PostgreSQL. The SQL in
+// this package never has a ? inside a string literal.
+func (s *Store) q(query string) string {
+	if s.backend != Postgres {
+		return query
+	}
+	var b strings.Builder
+	n := 0
+	for _, r := range query {
+		if r == '?' {
+			n++
+			b.WriteByte('$')
+			b.WriteString(strconv.Itoa(n))
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// retryable reports whether a failed transaction may succeed when run
+// again: a PostgreSQL serialization failure (40001), deadlock (40P01) or
+// unique violation from a concurrent insert (23505), or a SQLite busy or
+// locked database.
+func retryable(err error) bool {
+	var pg *pgconn.PgError
+	if errors.As(err, &pg) {
+		switch pg.Code {
+		case "40001", "40P01", "23505":
+			return true
+		}
+		return false
+	}
+	m := err.Error()
+	return strings.Contains(m, "SQLITE_BUSY") || strings.Contains(m, "database is locked") ||
+		strings.Contains(m, "SQLITE_LOCKED")
+}
+
+// maxAttempts bounds the retries of one transaction.
+const maxAttempts = 30
+
+// inTx runs fn in one write transaction, retrying it from the start when
+// it failed for a retryable reason. fn must not keep state between calls.
+func (s *Store) inTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
+	var err error
+	for attempt := 0; attempt < maxAttempts; attempt++ {
+		if attempt > 0 {
+			d := time.Duration(5+rand.IntN(20*attempt)) * time.Millisecond
+			select {
+			case <-ctx.Done():
+				return ctx.Err()
+			case <-time.After(d):
+			}
+		}
+		err = s.tryTx(ctx, fn)
+		if err == nil || !retryable(err) {
+			return err
+		}
+	}
+	return fmt.Errorf("store: gave up after %d attempts: %w", maxAttempts, err)
+}
+
+func (s *Store) tryTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
+	var opts *sql.TxOptions
+	if s.backend == Postgres {
+		opts = &sql.TxOptions{Isolation: sql.LevelSerializable}
+	}
+	tx, err := s.db.BeginTx(ctx, opts)
+	if err != nil {
+		return err
+	}
+	if err := fn(tx); err != nil {
+		tx.Rollback()
+		return err
+	}
+	return tx.Commit()
+}
