@@ -1,0 +1,657 @@
+package reduce
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/integrate"
+	"gonum.org/v1/gonum/stat"
+
+	"lotproof/lots"
+)
+
+// DefaultOffset is the plastic strain of the offset method: 0.2 %
+// (ISO 6892-1 Rp0.2; ASTM E8/E8M offset method).
+const DefaultOffset = 0.002
+
+// Options steer the reduction.
+type Options struct {
+	// ModulusFrom and ModulusTo, when ModulusTo > ModulusFrom >= 0, fix the
+	// stress range [MPa] of the elastic fit instead of finding it.
+	ModulusFrom, ModulusTo float64
+	// Offset is the plastic strain of the proof strength (0: 0.002).
+	Offset float64
+}
+
+// Fit is the least-squares elastic line stress = Slope*strain + Intercept.
+type Fit struct {
+	Slope      float64 // [MPa] per unit strain
+	Intercept  float64 // [MPa]
+	R2         float64 // coefficient of determination
+	ResidualSD float64 // sqrt(SSE/(n-2)) [MPa]
+	N          int     // points used
+	From, To   float64 // stress range of the points used [MPa]
+	FirstLine  int     // file line of the first point used
+	LastLine   int     // file line of the last point used
+	Auto       bool    // range found automatically
+}
+
+// Result is the reduction of one record. Stresses are in MPa, strains are
+// fractions, energies per volume in MJ/m^3; NaN marks a value that could
+// not be determined (a warning says why).
+type Result struct {
+	ID, Lot, Heat, Supplier, Material, Tested, Condition string
+	Source                                               string // file:line of the record
+
+	Modulus, Proof, UpperYield, LowerYield, Tensile   float64
+	Uniform, Elongation, ReductionOfArea              float64
+	Toughness, Resilience                             float64
+	ElongationMethod                                  string  // how the elongation was found
+	ExtensometerElongation                            float64 // plastic strain at fracture from the record (audit)
+	Fit                                               Fit
+	FitOK                                             bool
+	ToeShift                                          float64 // strain origin shift (toe compensation)
+	Offset                                            float64
+	ProofStrain, TensileStrain, FractureStrain        float64 // on the toe-compensated curve
+	Fractured                                         bool
+	Noise                                             float64 // estimated stress noise SD [MPa]
+	Points, Duplicates, Backward, LoopPoints, AfterFr int
+	Notes, Warnings                                   []string
+
+	// Curve is the engineering stress-strain curve used: toe-compensated
+	// strain and stress, loops left out, ending at fracture.
+	Strain, Stress []float64
+}
+
+func (r *Result) warn(format string, a ...any) {
+	r.Warnings = append(r.Warnings, fmt.Sprintf(format, a...))
+}
+func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.Sprintf(format, a...)) }
+
+// Reduce computes the properties of one record. It returns a
+// *lots.InputError when the record cannot be used at all (stresses or
+// strains that no metal tensile test gives, which usually means a wrong
+// unit); a property that cannot be determined for this specimen is NaN
+// with a warning.
+func Reduce(rec *Record, opt Options) (*Result, error) {
+	off := opt.Offset
+	if off == 0 {
+		off = DefaultOffset
+	}
+	nan := math.NaN()
+	res := &Result{
+		ID: rec.ID, Lot: rec.Lot, Heat: rec.Heat, Supplier: rec.Supplier, Material: rec.Material,
+		Tested: rec.Tested, Condition: rec.Condition, Source: rec.Where(rec.Line),
+		Modulus: nan, Proof: nan, UpperYield: nan, LowerYield: nan, Tensile: nan, Uniform: nan,
+		Elongation: nan, ReductionOfArea: nan, Toughness: nan, Resilience: nan,
+		ExtensometerElongation: nan, ToeShift: nan, Offset: off,
+		ProofStrain: nan, TensileStrain: nan, FractureStrain: nan, Noise: nan,
+		Points: len(rec.Force),
+	}
+	if !(rec.Area > 0) || !(rec.Gauge > 0) {
+		return nil, lots.Inputf(res.Source, "give the original cross-section and gauge length", "record %q has no usable cross-section or gauge length", rec.ID)
+	}
+	if opt.Offset < 0 || opt.Offset > 0.05 {
+		return nil, lots.Inputf("options", "use an offset such as 0.002 (0.2 %)", "offset %g is outside 0 to 0.05", opt.Offset)
+	}
+	// 1. Engineering stress; exact duplicate points left out.
+	n0 := len(rec.Force)
+	x := make([]float64, 0, n0)
+	s := make([]float64, 0, n0)
+	ln := make([]int, 0, n0)
+	for i := range rec.Force {
+		st := rec.Force[i] / rec.Area
+		if i > 0 && rec.Force[i] == rec.Force[i-1] && rec.Strain[i] == rec.Strain[i-1] {
+			res.Duplicates++
+			continue
+		}
+		x = append(x, rec.Strain[i])
+		s = append(s, st)
+		ln = append(ln, rec.Lines[i])
+	}
+	if res.Duplicates > 0 {
+		res.note("%d repeated data points (same force and extension as the point before) left out", res.Duplicates)
+	}
+	iMax := argmax(s)
+	sm := s[iMax]
+	// 2. Plausibility of the units: a metal tensile test gives a maximum
+	// stress of 1 to 5000 MPa and strains below 200 % (common practice).
+	if !(sm >= 1 && sm <= 5000) {
+		return nil, lots.Inputf(res.Source, "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
+			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force or length unit is probably wrong", rec.ID, sm)
+	}
+	if xm := x[argmax(x)]; !(xm > 0) || xm > 2 {
+		return nil, lots.Inputf(res.Source, "check \"length unit\", \"extensometer gauge length\", \"strain unit\" and that the columns are in the order stated",
+			"record %q: largest strain %.4g is implausible (expected between 0 and 2, i.e. up to 200 %%)", rec.ID, xm)
+	}
+	res.Noise = noiseSD(s)
+	delta := math.Max(0.005*sm, 6*res.Noise)
+	// 3. Fracture: the force falls to below 10 % of its maximum and stays
+	// there; the fracture point is the last point before the steep fall.
+	const tailFrac = 0.1
+	f := len(s) - 1
+	if s[f] < tailFrac*sm {
+		for f > 0 && s[f] < tailFrac*sm {
+			f--
+		}
+		for f > iMax && s[f-1]-s[f] > 0.05*sm {
+			f--
+		}
+		res.Fractured = true
+		res.AfterFr = len(s) - 1 - f
+	} else {
+		res.warn("no fracture in the record (the force at the end is %.0f %% of the maximum): elongation from the record and toughness are not reported", 100*s[f]/sm)
+	}
+	x, s, ln = x[:f+1], s[:f+1], ln[:f+1]
+	// 4. Extension must increase: unload-reload loops and backward steps
+	// are left out, so the curve is the monotonic loading envelope.
+	x, s, ln = res.monotonic(x, s, ln, delta, rec)
+	if len(x) < 10 {
+		return nil, lots.Inputf(res.Source, "record the whole test from zero force to fracture",
+			"record %q has only %d usable points with increasing extension (at least 10 needed)", rec.ID, len(x))
+	}
+	iMax = argmax(s)
+	sm = s[iMax]
+	// 5. Loading branch: up to the first fall of the stress by more than
+	// delta below its running maximum (yield drop, necking, fracture).
+	iEnd := iMax
+	run := 0
+	for i := 1; i <= iMax; i++ {
+		if s[i] > s[run] {
+			run = i
+		}
+		if s[i] < s[run]-delta {
+			iEnd = run
+			break
+		}
+	}
+	// 6. Elastic fit.
+	lo, hi, ok := res.elasticRange(x, s, iEnd, opt)
+	if ok {
+		res.fitLine(x[lo:hi], s[lo:hi])
+		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], ln[hi-1]
+		res.Fit.Auto = !(opt.ModulusTo > opt.ModulusFrom)
+		if res.Fit.Slope <= 0 {
+			res.warn("no linear region found: the fitted slope is not positive")
+			ok = false
+		}
+	}
+	res.FitOK = ok
+	E := nan
+	var cx, cs []float64
+	if ok {
+		E = res.Fit.Slope
+		res.ToeShift = -res.Fit.Intercept / E
+		if rec.Crosshead {
+			res.warn("modulus not reported: crosshead travel includes the machine's compliance (ASTM E111 needs an extensometer); the fitted slope %.4g GPa is used only for the offset line", E/1000)
+		} else {
+			res.Modulus = E
+		}
+		// Toe compensation: the strain origin moves to the intercept of the
+		// elastic line; the curve before the fit range is replaced by that
+		// line from the new origin.
+		cx = append(make([]float64, 0, len(x)-lo+1), 0)
+		cs = append(make([]float64, 0, len(x)-lo+1), 0)
+		for i := lo; i < len(x); i++ {
+			if xi := x[i] - res.ToeShift; xi > cx[len(cx)-1] {
+				cx = append(cx, xi)
+				cs = append(cs, s[i])
+			}
+		}
+		if math.Abs(res.ToeShift) > 1e-5 {
+			res.note("toe compensation: strain origin moved by %.4g %%", 100*res.ToeShift)
+		}
+	} else {
+		cx, cs = x, s
+		lo = 0
+	}
+	res.Strain, res.Stress = cx, cs
+	last := len(cx) - 1
+	// 7. Proof strength by the offset method.
+	if ok {
+		res.proof(cx, cs, E, off)
+	} else {
+		res.warn("no proof strength: no elastic line")
+	}
+	// 8. Upper and lower yield strength.
+	if ok {
+		res.yieldPoint(cx, cs, E, delta)
+	}
+	// 9. Tensile strength and uniform elongation.
+	cMax := argmax(cs)
+	if !res.Fractured && cMax >= last-2 {
+		res.warn("tensile strength not reported: the force was still rising at the end of the record")
+	} else {
+		res.Tensile = cs[cMax]
+		res.TensileStrain = cx[cMax]
+		if ok {
+			xm := peakStrain(cx, cs, cMax, math.Max(3*res.Noise, 0.002*cs[cMax]))
+			res.TensileStrain = xm
+			res.Uniform = math.Max(0, xm-res.Tensile/E)
+		} else {
+			res.warn("uniform elongation not reported: no elastic line to subtract")
+		}
+	}
+	// 10. Elongation after fracture.
+	if res.Fractured {
+		res.FractureStrain = cx[last]
+		if ok {
+			res.ExtensometerElongation = math.Max(0, cx[last]-cs[last]/E)
+		}
+	}
+	switch {
+	case !math.IsNaN(rec.FinalGauge):
+		if rec.FinalGauge < rec.Gauge {
+			res.warn("elongation not reported: final gauge length %.4g mm is shorter than the original %.4g mm", rec.FinalGauge, rec.Gauge)
+		} else {
+			res.Elongation = (rec.FinalGauge - rec.Gauge) / rec.Gauge
+			res.ElongationMethod = "final gauge length"
+			if !math.IsNaN(res.ExtensometerElongation) && math.Abs(res.ExtensometerElongation-res.Elongation) > 0.02 {
+				res.warn("elongation from the final gauge length (%.1f %%) and from the record (%.1f %%) differ by more than 2 %% points: check the fracture position and the final measurement",
+					100*res.Elongation, 100*res.ExtensometerElongation)
+			}
+		}
+	case !math.IsNaN(res.ExtensometerElongation):
+		res.Elongation = res.ExtensometerElongation
+		res.ElongationMethod = "record at fracture less the elastic part"
+		if rec.Crosshead {
+			res.warn("elongation from crosshead travel includes deformation outside the gauge length; measure the final gauge length for a reportable value")
+		}
+	case res.Fractured:
+		res.warn("elongation not reported: no final gauge length and no elastic line")
+	}
+	// 11. Reduction of area.
+	if !math.IsNaN(rec.FinalArea) {
+		if rec.FinalArea > rec.Area {
+			res.warn("reduction of area not reported: final section %.4g mm^2 is larger than the original %.4g mm^2", rec.FinalArea, rec.Area)
+		} else {
+			res.ReductionOfArea = (rec.Area - rec.FinalArea) / rec.Area
+		}
+	}
+	// 12. Toughness and modulus of resilience.
+	if res.Fractured {
+		res.Toughness = toughness(cx, cs)
+		if !ok {
+			res.warn("toughness without toe compensation (no elastic line)")
+		}
+	}
+	if ok && !math.IsNaN(res.Proof) {
+		res.Resilience = res.Proof * res.Proof / (2 * E)
+	}
+	return res, nil
+}
+
+// toughness is the area under the engineering stress-strain curve from the
+// first point to fracture by the trapezoidal rule (gonum integrate.
+// Trapezoidal): U_T = integral of sigma d(epsilon) [MPa = MJ/m^3]. The
+// definition is that of the handbooks (e.g. Dowling, Mechanical Behavior
+// of Materials, "tensile toughness"; from memory).
+func toughness(x, s []float64) float64 { return integrate.Trapezoidal(x, s) }
+
+// monotonic keeps only points whose strain exceeds every earlier kept
+// point. A run of left-out points during which the stress fell by more
+// than delta is an unload-reload loop (noted); a run without unloading is
+// extension going backwards (a warning when it goes back by more than ten
+// typical steps).
+func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Record) ([]float64, []float64, []int) {
+	steps := make([]float64, 0, len(x))
+	for i := 1; i < len(x); i++ {
+		if d := x[i] - x[i-1]; d > 0 {
+			steps = append(steps, d)
+		}
+	}
+	typ := 0.0
+	if len(steps) > 0 {
+		sort.Float64s(steps)
+		typ = steps[len(steps)/2]
+	}
+	ox, os, ol := x[:1:1], s[:1:1], ln[:1:1]
+	ox = append([]float64(nil), ox...)
+	os = append([]float64(nil), os...)
+	ol = append([]int(nil), ol...)
+	back := 0
+	for i := 1; i < len(x); {
+		if x[i] > ox[len(ox)-1] {
+			ox, os, ol = append(ox, x[i]), append(os, s[i]), append(ol, ln[i])
+			i++
+			continue
+		}
+		// A run of points at or behind the last kept strain.
+		u := len(ox) - 1
+		j := i
+		minS, minX := s[i], x[i]
+		for j < len(x) && x[j] <= ox[u] {
+			minS, minX = math.Min(minS, s[j]), math.Min(minX, x[j])
+			j++
+		}
+		cnt := j - i
+		switch {
+		case os[u]-minS > delta:
+			res.LoopPoints += cnt
+			res.note("unload-reload loop from line %d to line %d (strain %.3g %%, unloaded to %.0f MPa) left out of the envelope", ol[u], lineAt(ln, j), 100*ox[u], minS)
+		default:
+			res.Backward += cnt
+			back += cnt
+			if ox[u]-minX > 10*typ && typ > 0 {
+				res.warn("extension went backwards by %.3g %% strain at line %d without unloading; %d points left out (check the extensometer)", 100*(ox[u]-minX), ln[i], cnt)
+			}
+		}
+		i = j
+	}
+	if back > 0 {
+		res.note("%d points with extension not above the previous maximum left out", back)
+	}
+	return ox, os, ol
+}
+
+func lineAt(ln []int, j int) int {
+	if j < len(ln) {
+		return ln[j]
+	}
+	return ln[len(ln)-1]
+}
+
+// elasticRange picks the index range [lo, hi) of the elastic fit on the
+// loading branch x[0..iEnd]. With a stress range in opt, the range is the
+// points within it. Otherwise windows between fractions a and b of the
+// branch's top stress (a from 0 to 0.7, b-a at least 0.2, steps of 0.025)
+// are fitted; among windows with R^2 >= 0.99 and at least 6 points, the
+// steepest slope Emax is found, and the window with the most points whose
+// slope is within max(0.5 %, 2 standard errors) of Emax is taken. Toe
+// slack and plastic flow both lower the slope, so the steepest wide
+// window is the linear region (ASTM E111 asks for the range where stress
+// is proportional to strain; this search is this package's own).
+func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi int, ok bool) {
+	if opt.ModulusTo > opt.ModulusFrom {
+		lo, hi = -1, -1
+		for i := 0; i <= iEnd; i++ {
+			if s[i] >= opt.ModulusFrom && s[i] <= opt.ModulusTo {
+				if lo < 0 {
+					lo = i
+				}
+				hi = i + 1
+			} else if lo >= 0 && s[i] > opt.ModulusTo {
+				break
+			}
+		}
+		if lo < 0 || hi-lo < 3 {
+			res.warn("no linear region found: the modulus range %.4g to %.4g MPa holds %d points of the loading branch (3 needed)", opt.ModulusFrom, opt.ModulusTo, max(0, hi-lo))
+			return 0, 0, false
+		}
+		return lo, hi, true
+	}
+	top := s[iEnd]
+	n := iEnd + 1
+	// Prefix sums, centred for accuracy.
+	mx, ms := stat.Mean(x[:n], nil), stat.Mean(s[:n], nil)
+	px := make([]float64, n+1)
+	py := make([]float64, n+1)
+	pxx := make([]float64, n+1)
+	pxy := make([]float64, n+1)
+	pyy := make([]float64, n+1)
+	for i := 0; i < n; i++ {
+		dx, dy := x[i]-mx, s[i]-ms
+		px[i+1] = px[i] + dx
+		py[i+1] = py[i] + dy
+		pxx[i+1] = pxx[i] + dx*dx
+		pxy[i+1] = pxy[i] + dx*dy
+		pyy[i+1] = pyy[i] + dy*dy
+	}
+	first := func(thr float64) int {
+		for i := 0; i < n; i++ {
+			if s[i] >= thr {
+				return i
+			}
+		}
+		return n
+	}
+	type win struct {
+		lo, hi    int
+		slope, se float64
+	}
+	var cands []win
+	const step = 0.025
+	for ai := 0; ai <= 28; ai++ {
+		a := float64(ai) * step
+		l := first(a * top)
+		for bi := ai + 8; bi <= 40; bi++ {
+			b := float64(bi) * step
+			h := first(b*top + 1e-12)
+			if bi == 40 {
+				h = n
+			}
+			m := h - l
+			if m < 6 {
+				continue
+			}
+			fm := float64(m)
+			sx := px[h] - px[l]
+			sy := py[h] - py[l]
+			sxx := pxx[h] - pxx[l] - sx*sx/fm
+			sxy := pxy[h] - pxy[l] - sx*sy/fm
+			syy := pyy[h] - pyy[l] - sy*sy/fm
+			if sxx <= 0 || syy <= 0 {
+				continue
+			}
+			slope := sxy / sxx
+			r2 := sxy * sxy / (sxx * syy)
+			if r2 < 0.99 || slope <= 0 {
+				continue
+			}
+			sse := math.Max(0, syy-slope*sxy)
+			se := math.Sqrt(sse / (fm - 2) / sxx)
+			cands = append(cands, win{l, h, slope, se})
+		}
+	}
+	if len(cands) == 0 {
+		res.warn("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight (R^2 >= 0.99 over at least 6 points and 20 %% of the stress); give --modulus-range to fix it by hand", n, top)
+		return 0, 0, false
+	}
+	best := 0
+	for i, c := range cands {
+		if c.slope > cands[best].slope {
+			best = i
+		}
+	}
+	emax := cands[best].slope
+	tol := math.Max(0.005*emax, 2*cands[best].se)
+	pick := -1
+	for i, c := range cands {
+		if c.slope >= emax-tol && (pick < 0 || c.hi-c.lo > cands[pick].hi-cands[pick].lo) {
+			pick = i
+		}
+	}
+	return cands[pick].lo, cands[pick].hi, true
+}
+
+// fitLine fits stress = beta*strain + alpha by ordinary least squares
+// (gonum stat.LinearRegression; ASTM E111 section 9, least-squares fit of
+// stress on strain, from memory) and records R^2 (gonum stat.RSquared)
+// and the residual standard deviation sqrt(SSE/(n-2)).
+func (res *Result) fitLine(x, s []float64) {
+	alpha, beta := stat.LinearRegression(x, s, nil, false)
+	r2 := stat.RSquared(x, s, nil, alpha, beta)
+	sse := 0.0
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for i := range x {
+		e := s[i] - (alpha + beta*x[i])
+		sse += e * e
+		lo, hi = math.Min(lo, s[i]), math.Max(hi, s[i])
+	}
+	res.Fit = Fit{Slope: beta, Intercept: alpha, R2: r2, ResidualSD: math.Sqrt(sse / float64(len(x)-2)), N: len(x), From: lo, To: hi}
+}
+
+// proof finds the offset proof strength Rp (ISO 6892-1 clause 12 and
+// 3.10.3, "plastic extension" proof strength; ASTM E8/E8M offset method,
+// section 7.7.1, from memory): the stress where the curve meets the line
+// of slope E through strain = offset, found as the first sign change of
+// g = stress - E (strain - offset) and interpolated linearly between the
+// two points around it.
+func (res *Result) proof(x, s []float64, E, off float64) {
+	prev := s[0] - E*(x[0]-off)
+	for i := 1; i < len(x); i++ {
+		g := s[i] - E*(x[i]-off)
+		if g <= 0 {
+			t := prev / (prev - g)
+			res.Proof = s[i-1] + t*(s[i]-s[i-1])
+			res.ProofStrain = x[i-1] + t*(x[i]-x[i-1])
+			return
+		}
+		prev = g
+	}
+	if res.Fractured {
+		res.warn("no proof strength: fractured before %.3g %% offset", 100*off)
+	} else {
+		res.warn("no proof strength: the record ends before %.3g %% offset", 100*off)
+	}
+}
+
+// yieldPoint finds discontinuous yielding (ISO 6892-1 3.10.2.1 upper
+// yield strength ReH: the stress at the first fall of force; 3.10.2.2
+// lower yield strength ReL: the lowest stress during plastic yielding,
+// ignoring any initial transient effect; clauses 10 and 11; from memory).
+// A fall counts when the stress drops more than delta below its running
+// maximum while the plastic strain is below 1 % and the curve continues
+// for at least another 1 % strain (so necking and fracture do not count).
+// The yielding ends where the stress first regains ReH or reaches its
+// maximum; the initial transient is the first dip below the median of the
+// yielding stresses, which is left out of the minimum.
+func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
+	run := 0
+	p := -1
+	for i := 1; i < len(s); i++ {
+		if s[i] > s[run] {
+			run = i
+		}
+		if s[i] < s[run]-delta {
+			p = run
+			break
+		}
+	}
+	if p < 0 || x[p]-s[p]/E > 0.01 || x[len(x)-1]-x[p] < 0.01 {
+		return
+	}
+	q := len(s)
+	for i := p + 1; i < len(s); i++ {
+		if s[i] >= s[p] {
+			q = i
+			break
+		}
+	}
+	if q-p < 3 {
+		return
+	}
+	plateau := append([]float64(nil), s[p+1:q]...)
+	sort.Float64s(plateau)
+	med := plateau[len(plateau)/2]
+	k := p + 1
+	for k < q && s[k] >= med { // falling towards the dip
+		k++
+	}
+	for k < q && s[k] < med { // the dip
+		k++
+	}
+	if k >= q {
+		k = p + 1
+	}
+	rel := math.Inf(1)
+	for i := k; i < q; i++ {
+		rel = math.Min(rel, s[i])
+	}
+	res.UpperYield = s[p]
+	res.LowerYield = rel
+	res.note("discontinuous yielding: upper yield at strain %.3g %%, yielding up to strain %.3g %%", 100*x[p], 100*x[q-1])
+}
+
+// peakStrain locates the strain at maximum force: the vertex of a
+// least-squares parabola through the contiguous points around the maximum
+// whose stress is within band of it (ISO 6892-1 clause 16 asks for the
+// extension at maximum force and, for a flat top, the middle of the
+// plateau; the parabola is this package's way to find that point in
+// noisy data). It falls back to the strain of the highest point.
+func peakStrain(x, s []float64, iMax int, band float64) float64 {
+	l, h := iMax, iMax
+	for l > 0 && s[l-1] >= s[iMax]-band {
+		l--
+	}
+	for h < len(s)-1 && s[h+1] >= s[iMax]-band {
+		h++
+	}
+	if h-l+1 < 5 || l == iMax || h == iMax {
+		return x[iMax]
+	}
+	// Centred quadratic least squares via the 3x3 normal equations.
+	xc := (x[l] + x[h]) / 2
+	w := (x[h] - x[l]) / 2
+	var S [5]float64
+	var T [3]float64
+	for i := l; i <= h; i++ {
+		u := (x[i] - xc) / w
+		p := 1.0
+		for k := 0; k < 5; k++ {
+			S[k] += p
+			if k < 3 {
+				T[k] += p * s[i]
+			}
+			p *= u
+		}
+	}
+	a := [3][4]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
+	for c := 0; c < 3; c++ {
+		piv := c
+		for r := c + 1; r < 3; r++ {
+			if math.Abs(a[r][c]) > math.Abs(a[piv][c]) {
+				piv = r
+			}
+		}
+		a[c], a[piv] = a[piv], a[c]
+		if a[c][c] == 0 {
+			return x[iMax]
+		}
+		for r := 0; r < 3; r++ {
+			if r != c {
+				f := a[r][c] / a[c][c]
+				for k := c; k < 4; k++ {
+					a[r][k] -= f * a[c][k]
+				}
+			}
+		}
+	}
+	c1, c2 := a[1][3]/a[1][1], a[2][3]/a[2][2]
+	if !(c2 < 0) {
+		return x[iMax]
+	}
+	u := -c1 / (2 * c2)
+	if u < -1 || u > 1 {
+		return x[iMax]
+	}
+	return xc + u*w
+}
+
+func argmax(v []float64) int {
+	k := 0
+	for i, x := range v {
+		if x > v[k] {
+			k = i
+		}
+	}
+	return k
+}
+
+// noiseSD estimates the standard deviation of the stress noise from the
+// second differences d_i = s_{i-1} - 2 s_i + s_{i+1}: for independent noise
+// of SD sigma, Var d = 6 sigma^2, and the median absolute value of a normal
+// variable is 0.6745 SD, so sigma = median|d| / (0.6745 sqrt 6) (a robust
+// scale estimate; Hampel's MAD, e.g. NIST/SEMATECH e-Handbook 1.3.5.6).
+func noiseSD(s []float64) float64 {
+	if len(s) < 3 {
+		return 0
+	}
+	d := make([]float64, len(s)-2)
+	for i := 1; i < len(s)-1; i++ {
+		d[i-1] = math.Abs(s[i-1] - 2*s[i] + s[i+1])
+	}
+	sort.Float64s(d)
+	return d[len(d)/2] / (0.6745 * math.Sqrt(6))
+}
