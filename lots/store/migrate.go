@@ -95,7 +95,9 @@ func (s *Store) SchemaVersion(ctx context.Context) (int, error) {
 // concurrent processes opening a fresh database do not race (BEGIN
 // IMMEDIATE in SQLite, an advisory transaction lock in PostgreSQL).
 func (s *Store) migrate(ctx context.Context, target int) error {
-	err := s.inTx(ctx, func(tx *sql.Tx) error {
+	// READ COMMITTED in PostgreSQL: after waiting for the advisory lock,
+	// each statement must see what the process that held it committed.
+	err := s.inTxIso(ctx, sql.LevelReadCommitted, func(tx *sql.Tx) error {
 		if s.backend == Postgres {
 			if _, err := tx.ExecContext(ctx, `SELECT pg_advisory_xact_lock(7345120261202)`); err != nil {
 				return err

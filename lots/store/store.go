@@ -189,6 +189,12 @@ const maxAttempts = 30
 // inTx runs fn in one write transaction, retrying it from the start when
 // it failed for a retryable reason. fn must not keep state between calls.
 func (s *Store) inTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
+	return s.inTxIso(ctx, sql.LevelSerializable, fn)
+}
+
+// inTxIso is inTx with the PostgreSQL isolation level given (SQLite
+// transactions are always serializable).
+func (s *Store) inTxIso(ctx context.Context, iso sql.IsolationLevel, fn func(tx *sql.Tx) error) error {
 	var err error
 	for attempt := 0; attempt < maxAttempts; attempt++ {
 		if attempt > 0 {
@@ -199,7 +205,7 @@ func (s *Store) inTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
 			case <-time.After(d):
 			}
 		}
-		err = s.tryTx(ctx, fn)
+		err = s.tryTx(ctx, iso, fn)
 		if err == nil || !retryable(err) {
 			return err
 		}
@@ -207,10 +213,10 @@ func (s *Store) inTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
 	return fmt.Errorf("store: gave up after %d attempts: %w", maxAttempts, err)
 }
 
-func (s *Store) tryTx(ctx context.Context, fn func(tx *sql.Tx) error) error {
+func (s *Store) tryTx(ctx context.Context, iso sql.IsolationLevel, fn func(tx *sql.Tx) error) error {
 	var opts *sql.TxOptions
 	if s.backend == Postgres {
-		opts = &sql.TxOptions{Isolation: sql.LevelSerializable}
+		opts = &sql.TxOptions{Isolation: iso}
 	}
 	tx, err := s.db.BeginTx(ctx, opts)
 	if err != nil {
