@@ -84,6 +84,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		columns []string
 		strainU float64
 		lineNo  int
+		skip    bool
 	)
 	add := func(line, col int, what, fix string) {
 		if len(probs) >= lots.MaxProblems {
@@ -99,7 +100,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		if !inData {
 			add(endLine, 1, fmt.Sprintf("record started on line %d has no @data section", cur.Line),
 				"write the metadata, then a line \"@data\", the data rows and \"@end\"")
-		} else if len(cur.Force) < 3 {
+		} else if len(cur.Force) < 3 && !skip {
 			add(endLine, 1, fmt.Sprintf("record %q has %d data rows", cur.ID, len(cur.Force)),
 				"a record needs the whole test: at least the elastic part, the maximum force and the fracture")
 		}
@@ -129,7 +130,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 			}
 			cur = &Record{Source: name, Line: lineNo, FinalGauge: math.NaN(), FinalArea: math.NaN()}
 			meta = map[string]metaKey{}
-			inData = false
+			inData, skip = false, false
 			continue
 		case "@data":
 			if cur == nil {
@@ -142,6 +143,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 			}
 			var ok bool
 			fscale, lscale, egauge, strainU, columns, ok = cur.applyMeta(meta, lineNo, add)
+			skip = !ok
 			if !ok {
 				// The data cannot be read without its units; skip to @end.
 				columns = nil
@@ -172,7 +174,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 				add(lineNo, indent, fmt.Sprintf("%q given twice (first on line %d)", key, prev.line), "give each metadata key once per record")
 				continue
 			}
-			col := strings.Index(raw, ":") + 2
+			col := strings.Index(raw, ":") + 2 + len(v) - len(strings.TrimLeft(v, " \t"))
 			meta[key] = metaKey{lineNo, col, strings.TrimSpace(v)}
 			continue
 		}

@@ -356,9 +356,11 @@ func lineAt(ln []int, j int) int {
 // loading branch x[0..iEnd]. With a stress range in opt, the range is the
 // points within it. Otherwise windows between fractions a and b of the
 // branch's top stress (a from 0 to 0.7, b-a at least 0.2, steps of 0.025)
-// are fitted; among windows with R^2 >= 0.99 and at least 6 points, the
-// steepest slope Emax is found, and the window with the most points whose
-// slope is within max(0.5 %, 2 standard errors) of Emax is taken. Toe
+// are fitted; among windows of at least 6 points with R^2 >= 0.99 and a
+// residual SD below 2 noise SD + 0.1 % of the top stress (straight to
+// within the noise), the steepest slope Emax is found, and the window with
+// the most points whose slope is within max(0.1 %, 2 standard errors) of
+// Emax is taken. Toe
 // slack and plastic flow both lower the slope, so the steepest wide
 // window is the linear region (ASTM E111 asks for the range where stress
 // is proportional to strain; this search is this package's own).
@@ -383,6 +385,7 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 	}
 	top := s[iEnd]
 	n := iEnd + 1
+	linTol := 2*res.Noise + 0.001*top
 	// Prefix sums, centred for accuracy.
 	mx, ms := stat.Mean(x[:n], nil), stat.Mean(s[:n], nil)
 	px := make([]float64, n+1)
@@ -440,12 +443,15 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 				continue
 			}
 			sse := math.Max(0, syy-slope*sxy)
+			if math.Sqrt(sse/(fm-2)) > linTol {
+				continue
+			}
 			se := math.Sqrt(sse / (fm - 2) / sxx)
 			cands = append(cands, win{l, h, slope, se})
 		}
 	}
 	if len(cands) == 0 {
-		res.warn("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight (R^2 >= 0.99 over at least 6 points and 20 %% of the stress); give --modulus-range to fix it by hand", n, top)
+		res.warn("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight to within the noise (R^2 >= 0.99 and residual SD below %.3g MPa over at least 6 points and 20 %% of the stress); give --modulus-range to fix it by hand", n, top, linTol)
 		return 0, 0, false
 	}
 	best := 0
@@ -455,7 +461,7 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 		}
 	}
 	emax := cands[best].slope
-	tol := math.Max(0.005*emax, 2*cands[best].se)
+	tol := math.Max(0.001*emax, 2*cands[best].se)
 	pick := -1
 	for i, c := range cands {
 		if c.slope >= emax-tol && (pick < 0 || c.hi-c.lo > cands[pick].hi-cands[pick].lo) {
@@ -496,6 +502,9 @@ func (res *Result) proof(x, s []float64, E, off float64) {
 			t := prev / (prev - g)
 			res.Proof = s[i-1] + t*(s[i]-s[i-1])
 			res.ProofStrain = x[i-1] + t*(x[i]-x[i-1])
+			if res.Noise > 1e-4*res.Proof {
+				res.smoothProof(x, s, i, E, off)
+			}
 			return
 		}
 		prev = g
@@ -505,6 +514,49 @@ func (res *Result) proof(x, s []float64, E, off float64) {
 	} else {
 		res.warn("no proof strength: the record ends before %.3g %% offset", 100*off)
 	}
+}
+
+// smoothProof refines the offset intersection on a noisy curve. The first
+// sign change is found where the noise happens to pull a point below the
+// offset line, which biases the plain interpolation low; instead the
+// offset line is intersected with a least-squares parabola through the 25
+// points on each side of that crossing (a local smoothing chosen by this
+// package; the standards define Rp on the curve without saying how to
+// treat noise). The smoothed value is kept only when the parabola crosses
+// the line inside the window.
+func (res *Result) smoothProof(x, s []float64, i int, E, off float64) {
+	const h = 25
+	l, r := max(0, i-h), min(len(x)-1, i+h-1)
+	if r-l < 10 {
+		return
+	}
+	xc, w := (x[l]+x[r])/2, (x[r]-x[l])/2
+	c, ok := quadFit(x, s, xc, w)
+	if !ok {
+		return
+	}
+	// c0 + c1 u + c2 u^2 = E (xc + u w - off), solved for u in [-1, 1].
+	a, b, cc := c[2], c[1]-E*w, c[0]-E*(xc-off)
+	var u float64
+	if math.Abs(a) < 1e-12*math.Abs(b) {
+		u = -cc / b
+	} else {
+		d := b*b - 4*a*cc
+		if d < 0 {
+			return
+		}
+		sq := math.Sqrt(d)
+		u1, u2 := (-b+sq)/(2*a), (-b-sq)/(2*a)
+		u = u1
+		if math.Abs(u2) < math.Abs(u1) {
+			u = u2
+		}
+	}
+	if u < -1 || u > 1 {
+		return
+	}
+	res.ProofStrain = xc + u*w
+	res.Proof = c[0] + c[1]*u + c[2]*u*u
 }
 
 // yieldPoint finds discontinuous yielding (ISO 6892-1 3.10.2.1 upper
@@ -581,12 +633,40 @@ func peakStrain(x, s []float64, iMax int, band float64) float64 {
 	if h-l+1 < 5 || l == iMax || h == iMax {
 		return x[iMax]
 	}
-	// Centred quadratic least squares via the 3x3 normal equations.
-	xc := (x[l] + x[h]) / 2
-	w := (x[h] - x[l]) / 2
+	// A window symmetric in strain about the current estimate, so that an
+	// asymmetric top does not pull the vertex; refined three times.
+	c := x[iMax]
+	hw := math.Min(c-x[l], x[h]-c)
+	for it := 0; it < 3; it++ {
+		v, ok := parabolaVertex(x, s, c-hw, c+hw)
+		if !ok || v < x[l] || v > x[h] {
+			return c
+		}
+		c = v
+		hw = math.Min(hw, math.Min(c-x[l], x[h]-c))
+		if hw <= 0 {
+			break
+		}
+	}
+	return c
+}
+
+// quadFit fits stress = c0 + c1 u + c2 u^2, u = (strain - xc)/w, by least
+// squares through the points with strain in [xc-w, xc+w] (3x3 normal
+// equations in the centred, scaled variable, Gauss-Jordan elimination with
+// partial pivoting). ok is false with fewer than 5 points.
+func quadFit(x, s []float64, xc, w float64) (c [3]float64, ok bool) {
+	if !(w > 0) {
+		return c, false
+	}
 	var S [5]float64
 	var T [3]float64
-	for i := l; i <= h; i++ {
+	n := 0
+	for i := range x {
+		if x[i] < xc-w || x[i] > xc+w {
+			continue
+		}
+		n++
 		u := (x[i] - xc) / w
 		p := 1.0
 		for k := 0; k < 5; k++ {
@@ -597,36 +677,50 @@ func peakStrain(x, s []float64, iMax int, band float64) float64 {
 			p *= u
 		}
 	}
-	a := [3][4]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
-	for c := 0; c < 3; c++ {
-		piv := c
-		for r := c + 1; r < 3; r++ {
-			if math.Abs(a[r][c]) > math.Abs(a[piv][c]) {
+	if n < 5 {
+		return c, false
+	}
+	m := [3][4]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
+	for col := 0; col < 3; col++ {
+		piv := col
+		for r := col + 1; r < 3; r++ {
+			if math.Abs(m[r][col]) > math.Abs(m[piv][col]) {
 				piv = r
 			}
 		}
-		a[c], a[piv] = a[piv], a[c]
-		if a[c][c] == 0 {
-			return x[iMax]
+		m[col], m[piv] = m[piv], m[col]
+		if m[col][col] == 0 {
+			return c, false
 		}
 		for r := 0; r < 3; r++ {
-			if r != c {
-				f := a[r][c] / a[c][c]
-				for k := c; k < 4; k++ {
-					a[r][k] -= f * a[c][k]
+			if r != col {
+				f := m[r][col] / m[col][col]
+				for k := col; k < 4; k++ {
+					m[r][k] -= f * m[col][k]
 				}
 			}
 		}
 	}
-	c1, c2 := a[1][3]/a[1][1], a[2][3]/a[2][2]
-	if !(c2 < 0) {
-		return x[iMax]
+	for k := 0; k < 3; k++ {
+		c[k] = m[k][3] / m[k][k]
 	}
-	u := -c1 / (2 * c2)
+	return c, true
+}
+
+// parabolaVertex returns the strain of the vertex of the least-squares
+// parabola through the points with strain in [a, b] when it is a maximum
+// inside [a, b].
+func parabolaVertex(x, s []float64, a, b float64) (float64, bool) {
+	xc, w := (a+b)/2, (b-a)/2
+	c, ok := quadFit(x, s, xc, w)
+	if !ok || !(c[2] < 0) {
+		return 0, false
+	}
+	u := -c[1] / (2 * c[2])
 	if u < -1 || u > 1 {
-		return x[iMax]
+		return 0, false
 	}
-	return xc + u*w
+	return xc + u*w, true
 }
 
 func argmax(v []float64) int {
