@@ -739,6 +739,7 @@ func argmax(v []float64) int {
 // variable is 0.6745 SD, so sigma = median|d| / (0.6745 sqrt 6) (a robust
 // scale estimate; Hampel's MAD, e.g. NIST/SEMATECH e-Handbook 1.3.5.6).
 func noiseSD(s []float64) float64 {
+	const normQ75 = 0.6744897501960817 // standard normal 75 % quantile
 	if len(s) < 3 {
 		return 0
 	}
@@ -747,5 +748,5 @@ func noiseSD(s []float64) float64 {
 		d[i-1] = math.Abs(s[i-1] - 2*s[i] + s[i+1])
 	}
 	sort.Float64s(d)
-	return d[len(d)/2] / (0.6745 * math.Sqrt(6))
+	return d[len(d)/2] / (normQ75 * math.Sqrt(6))
 }
