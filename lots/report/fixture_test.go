@@ -81,7 +81,7 @@ func sampleDocument() (*Document, error) {
 	if err != nil {
 		return nil, err
 	}
-	npp, err := NormalProbPlot(ProbData{Title: "Normal probability plot", Quantity: "tensile strength", Unit: "MPa", Values: vals}, *fits.Normal)
+	npp, err := NormalProbPlot(ProbData{Title: "Normal probability plot " + hostile, Quantity: "tensile strength", Unit: "MPa", Values: vals}, *fits.Normal)
 	if err != nil {
 		return nil, err
 	}
@@ -124,7 +124,7 @@ func sampleDocument() (*Document, error) {
 	periods := []string{"2025-Q1", "2025-Q2", "2025-Q3", "2025-Q4", "2026-Q1", "2026-Q2"}
 	trend, err := TrendPlot(TrendData{Title: "Quarterly mean by supplier", Quantity: "mean tensile strength", Unit: "MPa", Periods: periods,
 		Series: []TrendSeries{{"Supplier A", []float64{612, 611, 613, 610, 612, 611}}, {hostile, []float64{608, math.NaN(), 605, 601, 597, 590}}},
-		Lines: []RefLine{{"spec minimum 570 MPa", 570}}})
+		Lines:  []RefLine{{"spec minimum 570 MPa", 570}}})
 	if err != nil {
 		return nil, err
 	}
@@ -135,7 +135,7 @@ func sampleDocument() (*Document, error) {
 		paAttr = append(paAttr, math.Pow(1-p, 20)+20*p*math.Pow(1-p, 19))
 		paVar = append(paVar, distuv.UnitNormal.CDF((distuv.UnitNormal.Quantile(1-math.Max(p, 1e-12))-1.8)*math.Sqrt(10)/math.Sqrt(1+1.8*1.8/2)))
 	}
-	oc, err := OCPlot(OCData{Title: "Operating characteristic", Curves: []OCCurve{{"attributes n=20, c=1", ps, paAttr}, {"variables n=10, k=1.8", ps, paVar}},
+	oc, err := OCPlot(OCData{Title: "Operating characteristic", Curves: []OCCurve{{"attributes n=20, c=1 " + hostile, ps, paAttr}, {"variables n=10, k=1.8", ps, paVar}},
 		Lines: []RefLine{{"AQL 1%", 0.01}, {"LTPD 10%", 0.1}}})
 	if err != nil {
 		return nil, err

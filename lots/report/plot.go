@@ -82,6 +82,7 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 	p.Y.Tick.Label.Font.Size = vg.Points(8.5)
 	p.Legend.TextStyle.Font.Size = vg.Points(8.5)
 	p.Legend.Top = true
+	p.Legend.Padding = vg.Points(1.5)
 	p.Title.Padding = vg.Points(6)
 	grid := plotter.NewGrid()
 	grid.Vertical.Color = color.Gray{0xe0}
@@ -520,6 +521,7 @@ func DotPlot(d DotPlotData) ([]byte, error) {
 		p.Add(l)
 		p.Legend.Add(r.Label, l)
 	}
+	names = shortLabels(names)
 	p.NominalX(names...)
 	p.X.Min, p.X.Max = -0.5, k-0.5
 	rotateIfCrowded(p, names)
@@ -549,9 +551,11 @@ func rotateIfCrowded(p *plot.Plot, names []string) {
 }
 
 // padY leaves headroom above the data for the legend (a fraction of the
-// data range).
+// data range) and a little room below it.
 func padY(p *plot.Plot, frac float64) {
-	p.Y.Max += frac * (p.Y.Max - p.Y.Min)
+	r := p.Y.Max - p.Y.Min
+	p.Y.Max += frac * r
+	p.Y.Min -= 0.05 * r
 }
 
 // ChartData is a control chart: one value per point with a centre line and
@@ -677,11 +681,31 @@ func ControlChart(c ChartData) ([]byte, error) {
 			labels[i] = fmt.Sprint(i + 1)
 		}
 	}
-	p.NominalX(thin(labels, 24)...)
-	rotateIfCrowded(p, thin(labels, 24))
+	labels = shortLabels(thin(labels, 24))
+	p.NominalX(labels...)
+	rotateIfCrowded(p, labels)
 	p.X.Min, p.X.Max = -0.5, float64(n)-0.5
 	padY(p, 0.3)
 	return renderSVG(p, plotWidth, plotHeight)
+}
+
+// maxTickLabel is the longest category label drawn on an axis, in
+// characters; longer names are cut with an ellipsis (tables beside the
+// figure give them in full).
+const maxTickLabel = 14
+
+// shortLabels cuts long category labels so that they cannot crowd out the
+// plot.
+func shortLabels(labels []string) []string {
+	out := make([]string, len(labels))
+	for i, l := range labels {
+		r := []rune(l)
+		if len(r) > maxTickLabel {
+			l = string(r[:maxTickLabel-1]) + "…"
+		}
+		out[i] = l
+	}
+	return out
 }
 
 // thin blanks labels so that at most about max are shown.
@@ -885,8 +909,9 @@ func TrendPlot(d TrendData) ([]byte, error) {
 		p.Add(l)
 		p.Legend.Add(r.Label, l)
 	}
-	p.NominalX(d.Periods...)
-	rotateIfCrowded(p, d.Periods)
+	periods := shortLabels(d.Periods)
+	p.NominalX(periods...)
+	rotateIfCrowded(p, periods)
 	p.X.Min, p.X.Max = -0.5, float64(n)-0.5
 	padY(p, 0.35)
 	return renderSVG(p, plotWidth, plotHeight)

@@ -112,7 +112,19 @@ func TestHostileStringsStayText(t *testing.T) {
 		}
 	}
 	if inSVG < 4 {
-		t.Errorf("hostile string found verbatim in %d SVG <text> elements, want at least 4 (title, tick labels, legends)", inSVG)
+		t.Errorf("hostile string found verbatim in %d SVG <text> elements, want at least 4 (titles, legends)", inSVG)
+	}
+	// Category tick labels are cut to maxTickLabel characters: the cut
+	// hostile label must still be text.
+	cut := string([]rune(hostile)[:maxTickLabel-1]) + "…"
+	cuts := 0
+	for _, s := range svgTexts {
+		if s == cut {
+			cuts++
+		}
+	}
+	if cuts < 3 {
+		t.Errorf("cut hostile tick label %q found in %d SVG <text> elements, want 3 (dot plot, two control charts)", cut, cuts)
 	}
 	if bytes.Contains(out, []byte("<script")) {
 		t.Error("raw output contains <script")

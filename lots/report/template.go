@@ -123,8 +123,8 @@ const pageTemplate = `<!DOCTYPE html>
 <h3>{{with .Audit.Title}}{{.}}{{else}}Audit trail{{end}}</h3>
 <ol>
 {{- range .Audit.Steps}}
-<li{{with cls .Status}} class="{{.}}"{{end}}>
-<p class="step">{{if sym .Status}}<span class="mark" title="{{word .Status}}">{{sym .Status}}</span> {{end}}{{.Step}}</p>
+<li>
+<p class="step{{with cls .Status}} {{.}}{{end}}">{{if sym .Status}}<span class="mark" title="{{word .Status}}">{{sym .Status}}</span> {{end}}{{.Step}}</p>
 <dl>
 {{- with .Statistic}}<dt>statistic</dt><dd>{{.}}</dd>{{end}}
 {{- with .Threshold}}<dt>threshold</dt><dd>{{.}}</dd>{{end}}
