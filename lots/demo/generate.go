@@ -80,10 +80,14 @@ const (
 // Generate makes the scenario's data files from a seed.
 func Generate(seed uint64) map[string][]byte {
 	rng := rand.New(rand.NewPCG(seed, 0x6c6f7470726f6f66))
-	return map[string][]byte{
+	files := map[string][]byte{
 		"receipts.csv": receipts(rng),
 		"campaign.csv": campaign(rng),
 	}
+	for name, b := range rawRecords(seed) {
+		files[name] = b
+	}
+	return files
 }
 
 func quarterStart(q string) (year, month int) {
