@@ -1,0 +1,371 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/reduce"
+	"lotproof/lots/render"
+	"lotproof/lots/units"
+)
+
+type reduceOptions struct {
+	Paths         []string
+	ModulusRange  string  // "LO:HI" in MPa (ksi with --units us); empty: automatic
+	OffsetPercent float64 // offset of the proof strength [%]
+	PlotDir       string  // write one SVG per specimen here
+	Out           output
+}
+
+func init() { register(newReduceCmd) }
+
+func newReduceCmd(g *globalOptions, st streams) *cobra.Command {
+	var o reduceOptions
+	cmd := &cobra.Command{
+		Use:   "reduce PATH...",
+		Short: "Reduce raw tensile records to specimen properties",
+		Long: `reduce reads raw tensile records (lotproof's record format: a metadata block
+and force against extension or strain; see lots/reduce/FORMAT.md) from files,
+folders of *.rec files, or - for standard input, and computes per specimen:
+modulus (least-squares elastic line, ASTM E111), 0.2 % offset proof strength
+(ISO 6892-1 Rp0.2, ASTM E8/E8M offset method), upper and lower yield strength
+(ISO 6892-1 ReH, ReL), tensile strength, uniform elongation (Ag), elongation
+after fracture, reduction of area, toughness (area under the curve) and the
+modulus of resilience.
+
+The output is the specimen results CSV the other commands read, so
+  lotproof reduce raw/ | lotproof summary -
+works. --format json adds the audit of every specimen: points used for the
+modulus, R^2, residual SD, toe shift, notes and warnings. A property that
+cannot be determined is left empty with a warning on standard error.
+
+Computed properties support, and never replace, the governing test standard,
+specification, regulations and licensed engineering judgement.`,
+		Args: func(cmd *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return usageError{fmt.Errorf("reduce expects one or more record files or folders (or -); see lotproof reduce --help")}
+			}
+			return nil
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			o.Paths = args
+			return runReduce(o, st)
+		},
+	}
+	cmd.Flags().StringVar(&o.ModulusRange, "modulus-range", "", "stress range LO:HI of the elastic fit in MPa (ksi with --units us); default: found automatically")
+	cmd.Flags().Float64Var(&o.OffsetPercent, "offset", 0.2, "plastic strain of the proof strength in %")
+	cmd.Flags().StringVar(&o.PlotDir, "plot-dir", "", "write a stress-strain plot SPECIMEN.svg per specimen into this folder")
+	return cmd
+}
+
+// reduceOpts turns the flags into reduce.Options.
+func (o reduceOptions) reduceOpts() (reduce.Options, error) {
+	var opt reduce.Options
+	if !(o.OffsetPercent > 0 && o.OffsetPercent <= 5) {
+		return opt, usageError{fmt.Errorf("--offset %g: expected a plastic strain in %% above 0 and at most 5, e.g. 0.2", o.OffsetPercent)}
+	}
+	opt.Offset = o.OffsetPercent / 100
+	if o.ModulusRange != "" {
+		a, b, ok := strings.Cut(o.ModulusRange, ":")
+		lo, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+		hi, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+		if !ok || err1 != nil || err2 != nil || !(lo >= 0) || !(hi > lo) || math.IsInf(hi, 0) {
+			return opt, usageError{fmt.Errorf("--modulus-range %q: expected LO:HI with 0 <= LO < HI, e.g. 40:160", o.ModulusRange)}
+		}
+		u, _ := units.Parse("MPa")
+		u = u.Display(o.Out.System)
+		opt.ModulusFrom, opt.ModulusTo = u.ToInternal(lo), u.ToInternal(hi)
+	}
+	return opt, nil
+}
+
+// readRecords parses every record named by paths: files, folders (their
+// *.rec files in name order) or - for standard input. Problems from every
+// file are collected into one input error.
+func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
+	var all []*reduce.Record
+	var probs []lots.Problem
+	more := 0
+	collect := func(err error) error {
+		ie, ok := err.(*lots.InputError)
+		if !ok {
+			return err
+		}
+		for _, p := range ie.Problems {
+			if len(probs) < lots.MaxProblems {
+				probs = append(probs, p)
+			} else {
+				more++
+			}
+		}
+		more += ie.More
+		return nil
+	}
+	parse := func(r io.Reader, name string) error {
+		recs, err := reduce.Parse(r, name)
+		if err != nil {
+			return collect(err)
+		}
+		all = append(all, recs...)
+		return nil
+	}
+	for _, p := range paths {
+		if p == "-" {
+			if err := parse(st.In, "-"); err != nil {
+				return nil, err
+			}
+			continue
+		}
+		fi, err := os.Stat(p)
+		if err != nil {
+			collect(lots.Inputf(p, "give an existing record file or folder", "cannot open: %v", unwrapPathErr(err)))
+			continue
+		}
+		if !fi.IsDir() {
+			f, err := os.Open(p)
+			if err != nil {
+				collect(lots.Inputf(p, "check the file's permissions", "cannot open: %v", unwrapPathErr(err)))
+				continue
+			}
+			err = parse(f, p)
+			f.Close()
+			if err != nil {
+				return nil, err
+			}
+			continue
+		}
+		ents, err := os.ReadDir(p)
+		if err != nil {
+			collect(lots.Inputf(p, "check the folder's permissions", "cannot read the folder: %v", unwrapPathErr(err)))
+			continue
+		}
+		var names []string
+		for _, e := range ents {
+			if !e.IsDir() && strings.EqualFold(filepath.Ext(e.Name()), reduce.RecordExt) {
+				names = append(names, e.Name())
+			}
+		}
+		sort.Strings(names)
+		if len(names) == 0 {
+			collect(lots.Inputf(p, "raw record files end in .rec", "no %s files in the folder", reduce.RecordExt))
+		}
+		for _, n := range names {
+			fp := filepath.Join(p, n)
+			f, err := os.Open(fp)
+			if err != nil {
+				collect(lots.Inputf(fp, "check the file's permissions", "cannot open: %v", unwrapPathErr(err)))
+				continue
+			}
+			err = parse(f, fp)
+			f.Close()
+			if err != nil {
+				return nil, err
+			}
+		}
+	}
+	if len(probs) > 0 {
+		return nil, &lots.InputError{Problems: probs, More: more}
+	}
+	return all, nil
+}
+
+func unwrapPathErr(err error) error {
+	if pe, ok := err.(*os.PathError); ok {
+		return pe.Err
+	}
+	return err
+}
+
+// reduceCaution is shown with every reduction.
+const reduceCaution = "Computed properties support, and never replace, the governing test standard, specification, regulations and licensed engineering judgement."
+
+func runReduce(o reduceOptions, st streams) error {
+	opt, err := o.reduceOpts()
+	if err != nil {
+		return err
+	}
+	recs, err := readRecords(o.Paths, st)
+	if err != nil {
+		return err
+	}
+	rs, err := reduce.ReduceAll(recs, opt)
+	if err != nil {
+		return err
+	}
+	if o.PlotDir != "" {
+		if err := writePlots(o.PlotDir, rs); err != nil {
+			return err
+		}
+	}
+	if o.Out.Format != render.JSON {
+		for _, r := range rs {
+			for _, w := range r.Warnings {
+				fmt.Fprintf(st.Err, "lotproof: warning: %s: specimen %s: %s\n", r.Source, r.ID, w)
+			}
+		}
+	}
+	return emit(st.Out, func(w io.Writer) error {
+		switch o.Out.Format {
+		case render.JSON:
+			return render.WriteJSON(w, reduceJSON(rs, opt, o.Out.System))
+		case render.CSV:
+			_, err := w.Write(reduce.ResultsCSV(rs, o.Out.System))
+			return err
+		}
+		return writeTables(w, o.Out.Format, reduceTable(rs, o.Out.System))
+	})
+}
+
+func writePlots(dir string, rs []*reduce.Result) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return usageError{fmt.Errorf("--plot-dir: %v", err)}
+	}
+	for _, r := range rs {
+		if len(r.Strain) < 2 {
+			continue
+		}
+		b, err := reduce.PlotSVG(r)
+		if err != nil {
+			return err
+		}
+		name := strings.Map(func(c rune) rune {
+			if c == '/' || c == '\\' || c == ':' || c < ' ' {
+				return '_'
+			}
+			return c
+		}, r.ID) + ".svg"
+		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
+			return usageError{fmt.Errorf("--plot-dir: %v", err)}
+		}
+	}
+	return nil
+}
+
+// reduceTable lays the results out for a terminal, in display units.
+func reduceTable(rs []*reduce.Result, sys units.System) *render.Table {
+	cols := []string{"specimen", "lot"}
+	for _, c := range reduce.Columns {
+		cols = append(cols, ">"+lots.Property{Name: c.Name, Unit: c.Unit}.Label(c.Unit.Display(sys)))
+	}
+	cols = append(cols, ">warnings")
+	t := render.NewTable("", cols...)
+	for _, r := range rs {
+		row := []string{r.ID, r.Lot}
+		for _, c := range reduce.Columns {
+			row = append(row, render.Num(c.Unit.Display(sys).FromInternal(c.Value(r)), 4))
+		}
+		row = append(row, strconv.Itoa(len(r.Warnings)))
+		t.Add(row...)
+	}
+	t.Note("%s", reduceCaution)
+	return t
+}
+
+type reduceFitJSON struct {
+	Slope      lots.Float `json:"slope"` // display modulus unit
+	Intercept  lots.Float `json:"intercept"`
+	R2         lots.Float `json:"r2"`
+	ResidualSD lots.Float `json:"residual_sd"`
+	PointsUsed int        `json:"points_used"`
+	StressFrom lots.Float `json:"stress_from"`
+	StressTo   lots.Float `json:"stress_to"`
+	FirstLine  int        `json:"first_line"`
+	LastLine   int        `json:"last_line"`
+	Automatic  bool       `json:"automatic"`
+}
+
+type reduceAuditJSON struct {
+	Points                 int            `json:"points"`
+	DuplicatesLeftOut      int            `json:"duplicates_left_out"`
+	BackwardLeftOut        int            `json:"backward_left_out"`
+	LoopPointsLeftOut      int            `json:"loop_points_left_out"`
+	NoiseSD                lots.Float     `json:"noise_sd"`
+	ElasticFit             *reduceFitJSON `json:"elastic_fit"`
+	ToeShiftPercent        lots.Float     `json:"toe_shift_percent"`
+	OffsetPercent          float64        `json:"offset_percent"`
+	ProofStrainPercent     lots.Float     `json:"proof_strain_percent"`
+	TensileStrainPercent   lots.Float     `json:"tensile_strain_percent"`
+	Fractured              bool           `json:"fractured"`
+	FractureStrainPercent  lots.Float     `json:"fracture_strain_percent"`
+	ElongationMethod       string         `json:"elongation_method"`
+	ElongationRecordPercnt lots.Float     `json:"elongation_from_record_percent"`
+}
+
+type reduceSpecimenJSON struct {
+	Specimen   string                `json:"specimen"`
+	Lot        string                `json:"lot"`
+	Heat       string                `json:"heat"`
+	Supplier   string                `json:"supplier"`
+	Material   string                `json:"material"`
+	Tested     string                `json:"tested"`
+	Condition  string                `json:"condition"`
+	Source     string                `json:"source"`
+	Properties map[string]lots.Float `json:"properties"`
+	Audit      reduceAuditJSON       `json:"audit"`
+	Notes      []string              `json:"notes"`
+	Warnings   []string              `json:"warnings"`
+}
+
+type reduceResultJSON struct {
+	Tool      string               `json:"tool"`
+	Version   string               `json:"version"`
+	Method    string               `json:"method"`
+	Units     map[string]string    `json:"units"`
+	Caution   string               `json:"caution"`
+	Specimens []reduceSpecimenJSON `json:"specimens"`
+}
+
+func reduceJSON(rs []*reduce.Result, opt reduce.Options, sys units.System) reduceResultJSON {
+	out := reduceResultJSON{
+		Tool: "lotproof reduce", Version: lots.Version,
+		Method: "modulus: least squares over the linear region (ASTM E111); proof: offset method (ISO 6892-1 Rp, ASTM E8/E8M) after toe compensation; ReH/ReL, Rm, Ag, A, Z: ISO 6892-1; toughness: trapezoidal area under the engineering curve to fracture; resilience: Rp^2/(2E)",
+		Units:  map[string]string{}, Caution: reduceCaution, Specimens: []reduceSpecimenJSON{},
+	}
+	for _, c := range reduce.Columns {
+		out.Units[c.Name] = c.Unit.Display(sys).Symbol
+	}
+	mod := reduce.Columns[0].Unit.Display(sys)
+	stress := units.Internal(units.Stress).Display(sys)
+	pct := func(v float64) lots.Float { return lots.Float(100 * v) }
+	for _, r := range rs {
+		sj := reduceSpecimenJSON{
+			Specimen: r.ID, Lot: r.Lot, Heat: r.Heat, Supplier: r.Supplier, Material: r.Material,
+			Tested: r.Tested, Condition: r.Condition, Source: r.Source, Properties: map[string]lots.Float{},
+			Notes: append([]string{}, r.Notes...), Warnings: append([]string{}, r.Warnings...),
+		}
+		for _, c := range reduce.Columns {
+			sj.Properties[c.Name] = lots.Float(c.Unit.Display(sys).FromInternal(c.Value(r)))
+		}
+		a := &sj.Audit
+		a.Points, a.DuplicatesLeftOut, a.BackwardLeftOut, a.LoopPointsLeftOut = r.Points, r.Duplicates, r.Backward, r.LoopPoints
+		a.NoiseSD = lots.Float(stress.FromInternal(r.Noise))
+		if r.FitOK {
+			a.ElasticFit = &reduceFitJSON{
+				Slope: lots.Float(mod.FromInternal(r.Fit.Slope)), Intercept: lots.Float(stress.FromInternal(r.Fit.Intercept)),
+				R2: lots.Float(r.Fit.R2), ResidualSD: lots.Float(stress.FromInternal(r.Fit.ResidualSD)), PointsUsed: r.Fit.N,
+				StressFrom: lots.Float(stress.FromInternal(r.Fit.From)), StressTo: lots.Float(stress.FromInternal(r.Fit.To)),
+				FirstLine: r.Fit.FirstLine, LastLine: r.Fit.LastLine, Automatic: r.Fit.Auto,
+			}
+		}
+		a.ToeShiftPercent = pct(r.ToeShift)
+		a.OffsetPercent = 100 * r.Offset
+		a.ProofStrainPercent, a.TensileStrainPercent = pct(r.ProofStrain), pct(r.TensileStrain)
+		a.Fractured, a.FractureStrainPercent = r.Fractured, pct(r.FractureStrain)
+		a.ElongationMethod, a.ElongationRecordPercnt = r.ElongationMethod, pct(r.ExtensometerElongation)
+		out.Specimens = append(out.Specimens, sj)
+	}
+	return out
+}
