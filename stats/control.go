@@ -283,3 +283,37 @@ func WelchT(a, b []float64) (WelchResult, error) {
 
 // errCtlDomain is wrapped by errors for arguments outside a function's domain.
 var errCtlDomain = errors.New("argument out of range")
+
+// IndividualsLimitsMedianMR is IndividualsLimits with σ estimated from the
+// median moving range, which resists single wild values in a trial
+// baseline (Montgomery, Introduction to Statistical Quality Control, 7th
+// ed., §6.4, "the median moving range"; Bryce, Gaudard and Joiner 1997,
+// Quality Engineering 10, 331-341):
+//
+//	σ̂ = median(MR_i) / d4,  d4 = √2·Φ⁻¹(0.75) ≈ 0.954
+//
+// (the median of |Z1 - Z2| for two independent standard normals); the
+// centre line is the mean of x. It returns the limits and the median MR.
+func IndividualsLimitsMedianMR(x []float64) (Limits, float64, error) {
+	if len(x) < 2 {
+		return Limits{}, math.NaN(), fmt.Errorf("an individuals chart needs at least 2 baseline values, got %d: %w", len(x), ErrTooFew)
+	}
+	if err := checkFinite(x); err != nil {
+		return Limits{}, math.NaN(), err
+	}
+	mr := make([]float64, len(x)-1)
+	for i := 1; i < len(x); i++ {
+		mr[i-1] = math.Abs(x[i] - x[i-1])
+	}
+	med := medianSorted(sortedCopy(mr))
+	if med == 0 {
+		return Limits{}, 0, fmt.Errorf("the median moving range is zero: %w", ErrZeroSpread)
+	}
+	mean, _ := meanVar(x)
+	sigma := med / MedianMRConstant()
+	return Limits{Center: mean, Lower: mean - 3*sigma, Upper: mean + 3*sigma, Sigma: sigma}, med, nil
+}
+
+// MedianMRConstant is d4 = √2·Φ⁻¹(0.75), the median of the moving range
+// of span two of unit-variance normal values.
+func MedianMRConstant() float64 { return math.Sqrt2 * distuv.UnitNormal.Quantile(0.75) }

@@ -29,6 +29,12 @@ type controlRef struct {
 		X                              []float64
 		Center, MRBar, Sigma, LCL, UCL float64
 	} `json:"individuals"`
+	MedianMR struct {
+		D4              float64
+		D4Simulated     float64 `json:"d4_simulated"`
+		MedianMR        float64 `json:"median_mr"`
+		Sigma, LCL, UCL float64
+	} `json:"median_mr"`
 	EWMA struct {
 		X                     []float64
 		Lambda, L, Mu0, Sigma float64
@@ -144,6 +150,23 @@ func TestIndividualsAndSLimits(t *testing.T) {
 	}
 	if _, _, err := IndividualsLimits([]float64{2, math.NaN()}); !errors.Is(err, ErrNonFinite) {
 		t.Errorf("NaN: %v", err)
+	}
+	// Median moving range (Montgomery §6.4): d4 against scipy's
+	// √2·Φ⁻¹(0.75) and a 10^6-pair simulation (0.001), limits against numpy.
+	mm := loadControlRef(t).MedianMR
+	near(t, "d4", MedianMRConstant(), mm.D4, 1e-12)
+	near(t, "d4 simulated", MedianMRConstant(), mm.D4Simulated, 0.002)
+	near(t, "d4 printed 0.954 (common practice)", MedianMRConstant(), 0.954, 0.0005)
+	lm, med, err := IndividualsLimitsMedianMR(ref.X)
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "median MR", med, mm.MedianMR, 1e-12)
+	near(t, "median-MR sigma", lm.Sigma, mm.Sigma, 1e-10)
+	near(t, "median-MR LCL", lm.Lower, mm.LCL, 1e-9)
+	near(t, "median-MR UCL", lm.Upper, mm.UCL, 1e-9)
+	if _, _, err := IndividualsLimitsMedianMR([]float64{1, 1, 1, 5}); !errors.Is(err, ErrZeroSpread) {
+		t.Errorf("zero median MR: %v", err)
 	}
 	// S chart, n = 5 (Montgomery Appendix VI: B3 = 0, B4 = 2.089).
 	s, err := SChartLimits(10, 5)

@@ -103,6 +103,16 @@ func (e *ConflictError) add(c Conflict) {
 	}
 }
 
+// StoredUnit is the unit values of a property are stored in: the internal
+// unit of its quantity, except for hardness (scales are never converted, so
+// the scale symbol is kept) and dimensionless values.
+func StoredUnit(u units.Unit) string {
+	if u.Quantity == units.Hardness || u.Quantity == units.Dimensionless {
+		return u.Symbol
+	}
+	return units.Internal(u.Quantity).Symbol
+}
+
 // fmtValue writes a stored or incoming value for a conflict message.
 func fmtValue(v float64, present bool, unit string) string {
 	if !present || math.IsNaN(v) {
@@ -217,17 +227,16 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 	// Properties: the same name must keep the same quantity.
 	unitOf := make([]string, len(d.Properties))
 	for i, p := range d.Properties {
-		in := units.Internal(p.Unit.Quantity)
-		unitOf[i] = in.Symbol
+		unitOf[i] = StoredUnit(p.Unit)
 		if _, err := tx.ExecContext(ctx, s.q(`INSERT INTO properties (property, quantity, unit) VALUES (?, ?, ?) ON CONFLICT (property) DO NOTHING`),
-			p.Name, p.Unit.Quantity.String(), in.Symbol); err != nil {
+			p.Name, p.Unit.Quantity.String(), unitOf[i]); err != nil {
 			return nil, err
 		}
 		var q, u string
 		if err := tx.QueryRowContext(ctx, s.q(`SELECT quantity, unit FROM properties WHERE property = ?`), p.Name).Scan(&q, &u); err != nil {
 			return nil, err
 		}
-		if q != p.Unit.Quantity.String() {
+		if q != p.Unit.Quantity.String() || u != unitOf[i] {
 			conf.add(Conflict{Kind: "property", Key: p.Name, Field: "quantity", Stored: q + " [" + u + "]", Incoming: p.Unit.Quantity.String() + " [" + p.Unit.Symbol + "]"})
 		}
 	}

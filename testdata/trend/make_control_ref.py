@@ -75,6 +75,14 @@ mr = np.abs(np.diff(base)).mean()
 sig = mr / (2/math.sqrt(math.pi))
 out["individuals"] = {"x": base.tolist(), "center": base.mean(), "mrbar": mr, "sigma": sig,
                       "lcl": base.mean()-3*sig, "ucl": base.mean()+3*sig}
+# median moving range: d4 = median of |Z1 - Z2| (Z1 - Z2 ~ N(0, 2)), checked
+# also by simulation of 10^6 pairs
+d4 = math.sqrt(2)*stats.norm.ppf(0.75)
+pairs = rng.normal(0, 1, (1000000, 2))
+d4sim = float(np.median(np.abs(pairs[:, 0]-pairs[:, 1])))
+mmr = float(np.median(np.abs(np.diff(base))))
+out["median_mr"] = {"d4": d4, "d4_simulated": d4sim, "median_mr": mmr, "sigma": mmr/d4,
+                    "lcl": base.mean()-3*mmr/d4, "ucl": base.mean()+3*mmr/d4}
 lam, L, mu0, s0 = 0.2, 3.0, 50.0, 2.0
 z = mu0; pts = []
 for i, v in enumerate(series, start=1):
