@@ -356,6 +356,21 @@ func ComputeFrom(data []store.LotValues, verdicts map[string][]store.Verdict, li
 		}
 		computeSeries(res, k, ls, min, o)
 	}
+	// Signals in the order of the series, then by period (each series'
+	// signals are already in lot order within a rule).
+	sort.SliceStable(res.Signals, func(i, j int) bool {
+		a, b := res.Signals[i], res.Signals[j]
+		if a.Group != b.Group {
+			return a.Group < b.Group
+		}
+		if a.Material != b.Material {
+			return a.Material < b.Material
+		}
+		if a.Property != b.Property {
+			return a.Property < b.Property
+		}
+		return a.Period < b.Period
+	})
 	return res, nil
 }
 

@@ -1,0 +1,225 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/user"
+	"strconv"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/render"
+	"lotproof/lots/store"
+	"lotproof/spec"
+)
+
+type recordOptions struct {
+	Data  string
+	Input inputOptions
+	Specs []string // specification files
+	DB    string   // database URL or SQLite file ("" = $LOTPROOF_DB or lotproof.db)
+	Out   output
+	Now   func() time.Time // clock (injected by tests); nil = time.Now
+	User  string           // who records ("" = $USER or the login name)
+}
+
+func newRecordCmd(g *globalOptions, st streams) *cobra.Command {
+	var o recordOptions
+	cmd := &cobra.Command{
+		Use:   "record DATA [--spec S.yaml ...] [--db URL]",
+		Short: "Add a results file (and, with a specification, its lot verdicts) to the lot history",
+		Long: `record stores the specimens and lots of a results file in the lot history
+database, with the time, the user and the file's SHA-256. With --spec it also
+stores each lot's verdict against its specification and the limits used, so
+that trend can compute Ppk against the minimum.
+
+The database is a SQLite file: lotproof.db in the current folder, or the file
+named by $LOTPROOF_DB, or by --db. --db postgres://user@host:port/name uses a
+shared PostgreSQL server instead.
+
+One file is one transaction: it is stored completely or not at all.
+Recording the same file again changes nothing (matched on its SHA-256); a
+specimen already stored with identical values is skipped. A specimen id
+already stored with different values is a conflict: both values are shown,
+nothing is written and the exit status is 2.`,
+		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			o.Data = args[0]
+			return runRecord(o, st)
+		},
+	}
+	addInputFlags(cmd, &o.Input)
+	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "purchase specification file (YAML); repeat for several materials")
+	cmd.Flags().StringVar(&o.DB, "db", "", "database: a SQLite file or postgres://... URL (default: $LOTPROOF_DB or lotproof.db)")
+	return cmd
+}
+
+func init() { register(newRecordCmd) }
+
+// recordResult is what record reports.
+type recordResult struct {
+	Database string `json:"database"`
+	Schema   int    `json:"schema_version"`
+	store.RecordResult
+	Specs  []string `json:"specs"`
+	Judged bool     `json:"judged"` // verdicts were computed and stored
+	Note   string   `json:"note,omitempty"`
+}
+
+// currentUser is $USER, else the login name from the system, else "unknown".
+func currentUser() string {
+	if u := os.Getenv("USER"); u != "" {
+		return u
+	}
+	if u, err := user.Current(); err == nil && u.Username != "" {
+		return u.Username
+	}
+	return "unknown"
+}
+
+// readSpecs reads specification files; a bad one is an input error.
+func readSpecs(names []string) ([]*spec.Spec, error) {
+	var specs []*spec.Spec
+	for _, n := range names {
+		s, err := spec.ReadFile(n)
+		if err != nil {
+			return nil, err
+		}
+		specs = append(specs, s)
+	}
+	if len(specs) > 1 {
+		if err := spec.CheckSet(specs); err != nil {
+			return nil, err
+		}
+	}
+	return specs, nil
+}
+
+// specLimits lists the limits of the specifications in the store's form.
+func specLimits(specs []*spec.Spec) []store.SpecLimit {
+	var out []store.SpecLimit
+	for _, s := range specs {
+		for _, l := range s.Limits {
+			out = append(out, store.SpecLimit{Spec: s.Label(), Material: s.Material, Property: l.Property,
+				Minimum: l.Min, Maximum: l.Max, Unit: internalSymbol(l)})
+		}
+	}
+	return out
+}
+
+func runRecord(o recordOptions, st streams) error {
+	d, by, err := readData(o.Data, o.Input, st)
+	if err != nil {
+		return err
+	}
+	if len(d.Specimens) == 0 {
+		return lots.Inputf(d.Source, "give a file with at least one specimen row", "no specimens to record")
+	}
+	specs, err := readSpecs(o.Specs)
+	if err != nil {
+		return err
+	}
+	verdicts, judged, note, err := judgeLots(d, specs, by)
+	if err != nil {
+		return err
+	}
+	now := o.Now
+	if now == nil {
+		now = time.Now
+	}
+	who := o.User
+	if who == "" {
+		who = currentUser()
+	}
+	ctx := context.Background()
+	s, err := store.Open(ctx, store.ResolveURL(o.DB))
+	if err != nil {
+		return usageError{err}
+	}
+	defer s.Close()
+	r, err := s.Record(ctx, d, verdicts, specLimits(specs), store.Meta{Time: now(), User: who, Version: lots.Version})
+	if err != nil {
+		var ce *store.ConflictError
+		if errors.As(err, &ce) {
+			return conflictProblems(ce)
+		}
+		return err
+	}
+	v, err := s.SchemaVersion(ctx)
+	if err != nil {
+		return err
+	}
+	res := recordResult{Database: s.Where(), Schema: v, RecordResult: *r, Judged: judged, Note: note, Specs: []string{}}
+	for _, sp := range specs {
+		res.Specs = append(res.Specs, sp.Label())
+	}
+	if r.AlreadyRecorded {
+		fmt.Fprintf(st.Err, "lotproof: %s (SHA-256 %s) was already recorded on %s by %s; nothing changed\n", d.Source, d.Digest[:12], r.ImportedAt, r.User)
+	} else {
+		fmt.Fprintf(st.Err, "lotproof: recorded %s in %s: %d new specimens, %d already stored, %d new lots, %d verdicts\n",
+			d.Source, s.Where(), r.SpecimensNew, r.SpecimensSame, r.LotsNew, r.Verdicts)
+	}
+	return emit(st.Out, func(w io.Writer) error {
+		if o.Out.Format == render.JSON {
+			return render.WriteJSON(w, res)
+		}
+		return writeTables(w, o.Out.Format, recordTable(res))
+	})
+}
+
+// conflictProblems turns a store conflict into an input error.
+func conflictProblems(ce *store.ConflictError) error {
+	e := &lots.InputError{More: ce.More}
+	for _, c := range ce.Conflicts {
+		where := ce.Source
+		if c.Line > 0 {
+			where += ":" + strconv.Itoa(c.Line)
+		}
+		e.Problems = append(e.Problems, lots.Problem{Where: where, What: c.String(),
+			Fix: "nothing was written; correct the file, or give the specimen a new id if it is a different specimen"})
+	}
+	return e
+}
+
+func recordTable(r recordResult) *render.Table {
+	t := render.NewTable("Recorded", "item", "value")
+	t.Add("database", r.Database)
+	t.Add("schema version", strconv.Itoa(r.Schema))
+	t.Add("file", r.Source)
+	t.Add("sha256", r.Digest)
+	t.Add("already recorded", strconv.FormatBool(r.AlreadyRecorded))
+	t.Add("recorded at", r.ImportedAt)
+	t.Add("recorded by", r.User)
+	t.Add("specimens new", strconv.Itoa(r.SpecimensNew))
+	t.Add("specimens already stored", strconv.Itoa(r.SpecimensSame))
+	t.Add("lots new", strconv.Itoa(r.LotsNew))
+	t.Add("verdicts stored", strconv.Itoa(r.Verdicts))
+	t.Add("spec limits stored", strconv.Itoa(r.SpecLimits))
+	if r.Note != "" {
+		t.Note("%s", r.Note)
+	}
+	return t
+}
+
+// internalSymbol is the internal unit of a limit's quantity (limits are
+// held in it).
+func internalSymbol(l spec.Limit) string { return store.StoredUnit(l.Unit) }
+
+// judgeLots computes each lot's verdict against its specification.
+// TODO(wire): lots/acceptance is not in the tree yet; until it lands, the
+// limits are stored and no verdicts are.
+func judgeLots(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) ([]store.Verdict, bool, string, error) {
+	if len(specs) == 0 {
+		return nil, false, "", nil
+	}
+	return nil, false, "specification limits stored; lot verdicts are not computed by this build", nil
+}

@@ -1,0 +1,229 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"lotproof/lots/store"
+)
+
+const recordCSV = `specimen,lot,heat,supplier,material,tested,tensile [MPa],proof [MPa]
+A-1,L-1,H1,North Mill,bar,2025-01-10,1001.5,880.0
+A-2,L-1,H1,North Mill,bar,2025-01-10,998.0,875.5
+B-1,L-2,H2,North Mill,bar,2025-04-12,1010.0,890.0
+B-2,L-2,H2,North Mill,bar,2025-04-12,1007.5,
+`
+
+func recordOpts(t *testing.T, data, db string) recordOptions {
+	return recordOptions{Data: data, DB: db, Input: inputOptions{GroupBy: "lot"},
+		Now:  func() time.Time { return time.Date(2026, 3, 4, 5, 6, 7, 0, time.UTC) },
+		User: "tester"}
+}
+
+func TestRecordThenAgainThenConflict(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "h.db")
+	data := writeFile(t, "r.csv", recordCSV)
+	o := recordOpts(t, data, db)
+	o.Out.Format = "json"
+	var out, errb bytes.Buffer
+	if err := runRecord(o, streams{Out: &out, Err: &errb}); err != nil {
+		t.Fatal(err)
+	}
+	var r map[string]any
+	if err := json.Unmarshal(out.Bytes(), &r); err != nil {
+		t.Fatal(err)
+	}
+	if r["specimens_new"] != 4.0 || r["lots_new"] != 2.0 || r["already_recorded"] != false || r["user"] != "tester" ||
+		r["imported_at"] != "2026-03-04T05:06:07Z" || r["schema_version"] != 2.0 || len(r["digest"].(string)) != 64 {
+		t.Fatalf("first record: %s", out.String())
+	}
+	// Again: nothing changes, and it says so.
+	out.Reset()
+	errb.Reset()
+	o.Now = func() time.Time { return time.Date(2027, 1, 1, 0, 0, 0, 0, time.UTC) }
+	if err := runRecord(o, streams{Out: &out, Err: &errb}); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(out.String(), `"already_recorded": true`) || !strings.Contains(errb.String(), "already recorded on 2026-03-04T05:06:07Z by tester; nothing changed") {
+		t.Fatalf("second record: %s / %s", out.String(), errb.String())
+	}
+	// A changed value under the same specimen id: exit 2, both values
+	// shown, nothing on stdout, nothing written.
+	bad := writeFile(t, "bad.csv", strings.Replace(recordCSV, "998.0", "989.0", 1)+"C-1,L-3,H3,North Mill,bar,2025-07-01,1000,880\n")
+	code, stdout, stderr := run(t, "", "record", bad, "--db", db)
+	if code != 2 || stdout != "" || !strings.Contains(stderr, `specimen "A-2": tensile is 998 MPa in the database but 989 MPa in the file`) || !strings.Contains(stderr, "bad.csv:3") {
+		t.Fatalf("conflict: exit %d\nstdout %q\nstderr %s", code, stdout, stderr)
+	}
+	s, err := store.Open(t.Context(), db)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	c, _ := s.Count(t.Context())
+	if c != (store.Counts{Imports: 1, Lots: 2, Specimens: 4, Measurements: 7}) {
+		t.Fatalf("counts after conflict %+v", c)
+	}
+}
+
+func TestRecordDefaultDatabaseAndErrors(t *testing.T) {
+	dir := t.TempDir()
+	t.Setenv(store.EnvVar, filepath.Join(dir, "env.db"))
+	data := writeFile(t, "r.csv", recordCSV)
+	code, _, stderr := run(t, "", "record", data, "--format", "csv")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "env.db")); err != nil {
+		t.Fatalf("$%s not used: %v", store.EnvVar, err)
+	}
+	for _, args := range [][]string{
+		{"record"},
+		{"record", filepath.Join(dir, "missing.csv")},
+		{"record", data, "--db", filepath.Join(dir, "no", "such", "dir", "x.db")},
+		{"record", data, "--spec", filepath.Join(dir, "missing.yaml")},
+		{"trend", "--every", "week"},
+		{"trend", "--baseline", "2025-Q1-2025-Q4"},
+		{"trend", "--baseline", "2025-Q4..2025-Q1"},
+		{"trend", "--since", "2025-13-01"},
+		{"trend", "--property", "no such property"},
+		{"trend", "--by", "heat"},
+		{"trend", "extra"},
+	} {
+		code, stdout, stderr := run(t, "", args...)
+		if code != 2 || stdout != "" || stderr == "" {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q", args, code, stdout, stderr)
+		}
+	}
+}
+
+// A record run from the demo specification stores its limits, and trend
+// reads them back; the JSON holds one object per group, property and
+// period and a signals list.
+func TestRecordSpecThenTrendJSON(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "h.db")
+	spec := "../../lots/demo/data/spec-steel-bar.yaml"
+	data := writeFile(t, "r.csv", strings.ReplaceAll(recordCSV, ",bar,", ",QT bar OH-S42,"))
+	if code, _, stderr := run(t, "", "record", data, "--db", db, "--spec", spec); code != 0 {
+		t.Fatalf("record: exit %d: %s", code, stderr)
+	}
+	code, out, stderr := run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile")
+	if code != 0 {
+		t.Fatalf("trend: exit %d: %s", code, stderr)
+	}
+	var r struct {
+		Periods []map[string]any `json:"periods"`
+		Signals []map[string]any `json:"signals"`
+		Caution string           `json:"caution"`
+	}
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Periods) != 2 || r.Periods[0]["period"] != "2025-Q1" || r.Periods[1]["period"] != "2025-Q2" || r.Periods[0]["minimum"] != 930.0 ||
+		r.Periods[0]["specimens"] != 2.0 || r.Periods[0]["mean"] != 999.75 || r.Signals == nil || r.Caution == "" {
+		t.Fatalf("trend JSON: %s", out)
+	}
+	// US units: the mean in ksi (1 ksi = 6.894757293168361 MPa, NIST SP 811).
+	code, out, _ = run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile", "--units", "us")
+	if code != 0 {
+		t.Fatal(out)
+	}
+	json.Unmarshal([]byte(out), &r)
+	if m := r.Periods[0]["mean"].(float64); r.Periods[0]["unit"] != "ksi" || m < 999.75/6.894757293168361-1e-9 || m > 999.75/6.894757293168361+1e-9 {
+		t.Fatalf("US units: %v %v", r.Periods[0]["unit"], r.Periods[0]["mean"])
+	}
+	// Same input, byte-identical output.
+	_, out2, _ := run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile", "--units", "us")
+	if out2 != out {
+		t.Fatal("trend output differs between two runs")
+	}
+}
+
+// Child process for TestConcurrentRecordProcesses.
+const recordChildEnv = "LOTPROOF_RECORD_CHILD"
+
+func TestRecordChildProcess(t *testing.T) {
+	args := os.Getenv(recordChildEnv)
+	if args == "" {
+		t.Skip("helper process for TestConcurrentRecordProcesses")
+	}
+	os.Exit(execute(strings.Split(args, "\x1f"), streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr}))
+}
+
+// Eight `lotproof record` processes with distinct files at once leave
+// every specimen exactly once (SQLite, and PostgreSQL when
+// LOTPROOF_TEST_PG is set).
+func TestConcurrentRecordProcesses(t *testing.T) {
+	dbs := map[string]string{"sqlite": filepath.Join(t.TempDir(), "c.db")}
+	if pg := os.Getenv("LOTPROOF_TEST_PG"); pg != "" {
+		dbs["postgres"] = pg
+	} else {
+		t.Log("LOTPROOF_TEST_PG is not set: PostgreSQL half skipped")
+	}
+	for name, db := range dbs {
+		t.Run(name, func(t *testing.T) {
+			const writers, perFile = 8, 40
+			run := fmt.Sprintf("%d", time.Now().UnixNano())
+			var files []string
+			for w := 0; w < writers; w++ {
+				var b strings.Builder
+				b.WriteString("specimen,lot,supplier,material,tested,tensile [MPa]\n")
+				for i := 0; i < perFile; i++ {
+					fmt.Fprintf(&b, "R%s-W%d-S%d,R%s-W%d-L%d,Mill %d,bar,2025-0%d-01,%d\n", run, w, i, run, w, i/5, w, 1+i%9, 1000+i)
+				}
+				files = append(files, writeFile(t, fmt.Sprintf("w%d.csv", w), b.String()))
+			}
+			var wg sync.WaitGroup
+			outs := make([][]byte, writers)
+			errs := make([]error, writers)
+			for w := 0; w < writers; w++ {
+				wg.Add(1)
+				go func(w int) {
+					defer wg.Done()
+					cmd := exec.Command(os.Args[0], "-test.run=^TestRecordChildProcess$", "-test.count=1")
+					cmd.Env = append(os.Environ(), recordChildEnv+"="+strings.Join([]string{"record", files[w], "--db", db, "--format", "json"}, "\x1f"))
+					outs[w], errs[w] = cmd.CombinedOutput()
+				}(w)
+			}
+			wg.Wait()
+			for w := range errs {
+				if errs[w] != nil {
+					t.Fatalf("writer %d: %v\n%s", w, errs[w], outs[w])
+				}
+			}
+			s, err := store.Open(t.Context(), db)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer s.Close()
+			lv, err := s.LotData(t.Context(), store.Filter{Property: "tensile"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			seen := map[string]int{}
+			for _, l := range lv {
+				for _, id := range l.IDs {
+					if strings.HasPrefix(id, "R"+run+"-") {
+						seen[id]++
+					}
+				}
+			}
+			if len(seen) != writers*perFile {
+				t.Fatalf("%d specimens stored, want %d", len(seen), writers*perFile)
+			}
+			for id, n := range seen {
+				if n != 1 {
+					t.Fatalf("specimen %s stored %d times", id, n)
+				}
+			}
+		})
+	}
+}

@@ -1,0 +1,199 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/render"
+	"lotproof/lots/store"
+	"lotproof/lots/trend"
+	"lotproof/lots/units"
+)
+
+type trendOptions struct {
+	DB    string
+	Specs []string
+	Trend trend.Options
+	Out   output
+}
+
+func newTrendCmd(g *globalOptions, st streams) *cobra.Command {
+	var o trendOptions
+	cmd := &cobra.Command{
+		Use:   "trend [--db URL] [--by supplier|material] [--property P] [--every quarter|month] [--since D] [--until D] [--baseline FROM..TO]",
+		Short: "Trend suppliers (or materials) by quarter or month from the lot history",
+		Long: `trend reads the lot history (see lotproof record) and prints, per supplier
+(or material), property and period: the number of lots and specimens, the
+mean and SD, Ppk against the specification minimum with a lower confidence
+bound, the estimated parts per million below the minimum and the lots
+rejected. It charts the lot means as individuals with moving-range limits and
+the lot SDs on an S chart, with limits from a baseline of periods (default:
+the first four), applies the Western Electric run rules, follows an EWMA of
+the lot means and tests for a shift between consecutive periods. Every
+signal is listed with its rule, period and lot.
+
+The minimum comes from the specification limits recorded with the imports,
+or from --spec files given here (these win).
+
+Trend signals support, and never replace, the governing specification,
+regulations, local codes and licensed engineering judgement.`,
+		Args: exactArgs(0, "no arguments (the data come from the database)"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			return runTrend(o, st)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&o.DB, "db", "", "database: a SQLite file or postgres://... URL (default: $LOTPROOF_DB or lotproof.db)")
+	f.StringArrayVar(&o.Specs, "spec", nil, "purchase specification file (YAML) giving the minimums; repeat for several materials")
+	f.StringVar(&o.Trend.By, "by", "supplier", "group by supplier or material")
+	f.StringVar(&o.Trend.Property, "property", "", "trend one property only (default: all)")
+	f.StringVar(&o.Trend.Every, "every", "quarter", "period: quarter or month")
+	f.StringVar(&o.Trend.Since, "since", "", "first test date included (YYYY-MM-DD)")
+	f.StringVar(&o.Trend.Until, "until", "", "last test date included (YYYY-MM-DD)")
+	f.StringVar(&o.Trend.Baseline, "baseline", "", "periods the control limits come from, FROM..TO (e.g. 2025-Q1..2025-Q4; default: the first four periods)")
+	f.Float64Var(&o.Trend.Confidence, "confidence", trend.DefaultConfidence, "confidence of the Ppk lower bound")
+	return cmd
+}
+
+func init() { register(newTrendCmd) }
+
+func runTrend(o trendOptions, st streams) error {
+	specs, err := readSpecs(o.Specs)
+	if err != nil {
+		return err
+	}
+	o.Trend.Limits = specLimits(specs)
+	ctx := context.Background()
+	url := store.ResolveURL(o.DB)
+	s, err := store.Open(ctx, url)
+	if err != nil {
+		return usageError{err}
+	}
+	defer s.Close()
+	res, err := trend.Compute(ctx, s, o.Trend)
+	if err != nil {
+		return err
+	}
+	if len(res.Periods) == 0 {
+		fmt.Fprintf(st.Err, "lotproof: %s holds no dated lots to trend (record results files first)\n", s.Where())
+	}
+	displayTrend(res, o.Out.System)
+	return emit(st.Out, func(w io.Writer) error {
+		if o.Out.Format == render.JSON {
+			return render.WriteJSON(w, res)
+		}
+		return writeTables(w, o.Out.Format, trendTables(res)...)
+	})
+}
+
+// displayTrend converts values from the stored (internal) units into the
+// display units of the chosen system, in place.
+func displayTrend(r *trend.Result, sys units.System) {
+	type conv struct {
+		sym string
+		f   func(float64) float64
+	}
+	cache := map[string]conv{}
+	get := func(stored string) conv {
+		if c, ok := cache[stored]; ok {
+			return c
+		}
+		c := conv{sym: stored, f: func(v float64) float64 { return v }}
+		if u, err := units.Parse(stored); err == nil {
+			d := u.Display(sys)
+			c = conv{sym: d.Symbol, f: func(v float64) float64 { return d.FromInternal(u.ToInternal(v)) }}
+		}
+		cache[stored] = c
+		return c
+	}
+	f := func(c conv, v *lots.Float) {
+		if !math.IsNaN(float64(*v)) {
+			*v = lots.Float(c.f(float64(*v)))
+		}
+	}
+	unitOf := map[[3]string]string{}
+	for i := range r.Periods {
+		p := &r.Periods[i]
+		unitOf[[3]string{p.Group, p.Material, p.Property}] = p.Unit
+		c := get(p.Unit)
+		p.Unit = c.sym
+		f(c, &p.Mean)
+		f(c, &p.SD)
+		f(c, &p.Minimum)
+	}
+	for i := range r.Series {
+		s := &r.Series[i]
+		c := get(s.Unit)
+		s.Unit = c.sym
+		for _, v := range []*lots.Float{&s.Center, &s.MRBar, &s.Sigma, &s.Lower, &s.Upper, &s.SBar} {
+			f(c, v)
+		}
+		for j := range s.Points {
+			p := &s.Points[j]
+			for _, v := range []*lots.Float{&p.Mean, &p.SD, &p.SLower, &p.SUpper, &p.EWMA, &p.EWMALow, &p.EWMAHigh} {
+				f(c, v)
+			}
+		}
+	}
+	for i := range r.Signals {
+		s := &r.Signals[i]
+		if s.Rule == "shift_welch" {
+			continue // p-value against α
+		}
+		c := get(unitOf[[3]string{s.Group, s.Material, s.Property}])
+		f(c, &s.Value)
+		f(c, &s.Limit)
+	}
+}
+
+func trendTables(r *trend.Result) []*render.Table {
+	num := func(v lots.Float, sig int) string { return render.Num(float64(v), sig) }
+	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
+		">lots", ">specimens", ">mean", ">sd", ">minimum", ">ppk", fmt.Sprintf(">ppk_lower"), ">ppm_below", ">judged", ">rejected")
+	for _, p := range r.Periods {
+		base := ""
+		if p.Baseline {
+			base = "yes"
+		}
+		pt.Add(p.Group, p.Material, p.Property, p.Unit, p.Period, base, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
+			num(p.Mean, 5), num(p.SD, 3), num(p.Minimum, 5), num(p.Ppk, 3), num(p.PpkLower, 3), num(p.PPMBelow, 3),
+			strconv.Itoa(p.LotsJudged), strconv.Itoa(p.LotsRejected))
+	}
+	pt.Notes = append(pt.Notes, r.Caution)
+	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
+	for _, s := range r.Signals {
+		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, num(s.Value, 5), num(s.Limit, 5), s.Detail)
+	}
+	if len(r.Signals) == 0 {
+		st.Note("no signals")
+	}
+	lt := render.NewTable("Control limits", r.By, "material", "property", "unit", "baseline", ">baseline_lots", ">centre", ">mr_bar", ">sigma", ">lcl", ">ucl", ">s_bar", "notes")
+	for _, s := range r.Series {
+		notes := ""
+		for i, n := range s.Notes {
+			if i > 0 {
+				notes += "; "
+			}
+			notes += n
+		}
+		lt.Add(s.Group, s.Material, s.Property, s.Unit, s.BaselineFrom+".."+s.BaselineTo, strconv.Itoa(s.BaselineLots),
+			num(s.Center, 5), num(s.MRBar, 3), num(s.Sigma, 3), num(s.Lower, 5), num(s.Upper, 5), num(s.SBar, 3), notes)
+	}
+	for _, m := range r.Methods {
+		lt.Note("%s", m)
+	}
+	for _, w := range r.Warnings {
+		lt.Note("warning: %s", w)
+	}
+	return []*render.Table{pt, st, lt}
+}
