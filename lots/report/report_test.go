@@ -28,6 +28,17 @@ func renderSample(t *testing.T) []byte {
 	return b.Bytes()
 }
 
+// dumpIfAsked writes a rendered page to $LOTPROOF_REPORT_DIR (when set)
+// for looking at it in a browser.
+func dumpIfAsked(t *testing.T, name string, b []byte) {
+	t.Helper()
+	if dir := os.Getenv("LOTPROOF_REPORT_DIR"); dir != "" {
+		if err := os.WriteFile(dir+"/"+name, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
 // walk calls f for every node of the tree.
 func walk(n *html.Node, f func(*html.Node)) {
 	f(n)

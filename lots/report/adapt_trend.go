@@ -1,0 +1,308 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"lotproof/lots/trend"
+)
+
+// PpkTarget is the Ppk below which a period is marked with a caution: 1.33
+// is the usual minimum for a characteristic in ongoing supply (common
+// practice); below 1.0 the period is marked as failing.
+const PpkTarget = 1.33
+
+// TrendSection lays out a supplier trend: the periods table (Ppk below
+// PpkTarget or a rejected lot marked), the signals, and for every series
+// its individuals chart of lot means and its EWMA chart, then per property
+// the period means and Ppk of every group. Values are shown in the units
+// the trend result carries.
+func TrendSection(r *trend.Result) (Section, error) {
+	sec := Section{Title: "Supplier trend"}
+	if r == nil || len(r.Periods) == 0 {
+		return sec, fmt.Errorf("report: the trend has no periods")
+	}
+	sec.Intro = fmt.Sprintf("Lots grouped by %s, periods of one %s%s.", r.By, r.Every, rangeText(r.Since, r.Until))
+
+	t := &Table{Title: "Periods", Columns: Cols(r.By, "property", "period", ">lots", ">specimens", ">mean", ">SD", ">minimum", ">Ppk", ">Ppk lower bound", ">ppm below", ">lots rejected")}
+	for _, p := range r.Periods {
+		period := p.Period
+		if p.Baseline {
+			period += " (baseline)"
+		}
+		ppk := Cell{Text: num(float64(p.Ppk), 3)}
+		switch v := float64(p.Ppk); {
+		case math.IsNaN(v):
+		case v < 1:
+			ppk.Status = Fail
+		case v < PpkTarget:
+			ppk.Status = Warn
+		default:
+			ppk.Status = OK
+		}
+		rej := Cell{Text: strconv.Itoa(p.LotsRejected) + " of " + strconv.Itoa(p.LotsJudged)}
+		if p.LotsRejected > 0 {
+			rej.Status = Fail
+		}
+		row := Cells(p.Group, p.Property+unitText(p.Unit), period, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
+			num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Minimum), 4))
+		row = append(row, ppk, Cell{Text: num(float64(p.PpkLower), 3)}, Cell{Text: num(float64(p.PPMBelow), 3)}, rej)
+		t.Rows = append(t.Rows, row)
+	}
+	t.Note = fmt.Sprintf("Ppk marks: %s at or above %.2f, %s from 1.00 to %.2f, %s below 1.00 (common practice). The lower bound is the one-sided confidence bound the trend states in its methods.",
+		OK.symbol(), PpkTarget, Warn.symbol(), PpkTarget, Fail.symbol())
+	sec.Blocks = append(sec.Blocks, t)
+
+	if len(r.Signals) > 0 {
+		st := &Table{Title: "Signals", Columns: Cols("rule", r.By, "property", "period", "lot", ">value", ">limit", "detail")}
+		for _, s := range r.Signals {
+			row := []Cell{{Text: s.Rule, Status: Warn}}
+			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, num(float64(s.Value), 4), num(float64(s.Limit), 4), s.Detail)...)
+			st.Rows = append(st.Rows, row)
+		}
+		sec.Blocks = append(sec.Blocks, st)
+	} else {
+		sec.Blocks = append(sec.Blocks, Paragraph("No rule signalled."))
+	}
+
+	for _, s := range r.Series {
+		blocks, err := seriesCharts(r, s)
+		if err != nil {
+			return sec, err
+		}
+		sec.Blocks = append(sec.Blocks, blocks...)
+	}
+
+	blocks, err := periodPlots(r)
+	if err != nil {
+		return sec, err
+	}
+	sec.Blocks = append(sec.Blocks, blocks...)
+
+	if len(r.Methods) > 0 {
+		sec.Blocks = append(sec.Blocks, List{Title: "Methods", Items: r.Methods})
+	}
+	if len(r.Warnings) > 0 {
+		sec.Blocks = append(sec.Blocks, List{Title: "Warnings", Items: r.Warnings})
+	}
+	if r.Caution != "" {
+		sec.Blocks = append(sec.Blocks, Paragraph(r.Caution))
+	}
+	return sec, nil
+}
+
+func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
+	if len(s.Points) == 0 {
+		return nil, nil
+	}
+	name := s.Group + ", " + s.Property
+	labels := make([]string, len(s.Points))
+	means := make([]float64, 0, len(s.Points))
+	var ewma, lo, hi []float64
+	index := map[string]int{}
+	for i, p := range s.Points {
+		labels[i] = p.Lot
+		index[p.Lot] = i
+		means = append(means, float64(p.Mean))
+		ewma = append(ewma, float64(p.EWMA))
+		lo = append(lo, float64(p.EWMALow))
+		hi = append(hi, float64(p.EWMAHigh))
+	}
+	var indSig, ewmaSig []int
+	for _, sg := range r.Signals {
+		if sg.Group != s.Group || sg.Property != s.Property || sg.Material != s.Material || sg.Lot == "" {
+			continue
+		}
+		i, ok := index[sg.Lot]
+		if !ok {
+			continue
+		}
+		switch {
+		case strings.HasPrefix(sg.Rule, "we"):
+			indSig = appendUnique(indSig, i)
+		case sg.Rule == "ewma":
+			ewmaSig = appendUnique(ewmaSig, i)
+		}
+	}
+	var out []Block
+	if finiteAll(means) && !math.IsNaN(float64(s.Center)) {
+		var lower, upper []float64
+		if !math.IsNaN(float64(s.Lower)) {
+			lower = []float64{float64(s.Lower)}
+		}
+		if !math.IsNaN(float64(s.Upper)) {
+			upper = []float64{float64(s.Upper)}
+		}
+		svg, err := ControlChart(ChartData{Title: "Lot means: " + name, XLabel: "lot, in test order", Quantity: "lot mean " + s.Property, Unit: s.Unit,
+			Labels: labels, Values: means, Centre: float64(s.Center), Lower: lower, Upper: upper, Signals: indSig, Name: "lot mean"})
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
+			Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.",
+				s.BaselineFrom, s.BaselineTo, s.BaselineLots, num(float64(s.Center), 4), num(float64(s.Lower), 4), num(float64(s.Upper), 4), s.Unit)})
+	}
+	if finiteAll(ewma) && !math.IsNaN(float64(s.Center)) {
+		svg, err := ControlChart(ChartData{Title: "EWMA: " + name, XLabel: "lot, in test order", Quantity: "EWMA of lot means", Unit: s.Unit,
+			Labels: labels, Values: ewma, Centre: float64(s.Center), Lower: lo, Upper: hi, Signals: ewmaSig, Name: "EWMA"})
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, &Figure{Title: "EWMA chart of lot means, " + name, SVG: svg,
+			Caption: "Limits widen to their asymptote over the first lots. Circled: lots where the EWMA left its limits."})
+	}
+	return out, nil
+}
+
+// periodPlots draws, for every property (and material), the period means
+// and the period Ppk of each group.
+func periodPlots(r *trend.Result) ([]Block, error) {
+	type key struct{ material, property string }
+	var keys []key
+	periods := map[key]map[string]bool{}
+	for _, p := range r.Periods {
+		k := key{p.Material, p.Property}
+		if periods[k] == nil {
+			periods[k] = map[string]bool{}
+			keys = append(keys, k)
+		}
+		periods[k][p.Period] = true
+	}
+	var out []Block
+	for _, k := range keys {
+		var ps []string
+		for p := range periods[k] {
+			ps = append(ps, p)
+		}
+		sort.Strings(ps)
+		at := map[string]int{}
+		for i, p := range ps {
+			at[p] = i
+		}
+		var groups []string
+		mean := map[string][]float64{}
+		ppk := map[string][]float64{}
+		unit := ""
+		minimum := math.NaN()
+		for _, p := range r.Periods {
+			if p.Material != k.material || p.Property != k.property {
+				continue
+			}
+			if mean[p.Group] == nil {
+				groups = append(groups, p.Group)
+				mean[p.Group], ppk[p.Group] = nans(len(ps)), nans(len(ps))
+			}
+			mean[p.Group][at[p.Period]] = float64(p.Mean)
+			ppk[p.Group][at[p.Period]] = float64(p.Ppk)
+			unit = p.Unit
+			if !math.IsNaN(float64(p.Minimum)) {
+				minimum = float64(p.Minimum)
+			}
+		}
+		title := k.property
+		if k.material != "" {
+			title += ", " + k.material
+		}
+		var ms, ks []TrendSeries
+		anyPpk := false
+		for _, g := range groups {
+			ms = append(ms, TrendSeries{Label: g, Values: mean[g]})
+			ks = append(ks, TrendSeries{Label: g, Values: ppk[g]})
+			if !allNaN(ppk[g]) {
+				anyPpk = true
+			}
+		}
+		var lines []RefLine
+		if !math.IsNaN(minimum) {
+			lines = append(lines, RefLine{Label: "spec minimum " + num(minimum, 4) + unitSuffix(unit), Value: minimum})
+		}
+		svg, err := TrendPlot(TrendData{Title: "Period mean: " + title, Quantity: "mean " + k.property, Unit: unit, Periods: ps, Series: ms, Lines: lines})
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, &Figure{Title: "Mean by " + r.Every + " and " + r.By + ", " + title, SVG: svg,
+			Caption: "Mean of every specimen tested in the period; a gap is a period without lots."})
+		if anyPpk {
+			svg, err := TrendPlot(TrendData{Title: "Period Ppk: " + title, Quantity: "Ppk (lower)", Periods: ps, Series: ks,
+				Lines: []RefLine{{Label: fmt.Sprintf("Ppk %.2f", PpkTarget), Value: PpkTarget}, {Label: "Ppk 1.00", Value: 1}}})
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, &Figure{Title: "Ppk by " + r.Every + " and " + r.By + ", " + title, SVG: svg,
+				Caption: "Ppk = (mean - minimum) / (3 SD) of the period's specimens (point estimate; the table gives the lower confidence bound)."})
+		}
+	}
+	return out, nil
+}
+
+func nans(n int) []float64 {
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = math.NaN()
+	}
+	return out
+}
+
+func allNaN(xs []float64) bool {
+	for _, x := range xs {
+		if !math.IsNaN(x) {
+			return false
+		}
+	}
+	return true
+}
+
+func finiteAll(xs []float64) bool {
+	for _, x := range xs {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return len(xs) > 0
+}
+
+func appendUnique(xs []int, x int) []int {
+	for _, v := range xs {
+		if v == x {
+			return xs
+		}
+	}
+	return append(xs, x)
+}
+
+// num formats a number with sig significant digits; "-" for a missing value.
+func num(v float64, sig int) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "-"
+	}
+	return strconv.FormatFloat(v, 'g', sig, 64)
+}
+
+func unitText(u string) string {
+	if u == "" {
+		return ""
+	}
+	return " [" + u + "]"
+}
+
+func unitSuffix(u string) string {
+	if u == "" {
+		return ""
+	}
+	return " " + u
+}
+
+func rangeText(since, until string) string {
+	switch {
+	case since != "" && until != "":
+		return ", " + since + " to " + until
+	case since != "":
+		return ", from " + since
+	case until != "":
+		return ", to " + until
+	}
+	return ""
+}
