@@ -10,8 +10,6 @@
 package reduce
 
 import (
-	"bufio"
-	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -107,12 +105,21 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		recs = append(recs, cur)
 		cur = nil
 	}
-	sc := bufio.NewScanner(bytes.NewReader(data))
-	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	// One copy of the whole input; lines and fields are substrings of it
+	// (metadata values are cloned so results do not keep it alive).
+	all := string(data)
+	var fields []string
+	var cols []int
 	var fscale, lscale, egauge float64
-	for sc.Scan() {
+	for pos := 0; pos < len(all); {
+		var raw string
+		if end := strings.IndexByte(all[pos:], '\n'); end < 0 {
+			raw, pos = all[pos:], len(all)
+		} else {
+			raw, pos = all[pos:pos+end], pos+end+1
+		}
+		raw = strings.TrimSuffix(raw, "\r")
 		lineNo++
-		raw := sc.Text()
 		if lineNo == 1 {
 			raw = strings.TrimPrefix(raw, "\uFEFF")
 		}
@@ -143,6 +150,15 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 			}
 			var ok bool
 			fscale, lscale, egauge, strainU, columns, ok = cur.applyMeta(meta, lineNo, add)
+			// Size the data slices from the rows up to the next @end.
+			rest := all[pos:]
+			if k := strings.Index(rest, "@end"); k >= 0 {
+				rest = rest[:k]
+			}
+			rows := strings.Count(rest, "\n") + 1
+			cur.Force = make([]float64, 0, rows)
+			cur.Strain = make([]float64, 0, rows)
+			cur.Lines = make([]int, 0, rows)
 			skip = !ok
 			if !ok {
 				// The data cannot be read without its units; skip to @end.
@@ -175,13 +191,13 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 				continue
 			}
 			col := strings.Index(raw, ":") + 2 + len(v) - len(strings.TrimLeft(v, " \t"))
-			meta[key] = metaKey{lineNo, col, strings.TrimSpace(v)}
+			meta[key] = metaKey{lineNo, col, strings.Clone(strings.TrimSpace(v))}
 			continue
 		}
 		if columns == nil {
 			continue
 		}
-		fields, cols := splitFields(raw)
+		fields, cols = splitFields(raw, fields[:0], cols[:0])
 		if len(fields) != len(columns) {
 			c := 1
 			if len(cols) > 0 {
@@ -216,9 +232,6 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		cur.Strain = append(cur.Strain, x)
 		cur.Lines = append(cur.Lines, lineNo)
 	}
-	if err := sc.Err(); err != nil {
-		add(lineNo+1, 1, fmt.Sprintf("cannot read the file: %v", err), "data lines must be shorter than 1 MiB")
-	}
 	if cur != nil {
 		add(lineNo, 1, fmt.Sprintf("record %q (started on line %d) ends without @end: the file looks truncated", cur.ID, cur.Line),
 			"check that the whole file was copied; every record ends with a line \"@end\"")
@@ -241,10 +254,8 @@ func clip(s string) string {
 }
 
 // splitFields splits a data row on blanks, tabs, commas or semicolons and
-// returns the fields with their 1-based byte columns.
-func splitFields(line string) ([]string, []int) {
-	var f []string
-	var c []int
+// returns the fields with their 1-based byte columns, appended to f and c.
+func splitFields(line string, f []string, c []int) ([]string, []int) {
 	start := -1
 	for i := 0; i <= len(line); i++ {
 		sep := i == len(line)

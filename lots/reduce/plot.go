@@ -29,7 +29,7 @@ func PlotSVG(r *Result) ([]byte, error) {
 	p.Title.Text = r.ID
 	p.X.Label.Text = "engineering strain [%]"
 	p.Y.Label.Text = "engineering stress [MPa]"
-	p.Legend.Top = true
+	p.Legend.Top = false
 	p.Legend.Left = false
 	p.Add(plotter.NewGrid())
 

@@ -69,7 +69,28 @@ func (r *Result) warn(format string, a ...any) {
 }
 func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.Sprintf(format, a...)) }
 
-// Reduce computes the properties of one record. It returns a
+// Reduce computes the properties of one record:
+//   - engineering stress F/S0 and strain (extension/Le);
+//   - the modulus E as the least-squares slope over the linear region
+//     (ASTM E111, see elasticRange and fitLine), with toe compensation
+//     (the strain origin moved to the strain intercept of that line, as
+//     in ASTM E111 and the ASTM E8/E8M offset-method figure);
+//   - proof strength by the offset method (ISO 6892-1 clause 12; ASTM
+//     E8/E8M offset method), ReH and ReL (ISO 6892-1 clauses 10, 11);
+//   - tensile strength Rm = Fm/S0 (ISO 6892-1 clause 19) and the plastic
+//     extension at maximum force Ag = e(Fm) - Rm/E (clause 16);
+//   - elongation after fracture A = (Lu - L0)/L0 from the final gauge
+//     length, or from the record as the strain at fracture less the
+//     elastic part stress/E (clause 20; ASTM E8/E8M elongation);
+//   - reduction of area Z = (S0 - Su)/S0 (clause 21; ASTM E8/E8M);
+//   - toughness (see toughness) and modulus of resilience Rp^2/(2E)
+//     (the elastic strain energy per volume at Rp; handbook definition,
+//     e.g. Dowling, Mechanical Behavior of Materials; from memory).
+//
+// ISO 6892-1:2019 and ASTM E8/E8M clause numbers are from memory; check
+// the edition in force.
+//
+// It returns a
 // *lots.InputError when the record cannot be used at all (stresses or
 // strains that no metal tensile test gives, which usually means a wrong
 // unit); a property that cannot be determined for this specimen is NaN
@@ -88,6 +109,21 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		ExtensometerElongation: nan, ToeShift: nan, Offset: off,
 		ProofStrain: nan, TensileStrain: nan, FractureStrain: nan, Noise: nan,
 		Points: len(rec.Force),
+	}
+	if len(rec.Force) < 3 || len(rec.Strain) != len(rec.Force) || (rec.Lines != nil && len(rec.Lines) != len(rec.Force)) {
+		return nil, lots.Inputf(res.Source, "give force and strain for every point, at least 3 points", "record %q has %d forces, %d strains and %d line numbers", rec.ID, len(rec.Force), len(rec.Strain), len(rec.Lines))
+	}
+	for i := range rec.Force {
+		if math.IsNaN(rec.Force[i]) || math.IsInf(rec.Force[i], 0) || math.IsNaN(rec.Strain[i]) || math.IsInf(rec.Strain[i], 0) {
+			return nil, lots.Inputf(res.Source, "remove or correct the point", "record %q: point %d is not finite", rec.ID, i+1)
+		}
+	}
+	lines := rec.Lines
+	if lines == nil {
+		lines = make([]int, len(rec.Force))
+		for i := range lines {
+			lines[i] = i + 1
+		}
 	}
 	if !(rec.Area > 0) || !(rec.Gauge > 0) {
 		return nil, lots.Inputf(res.Source, "give the original cross-section and gauge length", "record %q has no usable cross-section or gauge length", rec.ID)
@@ -108,7 +144,7 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		}
 		x = append(x, rec.Strain[i])
 		s = append(s, st)
-		ln = append(ln, rec.Lines[i])
+		ln = append(ln, lines[i])
 	}
 	if res.Duplicates > 0 {
 		res.note("%d repeated data points (same force and extension as the point before) left out", res.Duplicates)
@@ -303,13 +339,11 @@ func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Recor
 	}
 	typ := 0.0
 	if len(steps) > 0 {
-		sort.Float64s(steps)
-		typ = steps[len(steps)/2]
+		typ = selectK(steps, len(steps)/2)
 	}
-	ox, os, ol := x[:1:1], s[:1:1], ln[:1:1]
-	ox = append([]float64(nil), ox...)
-	os = append([]float64(nil), os...)
-	ol = append([]int(nil), ol...)
+	ox := append(make([]float64, 0, len(x)), x[0])
+	os := append(make([]float64, 0, len(x)), s[0])
+	ol := append(make([]int, 0, len(x)), ln[0])
 	back := 0
 	for i := 1; i < len(x); {
 		if x[i] > ox[len(ox)-1] {
@@ -401,19 +435,21 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 		pxy[i+1] = pxy[i] + dx*dy
 		pyy[i+1] = pyy[i] + dy*dy
 	}
-	first := func(thr float64) int {
-		for i := 0; i < n; i++ {
-			if s[i] >= thr {
-				return i
-			}
+	// The first index whose stress reaches thr is the first index whose
+	// running maximum does; the running maximum is sorted.
+	runMax := make([]float64, n)
+	for i := 0; i < n; i++ {
+		runMax[i] = s[i]
+		if i > 0 && runMax[i-1] > s[i] {
+			runMax[i] = runMax[i-1]
 		}
-		return n
 	}
+	first := func(thr float64) int { return sort.SearchFloat64s(runMax, thr) }
 	type win struct {
 		lo, hi    int
 		slope, se float64
 	}
-	var cands []win
+	cands := make([]win, 0, 29*33)
 	const step = 0.025
 	for ai := 0; ai <= 28; ai++ {
 		a := float64(ai) * step
@@ -747,6 +783,48 @@ func noiseSD(s []float64) float64 {
 	for i := 1; i < len(s)-1; i++ {
 		d[i-1] = math.Abs(s[i-1] - 2*s[i] + s[i+1])
 	}
-	sort.Float64s(d)
-	return d[len(d)/2] / (normQ75 * math.Sqrt(6))
+	return selectK(d, len(d)/2) / (normQ75 * math.Sqrt(6))
+}
+
+// selectK returns the k-th smallest value of v (0-based), reordering v:
+// Hoare's selection algorithm FIND (Comm. ACM 4(7), 1961, Algorithm 65)
+// with a median-of-three pivot; expected O(n).
+func selectK(v []float64, k int) float64 {
+	lo, hi := 0, len(v)-1
+	for lo < hi {
+		mid := lo + (hi-lo)/2
+		if v[mid] < v[lo] {
+			v[mid], v[lo] = v[lo], v[mid]
+		}
+		if v[hi] < v[lo] {
+			v[hi], v[lo] = v[lo], v[hi]
+		}
+		if v[hi] < v[mid] {
+			v[hi], v[mid] = v[mid], v[hi]
+		}
+		pivot := v[mid]
+		i, j := lo, hi
+		for i <= j {
+			for v[i] < pivot {
+				i++
+			}
+			for v[j] > pivot {
+				j--
+			}
+			if i <= j {
+				v[i], v[j] = v[j], v[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return v[k]
+		}
+	}
+	return v[k]
 }

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"math"
+	"math/rand/v2"
+	"sort"
 	"strings"
 	"testing"
 
@@ -630,5 +632,76 @@ func TestSynthesizeDeterministic(t *testing.T) {
 	bad.Rm = bad.Rp
 	if _, err := Synthesize(bad); err == nil {
 		t.Error("Rm = Rp accepted")
+	}
+}
+
+// TestSelectK: the selection agrees with sorting (sort.Float64s, the
+// standard library's reference) on random data with ties, for every k.
+func TestSelectK(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for _, n := range []int{1, 2, 3, 10, 101, 1000} {
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = float64(rng.IntN(n/2 + 1))
+		}
+		sorted := append([]float64(nil), v...)
+		sort.Float64s(sorted)
+		for k := 0; k < n; k++ {
+			w := append([]float64(nil), v...)
+			if got := selectK(w, k); got != sorted[k] {
+				t.Fatalf("n %d k %d: %g, want %g", n, k, got, sorted[k])
+			}
+		}
+	}
+}
+
+// TestNoPanic: every truncation and some corruptions of a record give a
+// result or an error, never a panic; so do hand-built records.
+func TestNoPanic(t *testing.T) {
+	sp := alu
+	sp.Points = 200
+	b, err := Synthesize(sp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	try := func(data []byte) {
+		defer func() {
+			if p := recover(); p != nil {
+				t.Fatalf("panic on %d bytes: %v", len(data), p)
+			}
+		}()
+		recs, err := ParseBytes(data, "f.rec")
+		if err == nil {
+			ReduceAll(recs, Options{})
+			ReduceAll(recs, Options{ModulusFrom: 10, ModulusTo: 11})
+		}
+	}
+	for n := 0; n <= len(b); n += 7 {
+		try(b[:n])
+		cut := append(append([]byte(nil), b[:n]...), "\n@end\n"...)
+		try(cut)
+	}
+	for i := 0; i < len(b); i += 211 {
+		c := append([]byte(nil), b...)
+		c[i] = '-'
+		try(c)
+	}
+	nan := math.NaN()
+	for _, rec := range []*Record{
+		{}, {Force: []float64{1, 2, 3}, Strain: []float64{0, 1}},
+		{Area: 1, Gauge: 1, Force: []float64{1, nan, 3}, Strain: []float64{0, 1, 2}},
+		{Area: 1, Gauge: 1, Force: []float64{0, 0, 0, 0}, Strain: []float64{0, 0, 0, 0}},
+		{Area: 1, Gauge: 1, Force: []float64{1, 2, 3, 4}, Strain: []float64{0.1, 0.1, 0.1, 0.1}},
+	} {
+		func() {
+			defer func() {
+				if p := recover(); p != nil {
+					t.Fatalf("panic on %+v: %v", rec, p)
+				}
+			}()
+			if _, err := Reduce(rec, Options{}); err == nil {
+				t.Errorf("no error for %+v", rec)
+			}
+		}()
 	}
 }
