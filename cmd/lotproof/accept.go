@@ -1,0 +1,175 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/acceptance"
+	"lotproof/lots/render"
+	"lotproof/spec"
+)
+
+type acceptOptions struct {
+	Data  string
+	Specs []string
+	Input inputOptions
+	Out   output
+}
+
+func newAcceptCmd(g *globalOptions, st streams) *cobra.Command {
+	var o acceptOptions
+	cmd := &cobra.Command{
+		Use:   "accept DATA --spec SPEC.yaml [--spec SPEC2.yaml ...]",
+		Short: "Judge every lot against its purchase specification with stated confidence",
+		Long: `accept judges every lot (or heat) of a specimen results file against the
+specification whose material matches the lot's material (see spec/SCHEMA.md).
+
+For each lot and limit it prints n, mean, SD, the extreme individual value,
+a one-sided confidence bound on the mean, the one-sided normal tolerance
+bound at the specification's content p and confidence gamma, the estimated
+fraction beyond the limit (Lieberman-Resnikoff minimum-variance unbiased
+estimator) with its upper confidence bound (noncentral t), and a verdict:
+
+  conforming     the tolerance bound meets the limit (at least p of the lot
+                 meets it with confidence gamma), with enough specimens and
+                 no rejecting individual value;
+  nonconforming  an individual value is beyond the limit (when the
+                 specification rejects on individual values), or the data
+                 show with confidence gamma that more than 1-p of the lot is
+                 beyond the limit;
+  undecided      neither: the confidence is not reached. The number of
+                 specimens that would reach it at the observed mean and SD
+                 is given, or "not reachable" when the mean is too close to
+                 the limit.
+
+The lot's verdict is its worst limit's. Each lot is screened with the
+maximum normed residual test (alpha 0.05); flagged values are reported and
+kept. Exit status: 0 when every lot conforms, 1 when any lot is
+nonconforming, undecided or not judged, 2 on bad input.`,
+		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			o.Data = args[0]
+			return runAccept(o, st)
+		},
+	}
+	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
+	addInputFlags(cmd, &o.Input)
+	return cmd
+}
+
+func init() { register(newAcceptCmd) }
+
+// readSpecs reads every specification file.
+func readSpecs(names []string) ([]*spec.Spec, error) {
+	if len(names) == 0 {
+		return nil, usageError{fmt.Errorf("give at least one --spec file")}
+	}
+	var out []*spec.Spec
+	for _, n := range names {
+		s, err := spec.ReadFile(n)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, s)
+	}
+	return out, nil
+}
+
+func runAccept(o acceptOptions, st streams) error {
+	specs, err := readSpecs(o.Specs)
+	if err != nil {
+		return err
+	}
+	d, by, err := readData(o.Data, o.Input, st)
+	if err != nil {
+		return err
+	}
+	res, err := acceptance.Judge(d, specs, by)
+	if err != nil {
+		return err
+	}
+	shown := res.Display(o.Out.System)
+	err = emit(st.Out, func(w io.Writer) error {
+		if o.Out.Format == render.JSON {
+			return render.WriteJSON(w, shown)
+		}
+		return writeTables(w, o.Out.Format, acceptTables(shown)...)
+	})
+	if err != nil {
+		return err
+	}
+	c := res.Counts
+	if c.Nonconforming+c.Undecided+c.NotJudged > 0 {
+		return verdictError{fmt.Sprintf("%d of %d lots conforming, %d nonconforming, %d undecided, %d not judged",
+			c.Conforming, len(res.Lots), c.Nonconforming, c.Undecided, c.NotJudged)}
+	}
+	return nil
+}
+
+// acceptTables lays the result out as a lot table, a limit table and (when
+// any value was flagged) an outlier table.
+func acceptTables(r *acceptance.Result) []*render.Table {
+	by := r.GroupBy
+	lt := render.NewTable("Lot verdicts", by, "supplier", "material", "spec", ">n", "verdict", "reasons")
+	pt := render.NewTable("Limits", by, "property", "side", "unit", ">limit", ">n", ">mean", ">sd", ">extreme", ">mean bound", ">k", ">tol. bound", ">frac. est", ">frac. upper", "verdict", ">needed n")
+	var ot *render.Table
+	for _, l := range r.Lots {
+		lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, strings.Join(l.Reasons, "; "))
+		for _, p := range l.Properties {
+			need := ""
+			switch {
+			case p.NeededN < 0:
+				need = "not reachable"
+			case p.NeededN > acceptance.MaxPlannedSpecimens:
+				need = ">" + strconv.Itoa(acceptance.MaxPlannedSpecimens)
+			case p.NeededN > 0:
+				need = strconv.Itoa(p.NeededN)
+			}
+			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.Num(float64(p.Limit), 4), strconv.Itoa(p.N),
+				render.Num(float64(p.Mean), 4), render.Num(float64(p.SD), 3), render.Num(float64(p.Extreme), 4),
+				render.Num(float64(p.MeanBound), 4), render.Fixed(float64(p.K), 3), render.Num(float64(p.ToleranceBound), 4),
+				fraction(p.FractionEstimate), fraction(p.FractionUpper), p.Verdict, need)
+		}
+		for _, f := range l.Outliers {
+			if ot == nil {
+				ot = render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
+			}
+			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.Num(float64(f.Value), 4), render.Fixed(f.MNR, 3), render.Fixed(f.Critical, 3), strconv.Itoa(f.Line))
+		}
+	}
+	c := r.Counts
+	lt.Note("%d lots: %d conforming, %d nonconforming, %d undecided, %d not judged.", len(r.Lots), c.Conforming, c.Nonconforming, c.Undecided, c.NotJudged)
+	for _, s := range r.Specs {
+		lt.Note("Specification %s rev %s (%s): content %g, confidence %g, at least %d specimens.", s.ID, s.Revision, s.Material, s.Content, s.Confidence, s.MinN)
+	}
+	lt.Note("Source %s, SHA-256 %s.", r.Source, r.Digest)
+	pt.Note("Method: %s.", r.Method)
+	out := []*render.Table{lt, pt}
+	if ot != nil {
+		out = append(out, ot)
+	}
+	last := out[len(out)-1]
+	for _, c := range r.Cautions {
+		last.Note("Caution: %s", c)
+	}
+	return out
+}
+
+// fraction shows a fraction with 3 significant digits ("-" when missing).
+func fraction(f lots.Float) string {
+	v := float64(f)
+	if math.IsNaN(v) {
+		return "-"
+	}
+	return strconv.FormatFloat(v, 'g', 3, 64)
+}

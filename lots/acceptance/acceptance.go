@@ -1,0 +1,510 @@
+// Package acceptance judges incoming lots against purchase specifications
+// (package spec): per lot and property the mean, SD, extreme individual,
+// a confidence bound on the mean, the one-sided normal tolerance bound at
+// the specification's content and confidence, the estimated fraction
+// beyond the limit with confidence bounds, a verdict with its reasons, and
+// the maximum-normed-residual screen of the lot's values.
+//
+// Judge is the domain call used by the accept command, the history store
+// and the demo report.
+package acceptance
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"lotproof/lots"
+	"lotproof/lots/units"
+	"lotproof/spec"
+	"lotproof/stats"
+)
+
+// Verdicts.
+const (
+	Conforming    = "conforming"
+	Nonconforming = "nonconforming"
+	Undecided     = "undecided"
+	NotJudged     = "not judged"
+)
+
+// OutlierAlpha is the significance level of the maximum normed residual
+// screen applied to every lot.
+const OutlierAlpha = 0.05
+
+// MaxPlannedSpecimens caps the search for the number of specimens an
+// undecided lot would need.
+const MaxPlannedSpecimens = 10000
+
+// Caution is shown with every acceptance result.
+const Caution = "A verdict is statistical support for the inspector's decision under the governing specification and local practice; it does not replace the specification, regulations, local codes or licensed engineering judgement. Normal distribution of each property within a lot is assumed."
+
+// Result is the judgement of every lot in a dataset.
+type Result struct {
+	Source   string      `json:"source"`
+	Digest   string      `json:"sha256"`
+	GroupBy  string      `json:"group_by"`
+	Specs    []SpecRef   `json:"specifications"`
+	Method   string      `json:"method"`
+	Lots     []LotResult `json:"lots"`
+	Counts   Counts      `json:"counts"`
+	Cautions []string    `json:"cautions"`
+}
+
+// SpecRef identifies a specification used.
+type SpecRef struct {
+	ID         string  `json:"id"`
+	Revision   string  `json:"revision"`
+	Material   string  `json:"material"`
+	Source     string  `json:"source"`
+	Content    float64 `json:"content"`
+	Confidence float64 `json:"confidence"`
+	MinN       int     `json:"min_specimens"`
+}
+
+// Counts tallies lot verdicts.
+type Counts struct {
+	Conforming    int `json:"conforming"`
+	Nonconforming int `json:"nonconforming"`
+	Undecided     int `json:"undecided"`
+	NotJudged     int `json:"not_judged"`
+}
+
+// LotResult is the judgement of one lot (or heat).
+type LotResult struct {
+	Lot        string           `json:"lot"`
+	Supplier   string           `json:"supplier"`
+	Material   string           `json:"material"`
+	Spec       string           `json:"spec"` // "ID rev R", empty when not judged
+	Verdict    string           `json:"verdict"`
+	N          int              `json:"n"` // specimens in the lot
+	Properties []PropertyResult `json:"properties"`
+	Reasons    []string         `json:"reasons"`
+	Outliers   []Outlier        `json:"outliers"`
+	Cautions   []string         `json:"cautions"`
+}
+
+// PropertyResult is the judgement of one property of a lot against one
+// limit (a property with a minimum and a maximum gives two). Values are in
+// Unit (internal units from Judge; see Display).
+type PropertyResult struct {
+	Property string     `json:"property"`
+	Side     string     `json:"side"` // "min" or "max"
+	Unit     string     `json:"unit"`
+	Limit    lots.Float `json:"limit"`
+	N        int        `json:"n"`
+	Mean     lots.Float `json:"mean"`
+	SD       lots.Float `json:"sd"`
+	// Extreme is the minimum individual value (side min) or the maximum
+	// (side max).
+	Extreme lots.Float `json:"extreme"`
+	// MeanBound is the one-sided confidence bound on the mean at the
+	// specification's confidence: lower for a minimum, upper for a maximum.
+	MeanBound lots.Float `json:"mean_bound"`
+	// K is the one-sided normal tolerance factor for (content, confidence, n).
+	K lots.Float `json:"k"`
+	// ToleranceBound is mean - k*SD (minimum) or mean + k*SD (maximum).
+	ToleranceBound lots.Float `json:"tolerance_bound"`
+	// Fraction* are the estimated fraction of the lot beyond the limit
+	// (Lieberman-Resnikoff MVUE) and its confidence bounds at the
+	// specification's confidence.
+	FractionEstimate lots.Float `json:"fraction_estimate"`
+	FractionUpper    lots.Float `json:"fraction_upper"`
+	FractionLower    lots.Float `json:"fraction_lower"`
+	Beyond           int        `json:"beyond_limit"` // individual values beyond the limit
+	Verdict          string     `json:"verdict"`
+	// MoreSpecimens: for an undecided property, the total number of
+	// specimens that would reach the confidence at the observed mean and SD
+	// (0 when not applicable, -1 when not reachable).
+	NeededN int      `json:"needed_n"`
+	Reasons []string `json:"reasons"`
+}
+
+// Outlier is a value flagged by the maximum normed residual test. It is
+// reported, never removed: the lot's figures include it.
+type Outlier struct {
+	Specimen string     `json:"specimen"`
+	Property string     `json:"property"`
+	Value    lots.Float `json:"value"`
+	Unit     string     `json:"unit"`
+	MNR      float64    `json:"mnr"`
+	Critical float64    `json:"critical"`
+	Line     int        `json:"line"`
+}
+
+// Method describes the computation (shown with every result).
+const Method = "per lot and limit: one-sided normal tolerance bound mean -/+ k*SD with k the exact factor from the noncentral t (content p, confidence gamma of the specification); fraction beyond the limit estimated by the Lieberman-Resnikoff (1955) minimum-variance unbiased estimator, with confidence bounds from the noncentral t; t-based confidence bound on the mean; maximum normed residual screen at alpha 0.05 (flagged values are kept)"
+
+// Judge judges every lot (grouped by by) of d against the specification
+// that governs its material (spec.ForMaterial). Every property a given
+// specification names must be a column of d with a compatible unit;
+// otherwise Judge returns a *lots.InputError located at the specification
+// entry.
+func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error) {
+	if d == nil || len(specs) == 0 {
+		return nil, lots.Inputf("accept", "give at least one --spec file", "no specification given")
+	}
+	if err := spec.CheckSet(specs); err != nil {
+		return nil, err
+	}
+	var ps []lots.Problem
+	for _, s := range specs {
+		for _, l := range s.Limits {
+			i := d.Property(l.Property)
+			if i < 0 {
+				ps = append(ps, lots.Problem{Where: l.Where, What: fmt.Sprintf("%s names property %q but %s has no such column (columns: %s)", s.Label(), l.Property, d.Source, strings.Join(d.PropertyNames(), ", ")), Fix: "add the column to the data or correct the property name"})
+				continue
+			}
+			if pu := d.Properties[i].Unit; !units.Compatible(pu, l.Unit) {
+				ps = append(ps, lots.Problem{Where: l.Where, What: fmt.Sprintf("%s gives %q in %s (%s) but %s has it in %s (%s); they cannot be compared", s.Label(), l.Property, l.Unit.Symbol, l.Unit.Quantity, d.Source, pu.Symbol, pu.Quantity), Fix: "use the same quantity (and for hardness the same scale) in the specification and the data"})
+			}
+		}
+	}
+	if len(ps) > 0 {
+		if len(ps) > lots.MaxProblems {
+			return nil, &lots.InputError{Problems: ps[:lots.MaxProblems], More: len(ps) - lots.MaxProblems}
+		}
+		return nil, &lots.InputError{Problems: ps}
+	}
+	groups, err := d.Group(by, nil)
+	if err != nil {
+		return nil, lots.Inputf(d.Source, "group by lot, or fill the heat column", "%v", err)
+	}
+	res := &Result{Source: d.Source, Digest: d.Digest, GroupBy: string(by), Method: Method, Cautions: []string{Caution}}
+	for _, s := range specs {
+		res.Specs = append(res.Specs, SpecRef{ID: s.ID, Revision: s.Revision, Material: s.Material, Source: s.Source,
+			Content: s.Acceptance.Content, Confidence: s.Acceptance.Confidence, MinN: s.Acceptance.MinSpecimens})
+	}
+	for _, g := range groups {
+		lr, err := judgeLot(d, g, specs)
+		if err != nil {
+			return nil, err
+		}
+		switch lr.Verdict {
+		case Conforming:
+			res.Counts.Conforming++
+		case Nonconforming:
+			res.Counts.Nonconforming++
+		case Undecided:
+			res.Counts.Undecided++
+		default:
+			res.Counts.NotJudged++
+		}
+		res.Lots = append(res.Lots, lr)
+	}
+	return res, nil
+}
+
+var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
+
+func judgeLot(d *lots.Dataset, g lots.Group, specs []*spec.Spec) (LotResult, error) {
+	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: len(g.Specimens),
+		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
+	if g.Mixed {
+		lr.Reasons = append(lr.Reasons, "the lot's specimens disagree on supplier or material; the first is used")
+	}
+	s, why := spec.ForMaterial(specs, g.Material)
+	if s == nil {
+		lr.Verdict = NotJudged
+		lr.Reasons = append(lr.Reasons, why)
+		return lr, nil
+	}
+	lr.Spec = s.Label()
+	lr.Verdict = Conforming
+	worst := map[string][]string{}
+	for _, l := range s.Limits {
+		pi := d.Property(l.Property)
+		vals, idx := d.Values(pi, g.Specimens)
+		ids := make([]string, len(idx))
+		for j, i := range idx {
+			ids[j] = d.Specimens[i].ID
+		}
+		for _, side := range []string{"min", "max"} {
+			if (side == "min" && !l.HasMin()) || (side == "max" && !l.HasMax()) {
+				continue
+			}
+			pr, err := judgeSide(l, side, vals, ids, s.Acceptance)
+			if err != nil {
+				return lr, err
+			}
+			pr.Unit = units.Internal(l.Unit.Quantity).Symbol
+			if l.Unit.Quantity == units.Hardness {
+				pr.Unit = l.Unit.Symbol
+			}
+			if rank[pr.Verdict] > rank[lr.Verdict] {
+				lr.Verdict = pr.Verdict
+			}
+			if pr.Verdict != Conforming {
+				worst[pr.Verdict] = append(worst[pr.Verdict], pr.Property+" ("+pr.Side+")")
+			}
+			lr.Properties = append(lr.Properties, pr)
+		}
+		// Outlier screen (flag, never delete).
+		if len(vals) >= 3 {
+			fl, err := stats.ScreenOutliers(vals, OutlierAlpha, true)
+			if err == nil {
+				for _, f := range fl {
+					sp := d.Specimens[idx[f.Index]]
+					lr.Outliers = append(lr.Outliers, Outlier{Specimen: sp.ID, Property: l.Property, Value: lots.Float(f.Value),
+						Unit: unitLabel(l.Unit), MNR: f.MNR, Critical: f.Critical, Line: sp.Line})
+				}
+			} else if !errors.Is(err, stats.ErrZeroSpread) {
+				return lr, fmt.Errorf("outlier screen of lot %s, %s: %w", g.Key, l.Property, err)
+			}
+		}
+	}
+	switch lr.Verdict {
+	case Conforming:
+		lr.Reasons = append(lr.Reasons, fmt.Sprintf("every limit of %s is met with confidence %g for content %g", s.Label(), s.Acceptance.Confidence, s.Acceptance.Content))
+	case Nonconforming:
+		lr.Reasons = append(lr.Reasons, "nonconforming: "+strings.Join(worst[Nonconforming], ", "))
+		if u := worst[Undecided]; len(u) > 0 {
+			lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(u, ", "))
+		}
+	case Undecided:
+		lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(worst[Undecided], ", "))
+	}
+	if lr.Verdict != Conforming && s.Acceptance.Retests > 0 {
+		lr.Reasons = append(lr.Reasons, fmt.Sprintf("%s allows %d retest(s) on %d times the specimens (%d specimens)", s.Label(), s.Acceptance.Retests, s.Acceptance.RetestFactor, s.Acceptance.RetestFactor*max(lr.N, s.Acceptance.MinSpecimens)))
+	}
+	if len(lr.Outliers) > 0 {
+		var fl []string
+		for _, o := range lr.Outliers {
+			fl = append(fl, o.Specimen+" ("+o.Property+")")
+		}
+		lr.Reasons = append(lr.Reasons, fmt.Sprintf("flagged by the maximum normed residual test at alpha %g and kept in the figures: %s", OutlierAlpha, strings.Join(fl, ", ")))
+	}
+	return lr, nil
+}
+
+func unitLabel(u units.Unit) string {
+	if u.Quantity == units.Hardness {
+		return u.Symbol
+	}
+	return units.Internal(u.Quantity).Symbol
+}
+
+// judgeSide judges the values of one property against one limit. A maximum
+// is judged as the minimum of the negated values (the methods are
+// symmetric), and the figures are mirrored back.
+func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.Rule) (PropertyResult, error) {
+	sign, limit := 1.0, l.Min
+	word, beyond := "minimum", "below"
+	if side == "max" {
+		sign, limit = -1.0, l.Max
+		word, beyond = "maximum", "above"
+	}
+	nan := lots.NaN
+	pr := PropertyResult{Property: l.Property, Side: side, Limit: lots.Float(limit), N: len(vals),
+		Mean: nan, SD: nan, Extreme: nan, MeanBound: nan, K: nan, ToleranceBound: nan,
+		FractionEstimate: nan, FractionUpper: nan, FractionLower: nan, Reasons: []string{}}
+	n := len(vals)
+	show := func(v float64) string { return fmtVal(l.Unit, v) }
+	if n == 0 {
+		pr.Verdict = Undecided
+		pr.Reasons = append(pr.Reasons, "no values for this property in the lot")
+		return pr, nil
+	}
+	// Mirror for a maximum.
+	x := make([]float64, n)
+	for i, v := range vals {
+		x[i] = sign * v
+	}
+	L := sign * limit
+	sum := 0.0
+	ext := math.Inf(1)
+	var fails []string
+	for i, v := range x {
+		sum += v
+		ext = math.Min(ext, v)
+		if v < L {
+			fails = append(fails, fmt.Sprintf("%s %s", ids[i], show(sign*v)))
+		}
+	}
+	pr.Extreme = lots.Float(sign * ext)
+	pr.Beyond = len(fails)
+	mean := sum / float64(n)
+	pr.Mean = lots.Float(sign * mean)
+	decided := ""
+	if len(fails) > 0 {
+		msg := fmt.Sprintf("%d value(s) %s the %s %s: %s", len(fails), beyond, word, show(limit), strings.Join(fails, ", "))
+		if r.IndividualReject {
+			decided = Nonconforming
+			pr.Reasons = append(pr.Reasons, msg+" (an individual value beyond a limit rejects the lot)")
+		} else {
+			pr.Reasons = append(pr.Reasons, msg+" (the specification does not reject on individual values)")
+		}
+	}
+	if n < 2 {
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("one specimen: no standard deviation, so the tolerance bound is undefined; at least %d specimens are required", r.MinSpecimens))
+		pr.Verdict = orUndecided(decided)
+		return pr, nil
+	}
+	desc, err := stats.Describe(x)
+	if err != nil {
+		return pr, fmt.Errorf("describe %s: %w", l.Property, err)
+	}
+	mean, sd := desc.Mean, desc.SD
+	pr.Mean, pr.SD = lots.Float(sign*mean), lots.Float(sd)
+	if sd == 0 {
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("all %d values are equal (zero spread): the normal tolerance-bound method does not apply; check for rounding or copied values", n))
+		pr.Verdict = orUndecided(decided)
+		return pr, nil
+	}
+	mb, err := stats.MeanLowerBound(n, mean, sd, r.Confidence)
+	if err != nil {
+		return pr, err
+	}
+	pr.MeanBound = lots.Float(sign * mb)
+	k, err := stats.NormalK(n, r.Content, r.Confidence)
+	if err != nil {
+		return pr, err
+	}
+	tb := mean - k*sd
+	pr.K, pr.ToleranceBound = lots.Float(k), lots.Float(sign*tb)
+	q := (mean - L) / sd
+	if n >= 3 {
+		if f, err := stats.TailFractionMVUE(n, q); err == nil {
+			pr.FractionEstimate = lots.Float(f)
+		}
+	}
+	up, err := stats.TailFractionBound(n, q, r.Confidence, true)
+	if err != nil {
+		return pr, err
+	}
+	lo, err := stats.TailFractionBound(n, q, r.Confidence, false)
+	if err != nil {
+		return pr, err
+	}
+	pr.FractionUpper, pr.FractionLower = lots.Float(up), lots.Float(lo)
+	allowed := 1 - r.Content
+	boundWord := "lower"
+	if side == "max" {
+		boundWord = "upper"
+	}
+	switch {
+	case decided == Nonconforming:
+		pr.Verdict = Nonconforming
+		if tb < L {
+			pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s is also %s the %s %s", boundWord, show(sign*tb), beyond, word, show(limit)))
+		}
+	case lo > allowed:
+		pr.Verdict = Nonconforming
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("with confidence %g more than %.3g of the lot is %s the %s %s (lower confidence bound on that fraction %.3g)", r.Confidence, allowed, beyond, word, show(limit), lo))
+	case tb >= L && n >= r.MinSpecimens:
+		pr.Verdict = Conforming
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is not %s the %s %s: at least %g of the lot meets it with confidence %g", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Content, r.Confidence))
+	case tb >= L:
+		pr.Verdict = Undecided
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("the tolerance bound meets the limit but the lot has %d specimens, fewer than the %d required", n, r.MinSpecimens))
+		pr.NeededN = r.MinSpecimens
+	default:
+		pr.Verdict = Undecided
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is %s the %s %s: confidence %g for content %g not reached", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Confidence, r.Content))
+		need, err := NeededSpecimens(q, r.Content, r.Confidence, n)
+		if err != nil {
+			return pr, err
+		}
+		if need > 0 {
+			need = max(need, r.MinSpecimens)
+		}
+		pr.NeededN = need
+		switch {
+		case need < 0:
+			zp := -math.Sqrt2 * math.Erfcinv(2*r.Content)
+			pr.Reasons = append(pr.Reasons, fmt.Sprintf("not reachable by testing more specimens: the mean is only %.3f SD from the limit, and k never falls below z_p = %.3f", q, zp))
+		case need > MaxPlannedSpecimens:
+			pr.Reasons = append(pr.Reasons, fmt.Sprintf("more than %d specimens would be needed at the observed mean and SD", MaxPlannedSpecimens))
+		default:
+			pr.Reasons = append(pr.Reasons, fmt.Sprintf("at the observed mean and SD, %d specimens in all (%d more) would reach the confidence", need, need-n))
+		}
+	}
+	return pr, nil
+}
+
+func orUndecided(v string) string {
+	if v == "" {
+		return Undecided
+	}
+	return v
+}
+
+// fmtVal shows an internal value in the limit's own unit.
+func fmtVal(u units.Unit, v float64) string {
+	return fmt.Sprintf("%.4g %s", u.FromInternal(v), u.Symbol)
+}
+
+// NeededSpecimens returns the smallest total number of specimens m >= n0
+// with k(m; p, gamma) <= q, i.e. at which a lot with standardised margin
+// q = (mean - L)/SD would meet the tolerance-bound criterion if the mean and
+// SD stayed as observed. It returns -1 when q <= z_p (k decreases to z_p as
+// m grows, so the criterion is never met) and MaxPlannedSpecimens+1 when
+// more than MaxPlannedSpecimens would be needed. k is stats.NormalK,
+// decreasing in m (Owen 1968), so a bisection on m is used.
+func NeededSpecimens(q, p, gamma float64, n0 int) (int, error) {
+	zp := -math.Sqrt2 * math.Erfcinv(2*p)
+	if !(q > zp) {
+		return -1, nil
+	}
+	lo := max(n0, 2)
+	ok := func(m int) (bool, error) {
+		k, err := stats.NormalK(m, p, gamma)
+		return k <= q, err
+	}
+	if good, err := ok(lo); err != nil || good {
+		return lo, err
+	}
+	hi := MaxPlannedSpecimens
+	if good, err := ok(hi); err != nil || !good {
+		return MaxPlannedSpecimens + 1, err
+	}
+	for hi-lo > 1 {
+		mid := (lo + hi) / 2
+		good, err := ok(mid)
+		if err != nil {
+			return 0, err
+		}
+		if good {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi, nil
+}
+
+// Display returns a copy of r with every value converted from the internal
+// unit to the unit shown in system sys (hardness stays on its scale).
+func (r *Result) Display(sys units.System) *Result {
+	out := *r
+	out.Lots = make([]LotResult, len(r.Lots))
+	for i, l := range r.Lots {
+		l.Properties = append([]PropertyResult(nil), l.Properties...)
+		for j := range l.Properties {
+			p := &l.Properties[j]
+			u, err := units.Parse(p.Unit)
+			if err != nil {
+				continue
+			}
+			du := u.Display(sys)
+			c := func(f lots.Float) lots.Float { return lots.Float(du.FromInternal(u.ToInternal(float64(f)))) }
+			p.Limit, p.Mean, p.Extreme, p.MeanBound, p.ToleranceBound = c(p.Limit), c(p.Mean), c(p.Extreme), c(p.MeanBound), c(p.ToleranceBound)
+			p.SD = lots.Float(du.FromInternal(u.ToInternal(float64(p.SD))))
+			p.Unit = du.Symbol
+		}
+		l.Outliers = append([]Outlier(nil), l.Outliers...)
+		for j := range l.Outliers {
+			o := &l.Outliers[j]
+			u, err := units.Parse(o.Unit)
+			if err != nil {
+				continue
+			}
+			du := u.Display(sys)
+			o.Value = lots.Float(du.FromInternal(u.ToInternal(float64(o.Value))))
+			o.Unit = du.Symbol
+		}
+		out.Lots[i] = l
+	}
+	return &out
+}

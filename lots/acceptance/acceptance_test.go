@@ -1,0 +1,201 @@
+package acceptance
+
+import (
+	"encoding/json"
+	"errors"
+	"math"
+	"os"
+	"strings"
+	"testing"
+
+	"lotproof/lots"
+	"lotproof/spec"
+	"lotproof/stats"
+)
+
+func load(t *testing.T, data string, specText ...string) (*lots.Dataset, []*spec.Spec) {
+	t.Helper()
+	d, err := lots.ReadFile(data, lots.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ss []*spec.Spec
+	for i, s := range specText {
+		sp, err := spec.Parse("s"+string(rune('0'+i))+".yaml", []byte(s))
+		if err != nil {
+			t.Fatal(err)
+		}
+		ss = append(ss, sp)
+	}
+	return d, ss
+}
+
+func testSpec(t *testing.T) string {
+	b, err := os.ReadFile("../../testdata/acceptance/spec-test.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
+}
+
+func find(t *testing.T, r *Result, lot string) LotResult {
+	for _, l := range r.Lots {
+		if l.Lot == lot {
+			return l
+		}
+	}
+	t.Fatalf("lot %s missing", lot)
+	return LotResult{}
+}
+
+// Figures checked against testdata/acceptance/lots_ref.json, computed
+// independently by make_lots_ref.py with Debian python3-scipy 1.10.1
+// (numpy mean/std, scipy.stats.nct.ppf for k, Newton-refined t quantile,
+// scipy.special.betainc for the Lieberman-Resnikoff estimator,
+// scipy.stats.nct.cdf + brentq for the upper bound on the fraction).
+func TestJudgeFiguresAgainstScipy(t *testing.T) {
+	d, ss := load(t, "../../testdata/acceptance/lots.csv", testSpec(t))
+	r, err := Judge(d, ss, lots.ByLot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		Lots []struct {
+			Lot, Property, Side                                                     string
+			N                                                                       int
+			Mean, SD, MeanBound, K, ToleranceBound, FractionEstimate, FractionUpper float64
+		}
+	}
+	b, err := os.ReadFile("../../testdata/acceptance/lots_ref.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The JSON keys are snake_case; decode through a map-free rename.
+	b = []byte(strings.NewReplacer(`"mean_bound"`, `"MeanBound"`, `"tolerance_bound"`, `"ToleranceBound"`, `"fraction_estimate"`, `"FractionEstimate"`, `"fraction_upper"`, `"FractionUpper"`).Replace(string(b)))
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
+	if len(ref.Lots) != 9 {
+		t.Fatalf("reference has %d rows", len(ref.Lots))
+	}
+	for _, w := range ref.Lots {
+		l := find(t, r, w.Lot)
+		var got *PropertyResult
+		for i := range l.Properties {
+			if l.Properties[i].Property == w.Property && l.Properties[i].Side == w.Side {
+				got = &l.Properties[i]
+			}
+		}
+		if got == nil {
+			t.Fatalf("%s %s %s missing", w.Lot, w.Property, w.Side)
+		}
+		chk := func(what string, g lots.Float, want, tol float64) {
+			if math.Abs(float64(g)-want) > tol*math.Max(1, math.Abs(want)) {
+				t.Errorf("%s %s %s %s: got %.12g want %.12g", w.Lot, w.Property, w.Side, what, float64(g), want)
+			}
+		}
+		if got.N != w.N {
+			t.Errorf("n %d want %d", got.N, w.N)
+		}
+		chk("mean", got.Mean, w.Mean, 1e-13)
+		chk("sd", got.SD, w.SD, 1e-12)
+		chk("mean bound", got.MeanBound, w.MeanBound, 1e-11)
+		chk("k", got.K, w.K, 1e-9) // scipy nct.ppf (Boost) is good to about 1e-10
+		chk("tolerance bound", got.ToleranceBound, w.ToleranceBound, 1e-9)
+		chk("fraction estimate", got.FractionEstimate, w.FractionEstimate, 1e-12)
+		chk("fraction upper", got.FractionUpper, w.FractionUpper, 1e-8)
+	}
+}
+
+func TestJudgeVerdicts(t *testing.T) {
+	d, ss := load(t, "../../testdata/acceptance/lots.csv", testSpec(t))
+	r, err := Judge(d, ss, lots.ByLot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]string{"A": Conforming, "B": Undecided, "C": Nonconforming, "D": Undecided, "E": Undecided, "F": NotJudged}
+	for lot, v := range want {
+		if got := find(t, r, lot).Verdict; got != v {
+			t.Errorf("lot %s: %s, want %s (%v)", lot, got, v, find(t, r, lot).Reasons)
+		}
+	}
+	if r.Counts != (Counts{Conforming: 1, Nonconforming: 1, Undecided: 3, NotJudged: 1}) {
+		t.Errorf("counts %+v", r.Counts)
+	}
+	// Lot B, hardness max: the upper tolerance bound exceeds 331 HBW; the
+	// specimens needed are the smallest m with k(m) <= (U - mean)/SD
+	// (checked against stats.NormalK at m-1 and m).
+	b := find(t, r, "B")
+	for _, p := range b.Properties {
+		if p.Property == "hardness" && p.Side == "max" {
+			if p.Verdict != Undecided || p.NeededN <= 5 {
+				t.Fatalf("B hardness max: %+v", p)
+			}
+			q := (331 - float64(p.Mean)) / float64(p.SD)
+			k1, _ := stats.NormalK(p.NeededN-1, 0.9, 0.95)
+			k2, _ := stats.NormalK(p.NeededN, 0.9, 0.95)
+			if !(k1 > q && k2 <= q) {
+				t.Errorf("needed n %d: k(n-1)=%g k(n)=%g q=%g", p.NeededN, k1, k2, q)
+			}
+		}
+		if p.Property == "tensile" && p.NeededN != -1 {
+			// mean 958.6, SD 15.9: margin 1.80 SD > z_0.90 = 1.28, so reachable
+			if q := (float64(p.Mean) - 930) / float64(p.SD); q > 1.2816 && p.NeededN <= 5 {
+				t.Errorf("B tensile needed %d (q %g)", p.NeededN, q)
+			}
+		}
+	}
+	c := find(t, r, "C")
+	if !strings.Contains(strings.Join(c.Properties[0].Reasons, " "), "C-2") {
+		t.Errorf("C reasons do not name the failing specimen: %v", c.Properties[0].Reasons)
+	}
+	if !strings.Contains(strings.Join(c.Reasons, " "), "10 specimens") {
+		t.Errorf("C reasons do not state the retest allowance: %v", c.Reasons)
+	}
+	dl := find(t, r, "D")
+	if !math.IsNaN(float64(dl.Properties[0].ToleranceBound)) || !strings.Contains(dl.Properties[0].Reasons[0], "one specimen") {
+		t.Errorf("one-specimen lot: %+v", dl.Properties[0])
+	}
+	e := find(t, r, "E")
+	if !strings.Contains(strings.Join(e.Properties[0].Reasons, " "), "zero spread") {
+		t.Errorf("zero-variance lot: %+v", e.Properties[0])
+	}
+	if f := find(t, r, "F"); !strings.Contains(f.Reasons[0], "Alloy Q") {
+		t.Errorf("not judged reason: %v", f.Reasons)
+	}
+}
+
+// Not reachable: a margin at or below z_p (k decreases to z_p = 1.2816 for
+// p = 0.90 as n grows; Owen 1968).
+func TestNeededSpecimens(t *testing.T) {
+	if n, _ := NeededSpecimens(1.28, 0.9, 0.95, 5); n != -1 {
+		t.Errorf("q below z_p: %d", n)
+	}
+	// k(n=10, 0.90, 0.95) = 2.355 (Natrella 1963, NBS Handbook 91, Table A-7):
+	// a margin of 2.36 is reached at 10 specimens, not at 9 (k(9) = 2.454,
+	// same table; scipy.stats.nct gives 2.4538 and 2.3546).
+	if n, err := NeededSpecimens(2.36, 0.9, 0.95, 5); err != nil || n != 10 {
+		t.Errorf("q = 2.36: %d %v", n, err)
+	}
+}
+
+func TestJudgeBadInput(t *testing.T) {
+	d, _ := load(t, "../../testdata/acceptance/lots.csv")
+	base := testSpec(t)
+	cases := []struct{ name, spec, what, where string }{
+		{"missing property", strings.Replace(base, "  tensile:", "  elongation:\n    unit: \"%\"\n    min: 10\n  tensile:", 1), "no such column", "s0.yaml:6:3"},
+		{"hardness scale", strings.Replace(base, "unit: HBW", "unit: HRC", 1), "cannot be compared", "s0.yaml:9:3"},
+		{"strain against stress", strings.Replace(base, "unit: MPa\n    min: 930", "unit: \"%\"\n    min: 12", 1), "cannot be compared", "s0.yaml:6:3"},
+	}
+	for _, c := range cases {
+		sp, err := spec.Parse("s0.yaml", []byte(c.spec))
+		if err != nil {
+			t.Fatal(c.name, err)
+		}
+		_, err = Judge(d, []*spec.Spec{sp}, lots.ByLot)
+		var ie *lots.InputError
+		if !errors.As(err, &ie) || !strings.Contains(ie.Problems[0].What, c.what) || ie.Problems[0].Where != c.where {
+			t.Errorf("%s: %v", c.name, err)
+		}
+	}
+}
