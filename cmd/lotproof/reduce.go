@@ -220,7 +220,7 @@ func runReduce(o reduceOptions, st streams) error {
 	return emit(st.Out, func(w io.Writer) error {
 		switch o.Out.Format {
 		case render.JSON:
-			return render.WriteJSON(w, reduceJSON(rs, opt, o.Out.System))
+			return render.WriteJSON(w, reduceJSON(rs, o.Out.System))
 		case render.CSV:
 			_, err := w.Write(reduce.ResultsCSV(rs, o.Out.System))
 			return err
@@ -288,20 +288,20 @@ type reduceFitJSON struct {
 }
 
 type reduceAuditJSON struct {
-	Points                 int            `json:"points"`
-	DuplicatesLeftOut      int            `json:"duplicates_left_out"`
-	BackwardLeftOut        int            `json:"backward_left_out"`
-	LoopPointsLeftOut      int            `json:"loop_points_left_out"`
-	NoiseSD                lots.Float     `json:"noise_sd"`
-	ElasticFit             *reduceFitJSON `json:"elastic_fit"`
-	ToeShiftPercent        lots.Float     `json:"toe_shift_percent"`
-	OffsetPercent          float64        `json:"offset_percent"`
-	ProofStrainPercent     lots.Float     `json:"proof_strain_percent"`
-	TensileStrainPercent   lots.Float     `json:"tensile_strain_percent"`
-	Fractured              bool           `json:"fractured"`
-	FractureStrainPercent  lots.Float     `json:"fracture_strain_percent"`
-	ElongationMethod       string         `json:"elongation_method"`
-	ElongationRecordPercnt lots.Float     `json:"elongation_from_record_percent"`
+	Points                  int            `json:"points"`
+	DuplicatesLeftOut       int            `json:"duplicates_left_out"`
+	BackwardLeftOut         int            `json:"backward_left_out"`
+	LoopPointsLeftOut       int            `json:"loop_points_left_out"`
+	NoiseSD                 lots.Float     `json:"noise_sd"`
+	ElasticFit              *reduceFitJSON `json:"elastic_fit"`
+	ToeShiftPercent         lots.Float     `json:"toe_shift_percent"`
+	OffsetPercent           float64        `json:"offset_percent"`
+	ProofStrainPercent      lots.Float     `json:"proof_strain_percent"`
+	TensileStrainPercent    lots.Float     `json:"tensile_strain_percent"`
+	Fractured               bool           `json:"fractured"`
+	FractureStrainPercent   lots.Float     `json:"fracture_strain_percent"`
+	ElongationMethod        string         `json:"elongation_method"`
+	ElongationRecordPercent lots.Float     `json:"elongation_from_record_percent"`
 }
 
 type reduceSpecimenJSON struct {
@@ -328,7 +328,7 @@ type reduceResultJSON struct {
 	Specimens []reduceSpecimenJSON `json:"specimens"`
 }
 
-func reduceJSON(rs []*reduce.Result, opt reduce.Options, sys units.System) reduceResultJSON {
+func reduceJSON(rs []*reduce.Result, sys units.System) reduceResultJSON {
 	out := reduceResultJSON{
 		Tool: "lotproof reduce", Version: lots.Version,
 		Method: "modulus: least squares over the linear region (ASTM E111); proof: offset method (ISO 6892-1 Rp, ASTM E8/E8M) after toe compensation; ReH/ReL, Rm, Ag, A, Z: ISO 6892-1; toughness: trapezoidal area under the engineering curve to fracture; resilience: Rp^2/(2E)",
@@ -339,6 +339,8 @@ func reduceJSON(rs []*reduce.Result, opt reduce.Options, sys units.System) reduc
 	}
 	mod := reduce.Columns[0].Unit.Display(sys)
 	stress := units.Internal(units.Stress).Display(sys)
+	out.Units["audit slope"] = mod.Symbol
+	out.Units["audit stresses"] = stress.Symbol
 	pct := func(v float64) lots.Float { return lots.Float(100 * v) }
 	for _, r := range rs {
 		sj := reduceSpecimenJSON{
@@ -364,7 +366,7 @@ func reduceJSON(rs []*reduce.Result, opt reduce.Options, sys units.System) reduc
 		a.OffsetPercent = 100 * r.Offset
 		a.ProofStrainPercent, a.TensileStrainPercent = pct(r.ProofStrain), pct(r.TensileStrain)
 		a.Fractured, a.FractureStrainPercent = r.Fractured, pct(r.FractureStrain)
-		a.ElongationMethod, a.ElongationRecordPercnt = r.ElongationMethod, pct(r.ExtensometerElongation)
+		a.ElongationMethod, a.ElongationRecordPercent = r.ElongationMethod, pct(r.ExtensometerElongation)
 		out.Specimens = append(out.Specimens, sj)
 	}
 	return out

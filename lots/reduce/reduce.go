@@ -44,20 +44,20 @@ type Result struct {
 	ID, Lot, Heat, Supplier, Material, Tested, Condition string
 	Source                                               string // file:line of the record
 
-	Modulus, Proof, UpperYield, LowerYield, Tensile   float64
-	Uniform, Elongation, ReductionOfArea              float64
-	Toughness, Resilience                             float64
-	ElongationMethod                                  string  // how the elongation was found
-	ExtensometerElongation                            float64 // plastic strain at fracture from the record (audit)
-	Fit                                               Fit
-	FitOK                                             bool
-	ToeShift                                          float64 // strain origin shift (toe compensation)
-	Offset                                            float64
-	ProofStrain, TensileStrain, FractureStrain        float64 // on the toe-compensated curve
-	Fractured                                         bool
-	Noise                                             float64 // estimated stress noise SD [MPa]
-	Points, Duplicates, Backward, LoopPoints, AfterFr int
-	Notes, Warnings                                   []string
+	Modulus, Proof, UpperYield, LowerYield, Tensile               float64
+	Uniform, Elongation, ReductionOfArea                          float64
+	Toughness, Resilience                                         float64
+	ElongationMethod                                              string  // how the elongation was found
+	ExtensometerElongation                                        float64 // plastic strain at fracture from the record (audit)
+	Fit                                                           Fit
+	FitOK                                                         bool
+	ToeShift                                                      float64 // strain origin shift (toe compensation)
+	Offset                                                        float64
+	ProofStrain, TensileStrain, FractureStrain                    float64 // on the toe-compensated curve
+	Fractured                                                     bool
+	Noise                                                         float64 // estimated stress noise SD [MPa]
+	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
+	Notes, Warnings                                               []string
 
 	// Curve is the engineering stress-strain curve used: toe-compensated
 	// strain and stress, loops left out, ending at fracture.
@@ -175,7 +175,7 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 			f--
 		}
 		res.Fractured = true
-		res.AfterFr = len(s) - 1 - f
+		res.PointsAfterFracture = len(s) - 1 - f
 	} else {
 		res.warn("no fracture in the record (the force at the end is %.0f %% of the maximum): elongation from the record and toughness are not reported", 100*s[f]/sm)
 	}
