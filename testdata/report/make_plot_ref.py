@@ -13,7 +13,11 @@ Records:
              of the normal probability plot, and log(-log1p(-p)) for the
              Weibull plot;
   medianrank exact median ranks beta.ppf(0.5, i, n-i+1), against which
-             Benard's approximation (i-0.3)/(n+0.4) is checked.
+             Benard's approximation (i-0.3)/(n+0.4) is checked;
+  oc         operating characteristics: the variables plan "accept when
+             (mean-L)/s >= k", Pa = nct.sf(k sqrt(n), n-1, sqrt(n) norm.ppf(1-p))
+             with k = nct.ppf(gamma, n-1, sqrt(n) norm.ppf(content))/sqrt(n),
+             and the attributes plan binom.cdf(c, n, p).
 """
 import json
 import math
@@ -54,6 +58,15 @@ for n in [3, 5, 10, 30, 200]:
               "weibull": [math.log(-math.log1p(-p)) for p in ps],
               "median_rank": [float(stats.beta.ppf(0.5, i, n - i + 1)) for i in range(1, n + 1)]})
 out["quantiles"] = q
+
+oc = []
+ps = [0.001, 0.01, 0.02, 0.05, 0.1, 0.15, 0.2, 0.3, 0.4]
+for n, content, gamma, c in [(5, 0.90, 0.90, 0), (10, 0.99, 0.95, 1), (30, 0.90, 0.95, 2), (3, 0.90, 0.75, 0)]:
+    k = float(stats.nct.ppf(gamma, n - 1, math.sqrt(n) * stats.norm.ppf(content)) / math.sqrt(n))
+    oc.append({"n": n, "content": content, "confidence": gamma, "c": c, "k": k, "p": ps,
+               "pa_variables": [float(stats.nct.sf(k * math.sqrt(n), n - 1, math.sqrt(n) * stats.norm.ppf(1 - p))) for p in ps],
+               "pa_attributes": [float(stats.binom.cdf(c, n, p)) for p in ps]})
+out["oc"] = oc
 
 json.dump(out, sys.stdout, indent=1)
 sys.stdout.write("\n")

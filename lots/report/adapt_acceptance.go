@@ -1,0 +1,234 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"lotproof/lots/acceptance"
+	"lotproof/lots/units"
+	"lotproof/stats"
+)
+
+// verdictStatus maps an acceptance verdict to a mark.
+func verdictStatus(v string) Status {
+	switch v {
+	case acceptance.Conforming:
+		return OK
+	case acceptance.Nonconforming:
+		return Fail
+	case acceptance.Undecided:
+		return Undecided
+	}
+	return None
+}
+
+// AcceptanceSection lays out lot verdicts: one row per lot with its
+// verdict, one row per lot and limit with the figures behind it, the
+// reasons of every lot that is not conforming, the flagged values and the
+// method. Values are shown in the display units of sys. It also returns
+// summary items (counts by verdict) for the box at the top.
+func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, error) {
+	sec := Section{Title: "Lot acceptance"}
+	if r == nil {
+		return sec, nil, fmt.Errorf("report: no acceptance result")
+	}
+	r = r.Display(sys)
+	var specs []string
+	for _, s := range r.Specs {
+		label := s.ID
+		if s.Revision != "" {
+			label += " rev " + s.Revision
+		}
+		specs = append(specs, fmt.Sprintf("%s for %s (content %g, confidence %g, at least %d specimens)", label, s.Material, s.Content, s.Confidence, s.MinN))
+	}
+	sec.Intro = "Every " + r.GroupBy + " judged against " + strings.Join(specs, "; ") + "."
+	summary := []KV{
+		{Key: "Conforming " + r.GroupBy + "s", Value: strconv.Itoa(r.Counts.Conforming), Status: OK},
+		{Key: "Nonconforming " + r.GroupBy + "s", Value: strconv.Itoa(r.Counts.Nonconforming), Status: statusIf(r.Counts.Nonconforming > 0, Fail, OK)},
+		{Key: "Undecided " + r.GroupBy + "s", Value: strconv.Itoa(r.Counts.Undecided), Status: statusIf(r.Counts.Undecided > 0, Undecided, OK)},
+	}
+	if r.Counts.NotJudged > 0 {
+		summary = append(summary, KV{Key: "Not judged", Value: strconv.Itoa(r.Counts.NotJudged), Status: Warn})
+	}
+	var bad []string
+	for _, l := range r.Lots {
+		if l.Verdict == acceptance.Nonconforming {
+			bad = append(bad, l.Lot)
+		}
+	}
+	if len(bad) > 0 {
+		summary = append(summary, KV{Key: "Rejected", Value: strings.Join(bad, ", "), Status: Fail})
+	}
+
+	lots := &Table{Title: "Verdicts", Columns: Cols(r.GroupBy, "supplier", "material", "specification", ">n", ">outliers", "verdict")}
+	for _, l := range r.Lots {
+		row := Cells(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), strconv.Itoa(len(l.Outliers)))
+		row = append(row, Cell{Text: l.Verdict, Status: verdictStatus(l.Verdict)})
+		lots.Rows = append(lots.Rows, row)
+	}
+	sec.Blocks = append(sec.Blocks, lots)
+
+	props := &Table{Title: "Figures behind the verdicts", Columns: Cols(r.GroupBy, "property", ">limit", ">n", ">mean", ">SD", ">extreme", ">k", ">tolerance bound", ">fraction beyond (est. / upper)", ">values beyond", "verdict")}
+	for _, l := range r.Lots {
+		for _, p := range l.Properties {
+			side := "min "
+			if p.Side == "max" {
+				side = "max "
+			}
+			row := Cells(l.Lot, p.Property, side+num(float64(p.Limit), 4)+unitSuffix(p.Unit), strconv.Itoa(p.N),
+				num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Extreme), 4), num(float64(p.K), 4),
+				num(float64(p.ToleranceBound), 4), num(float64(p.FractionEstimate), 2)+" / "+num(float64(p.FractionUpper), 2))
+			beyond := Cell{Text: strconv.Itoa(p.Beyond)}
+			if p.Beyond > 0 {
+				beyond.Status = Fail
+			}
+			row = append(row, beyond, Cell{Text: p.Verdict, Status: verdictStatus(p.Verdict)})
+			props.Rows = append(props.Rows, row)
+		}
+	}
+	props.Note = "The tolerance bound is mean - k SD for a minimum (mean + k SD for a maximum); a lot conforms when the bound lies within the limit."
+	sec.Blocks = append(sec.Blocks, props)
+
+	var reasons []string
+	for _, l := range r.Lots {
+		if l.Verdict == acceptance.Conforming {
+			continue
+		}
+		for _, why := range l.Reasons {
+			reasons = append(reasons, l.Lot+" ("+l.Verdict+"): "+why)
+		}
+		for _, p := range l.Properties {
+			if p.Verdict == acceptance.Undecided && p.NeededN > 0 {
+				reasons = append(reasons, fmt.Sprintf("%s: %s would need %d specimens in all to decide at the observed mean and SD", l.Lot, p.Property, p.NeededN))
+			}
+		}
+	}
+	if len(reasons) > 0 {
+		sec.Blocks = append(sec.Blocks, List{Title: "Reasons", Items: reasons})
+	}
+
+	out := &Table{Title: "Values flagged by the maximum normed residual test (kept)", Columns: Cols(r.GroupBy, "specimen", "property", ">value", ">MNR", ">critical", ">line")}
+	for _, l := range r.Lots {
+		for _, o := range l.Outliers {
+			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, num(float64(o.Value), 5)+unitSuffix(o.Unit),
+				num(o.MNR, 4), num(o.Critical, 4)), Cell{Text: strconv.Itoa(o.Line)}))
+		}
+	}
+	if len(out.Rows) > 0 {
+		sec.Blocks = append(sec.Blocks, out)
+	}
+
+	for _, s := range r.Specs {
+		b, err := ocFigure(s)
+		if err != nil {
+			return sec, nil, err
+		}
+		if b != nil {
+			sec.Blocks = append(sec.Blocks, b)
+		}
+	}
+	sec.Blocks = append(sec.Blocks, Paragraph("Method: "+r.Method+"."))
+	for _, c := range r.Cautions {
+		sec.Blocks = append(sec.Blocks, Paragraph(c))
+	}
+	return sec, summary, nil
+}
+
+// ocFigure draws the operating characteristic of a specification's plan at
+// its minimum lot size.
+func ocFigure(s acceptance.SpecRef) (Block, error) {
+	n := s.MinN
+	if n < 2 || !(s.Content > 0 && s.Content < 1) || !(s.Confidence > 0 && s.Confidence < 1) {
+		return nil, nil
+	}
+	k, err := stats.NormalK(n, s.Content, s.Confidence)
+	if err != nil {
+		return nil, err
+	}
+	var ps []float64
+	for i := 1; i <= 120; i++ {
+		ps = append(ps, 0.4*float64(i)/120)
+	}
+	paV, err := OCVariables(n, k, ps)
+	if err != nil {
+		return nil, err
+	}
+	paA, err := OCAttributes(n, 0, ps)
+	if err != nil {
+		return nil, err
+	}
+	label := s.ID
+	if s.Revision != "" {
+		label += " rev " + s.Revision
+	}
+	svg, err := OCPlot(OCData{Title: "Operating characteristic, " + label,
+		Curves: []OCCurve{
+			{Label: fmt.Sprintf("variables: n = %d, accept if mean - %.3f SD >= limit", n, k), P: ps, Pa: paV},
+			{Label: fmt.Sprintf("attributes: n = %d, accept with no value beyond the limit", n), P: ps, Pa: paA},
+		},
+		Lines: []RefLine{{Label: "1 - content = " + num(1-s.Content, 6), Value: 1 - s.Content}}})
+	if err != nil {
+		return nil, err
+	}
+	return &Figure{Title: "Operating characteristic of " + label + " at " + strconv.Itoa(n) + " specimens", SVG: svg,
+		Caption: "Probability of accepting a lot against its true fraction beyond the limit, for one limit and normal values. The variables curve passes through Pa = 1 - confidence = " + num(1-s.Confidence, 6) + " at a fraction of 1 - content = " + num(1-s.Content, 6) + "."}, nil
+}
+
+// OCVariables is the operating characteristic of the one-sided variables
+// plan "accept when (mean - L)/s >= k" on n specimens from a normal lot of
+// which a fraction p lies below L: with T = sqrt(n)(mean - L)/s noncentral t
+// on n-1 degrees of freedom with noncentrality sqrt(n) z_(1-p),
+//
+//	Pa(p) = P(T >= k sqrt(n)) (Owen 1968, Technometrics 10:445; Schilling
+//	and Neubauer, Acceptance Sampling in Quality Control, 2nd ed., ch. 14).
+//
+// With k the tolerance factor for content 1-p0 and confidence gamma,
+// Pa(p0) = 1 - gamma.
+func OCVariables(n int, k float64, ps []float64) ([]float64, error) {
+	if n < 2 || math.IsNaN(k) || math.IsInf(k, 0) {
+		return nil, fmt.Errorf("OC of a variables plan needs n >= 2 and a finite k (got %d, %g)", n, k)
+	}
+	rn := math.Sqrt(float64(n))
+	out := make([]float64, len(ps))
+	for i, p := range ps {
+		switch {
+		case p <= 0:
+			out[i] = 1
+		case p >= 1:
+			out[i] = 0
+		default:
+			delta := rn * distuv.UnitNormal.Quantile(1-p)
+			out[i] = stats.NoncentralTSurvival(k*rn, float64(n-1), delta)
+		}
+	}
+	return out, nil
+}
+
+// OCAttributes is the operating characteristic of the single attributes
+// plan "accept with at most c of n values beyond the limit": the binomial
+// sum Pa(p) = sum_{i=0..c} C(n,i) p^i (1-p)^(n-i) (Schilling and Neubauer,
+// ch. 3), by gonum distuv.Binomial.CDF.
+func OCAttributes(n, c int, ps []float64) ([]float64, error) {
+	if n < 1 || c < 0 || c > n {
+		return nil, fmt.Errorf("OC of an attributes plan needs 0 <= c <= n, n >= 1 (got n %d, c %d)", n, c)
+	}
+	out := make([]float64, len(ps))
+	for i, p := range ps {
+		switch {
+		case p <= 0:
+			out[i] = 1
+		case p >= 1:
+			out[i] = 0
+			if c == n {
+				out[i] = 1
+			}
+		default:
+			out[i] = distuv.Binomial{N: float64(n), P: p}.CDF(float64(c))
+		}
+	}
+	return out, nil
+}
