@@ -1,0 +1,207 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"lotproof/lots"
+	"lotproof/lots/render"
+	"lotproof/stats"
+)
+
+type planOptions struct {
+	AQL, RQL       string
+	Producer, Cons float64
+	Out            output
+}
+
+func newPlanCmd(g *globalOptions, st streams) *cobra.Command {
+	var o planOptions
+	cmd := &cobra.Command{
+		Use:   "plan --aql P1 --rql P2 [--producer-risk A] [--consumer-risk B]",
+		Short: "Design a one-sided variables sampling plan (n, k) and print its OC curve",
+		Long: `plan designs a one-sided variables sampling plan with sigma unknown: test n
+items and accept the lot when (mean - L)/SD >= k (or (U - mean)/SD >= k).
+It is the smallest n whose acceptance probability is at least 1 - A at the
+fraction nonconforming P1 (AQL) and at most B at P2 (RQL), computed exactly
+from the noncentral t distribution; k holds the producer's risk at A.
+
+It also prints the Wallis approximation, the attributes plan (n, c) that
+meets the same two points (binomial), and the operating characteristic
+(probability of acceptance against fraction nonconforming) of both plans.
+Fractions may be written as 0.01 or 1%.`,
+		Args: exactArgs(0, "no arguments"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			var err error
+			if o.Out, err = g.resolve(st); err != nil {
+				return err
+			}
+			return runPlan(o, st)
+		},
+	}
+	cmd.Flags().StringVar(&o.AQL, "aql", "", "acceptable quality level: fraction nonconforming accepted with probability 1 - producer risk (required)")
+	cmd.Flags().StringVar(&o.RQL, "rql", "", "rejectable quality level: fraction nonconforming accepted with probability at most the consumer risk (required)")
+	cmd.Flags().Float64Var(&o.Producer, "producer-risk", 0.05, "producer's risk alpha: probability of rejecting a lot at the AQL")
+	cmd.Flags().Float64Var(&o.Cons, "consumer-risk", 0.10, "consumer's risk beta: probability of accepting a lot at the RQL")
+	return cmd
+}
+
+func init() { register(newPlanCmd) }
+
+// parseFraction reads 0.01 or 1%.
+func parseFraction(flag, s string) (float64, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return 0, usageError{fmt.Errorf("--%s is required", flag)}
+	}
+	scale := 1.0
+	if strings.HasSuffix(t, "%") {
+		scale = 0.01
+		t = strings.TrimSpace(strings.TrimSuffix(t, "%"))
+	}
+	v, err := strconv.ParseFloat(t, 64)
+	v *= scale
+	if err != nil || !(v > 0 && v < 1) {
+		return 0, usageError{fmt.Errorf("--%s %q: expected a fraction between 0 and 1 (e.g. 0.01 or 1%%)", flag, s)}
+	}
+	return v, nil
+}
+
+type planResult struct {
+	AQL          float64        `json:"aql"`
+	RQL          float64        `json:"rql"`
+	ProducerRisk float64        `json:"producer_risk"`
+	ConsumerRisk float64        `json:"consumer_risk"`
+	Variables    planVariables  `json:"variables"`
+	Wallis       planWallis     `json:"wallis"`
+	Attributes   planAttributes `json:"attributes"`
+	OC           []planOCPoint  `json:"oc"`
+	Method       string         `json:"method"`
+	Cautions     []string       `json:"cautions"`
+}
+
+type planVariables struct {
+	N            int     `json:"n"`
+	K            float64 `json:"k"`
+	KMin         float64 `json:"k_min"`
+	KMax         float64 `json:"k_max"`
+	ProducerRisk float64 `json:"producer_risk"`
+	ConsumerRisk float64 `json:"consumer_risk"`
+}
+
+type planWallis struct {
+	N float64 `json:"n"`
+	K float64 `json:"k"`
+}
+
+type planAttributes struct {
+	N            int     `json:"n"`
+	C            int     `json:"c"`
+	ProducerRisk float64 `json:"producer_risk"`
+	ConsumerRisk float64 `json:"consumer_risk"`
+}
+
+type planOCPoint struct {
+	P            float64    `json:"p"`
+	PaVariables  lots.Float `json:"pa_variables"`
+	PaAttributes lots.Float `json:"pa_attributes"`
+}
+
+const planCaution = "A sampling plan and its OC curve support, and never replace, the governing specification, contract terms and the inspector's judgement; the variables plan assumes a normal distribution of the property in the lot."
+
+func runPlan(o planOptions, st streams) error {
+	p1, err := parseFraction("aql", o.AQL)
+	if err != nil {
+		return err
+	}
+	p2, err := parseFraction("rql", o.RQL)
+	if err != nil {
+		return err
+	}
+	for _, r := range []struct {
+		name string
+		v    float64
+	}{{"producer-risk", o.Producer}, {"consumer-risk", o.Cons}} {
+		if !(r.v > 0 && r.v < 0.5) {
+			return usageError{fmt.Errorf("--%s %g: expected a probability between 0 and 0.5", r.name, r.v)}
+		}
+	}
+	if !(p1 < p2) {
+		return usageError{fmt.Errorf("--aql %g must be below --rql %g", p1, p2)}
+	}
+	v, err := stats.DesignVariablesPlan(p1, p2, o.Producer, o.Cons)
+	if err != nil {
+		return lots.Inputf("plan", "choose AQL and RQL further apart", "%v", err)
+	}
+	wn, wk, err := stats.WallisPlan(p1, p2, o.Producer, o.Cons)
+	if err != nil {
+		return err
+	}
+	a, err := stats.DesignAttributesPlan(p1, p2, o.Producer, o.Cons)
+	if err != nil {
+		return lots.Inputf("plan", "choose AQL and RQL further apart", "%v", err)
+	}
+	res := planResult{AQL: p1, RQL: p2, ProducerRisk: o.Producer, ConsumerRisk: o.Cons,
+		Variables:  planVariables{N: v.N, K: v.K, KMin: v.KMin, KMax: v.KMax, ProducerRisk: v.ProducerRisk, ConsumerRisk: v.ConsumerRisk},
+		Wallis:     planWallis{N: wn, K: wk},
+		Attributes: planAttributes{N: a.N, C: a.C, ProducerRisk: a.ProducerRisk, ConsumerRisk: a.ConsumerRisk},
+		Method:     "variables plan, sigma unknown: Pa(p) = P(T >= k sqrt(n)), T noncentral t with n-1 df and noncentrality sqrt(n) z_(1-p), exact; smallest n meeting both risks, k holding the producer's risk; Wallis (1947) approximation for comparison; attributes plan: binomial, smallest c then smallest n",
+		Cautions:   []string{planCaution},
+	}
+	for _, p := range ocGrid(p1, p2) {
+		pv, err := stats.VariablesAcceptProb(v.N, v.K, p)
+		if err != nil {
+			return err
+		}
+		pa, err := stats.AttributesAcceptProb(a.N, a.C, p)
+		if err != nil {
+			return err
+		}
+		res.OC = append(res.OC, planOCPoint{P: p, PaVariables: lots.Float(pv), PaAttributes: lots.Float(pa)})
+	}
+	return emit(st.Out, func(w io.Writer) error {
+		if o.Out.Format == render.JSON {
+			return render.WriteJSON(w, res)
+		}
+		pt := render.NewTable("Sampling plans", "plan", ">n", ">k or c", ">risk at AQL", ">Pa at RQL")
+		pt.Add("variables, sigma unknown (exact)", strconv.Itoa(v.N), render.Fixed(v.K, 4), render.Fixed(v.ProducerRisk, 4), render.Fixed(v.ConsumerRisk, 4))
+		pt.Add("variables, Wallis approximation", render.Fixed(wn, 1), render.Fixed(wk, 4), "", "")
+		pt.Add("attributes (binomial)", strconv.Itoa(a.N), strconv.Itoa(a.C), render.Fixed(a.ProducerRisk, 4), render.Fixed(a.ConsumerRisk, 4))
+		pt.Note("AQL %g with producer's risk %g; RQL %g with consumer's risk %g.", p1, o.Producer, p2, o.Cons)
+		pt.Note("Variables plan: test n items, accept when (mean - L)/SD >= k (or (U - mean)/SD >= k); any k in [%.4f, %.4f] meets both risks at n = %d.", v.KMin, v.KMax, v.N)
+		pt.Note("Attributes plan: test n items, accept when at most c are nonconforming.")
+		oc := render.NewTable("Operating characteristic (probability of acceptance)", ">fraction nonconforming", ">variables", ">attributes")
+		for _, q := range res.OC {
+			oc.Add(strconv.FormatFloat(q.P, 'g', 4, 64), render.Fixed(float64(q.PaVariables), 4), render.Fixed(float64(q.PaAttributes), 4))
+		}
+		oc.Note("Method: %s.", res.Method)
+		oc.Note("Caution: %s", planCaution)
+		return writeTables(w, o.Out.Format, pt, oc)
+	})
+}
+
+// ocGrid returns fractions nonconforming for the OC table: a logarithmic
+// grid from p1/10 to min(0.5, 4 p2) plus p1 and p2, sorted, rounded to 3
+// significant digits.
+func ocGrid(p1, p2 float64) []float64 {
+	lo, hi := p1/10, math.Min(0.5, 4*p2)
+	const m = 14
+	set := map[float64]bool{p1: true, p2: true}
+	for i := 0; i <= m; i++ {
+		p := lo * math.Pow(hi/lo, float64(i)/m)
+		r, _ := strconv.ParseFloat(strconv.FormatFloat(p, 'g', 3, 64), 64)
+		set[r] = true
+	}
+	out := make([]float64, 0, len(set))
+	for p := range set {
+		out = append(out, p)
+	}
+	sort.Float64s(out)
+	return out
+}
