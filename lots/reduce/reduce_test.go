@@ -705,3 +705,44 @@ func TestNoPanic(t *testing.T) {
 		}()
 	}
 }
+
+// TestLayoutVariants: CRLF line ends, a time column and comma-separated
+// values read the same as the plain layout; an unknown metadata key is a
+// located error.
+func TestLayoutVariants(t *testing.T) {
+	x, s := epp(200000, 250, 0.25, 300)
+	plain := record("V", x, s)
+	ref, err := Reduce(parseOne(t, plain), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	crlf := bytes.ReplaceAll(plain, []byte("\n"), []byte("\r\n"))
+	r, err := Reduce(parseOne(t, crlf), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "CRLF proof", r.Proof, ref.Proof, 1e-12)
+	lines := strings.Split(string(plain), "\n")
+	var b strings.Builder
+	inData := false
+	for i, l := range lines {
+		switch {
+		case l == "columns: force extension":
+			l = "columns: time, force, extension"
+		case l == "@data":
+			inData = true
+		case l == "@end":
+			inData = false
+		case inData:
+			l = num(float64(i)/10, 1) + "," + strings.Replace(l, " ", ",", 1)
+		}
+		b.WriteString(l + "\n")
+	}
+	r, err = Reduce(parseOne(t, []byte(b.String())), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "time column proof", r.Proof, ref.Proof, 1e-12)
+	_, err = ParseBytes(bytes.Replace(plain, []byte("lot: L\n"), []byte("lot: L\ncolour: red\n"), 1), "k.rec")
+	inputError(t, err, "k.rec:4:1", "unknown metadata key \"colour\"")
+}
