@@ -1,0 +1,127 @@
+package allowables
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"lotproof/lots"
+	"lotproof/stats"
+)
+
+// bound computes one level's bound by the named method over the lots'
+// values (each method's formula and source are in its stats doc comment).
+func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound, error) {
+	all := flatten(values)
+	switch method {
+	case Normal:
+		return stats.NormalLowerBound(all, l.Content, l.Confidence)
+	case Lognormal:
+		return stats.LognormalLowerBound(all, l.Content, l.Confidence)
+	case Weibull, WeibullExact:
+		return stats.Bound{}, fmt.Errorf("PENDING weibull bound")
+	case Nonparametric:
+		// The order statistic when n is large enough for the level,
+		// otherwise Hanson-Koopmans with the largest value as x_(r).
+		return stats.NonparametricLowerBound(all, l.Content, l.Confidence, stats.NonparametricOptions{})
+	case HansonKoop:
+		return hansonKoopmans(all, l)
+	case ANOVA:
+		return stats.ANOVALowerBound(values, l.Content, l.Confidence)
+	}
+	return stats.Bound{}, fmt.Errorf("unknown method %q", method)
+}
+
+// computeBasis computes the A- and B-basis values of r by r.Method. The
+// nonparametric methods use the order statistic where n is large enough
+// for the level and Hanson-Koopmans below that (A-basis below 299 values,
+// B-basis below 29; CMH-17-1G 8.3.4.5), as stats.NonparametricLowerBound
+// decides; the method actually used is recorded per level.
+func computeBasis(r *Result, opt Options) error {
+	for _, lv := range []struct {
+		name string
+		l    Level
+		dst  *Basis
+		val  *lots.Float
+	}{{"A", opt.A, &r.A, &r.ABasis}, {"B", opt.B, &r.B, &r.BBasis}} {
+		method := r.Method
+		b, err := bound(method, r.values, lv.l, opt)
+		if err == nil && b.Method != "" {
+			method = b.Method
+		}
+		*lv.dst = Basis{Value: lots.NaN, Factor: lots.NaN, MCStdErr: lots.NaN, Content: lv.l.Content, Confidence: lv.l.Confidence}
+		*lv.val = lots.NaN
+		if err != nil {
+			// A bound that is not defined (too few values for the level)
+			// is reported as missing with the reason, not as an error,
+			// when the other level can still be given.
+			lv.dst.Note = err.Error()
+			r.step(lv.name+"-basis", math.NaN(), math.NaN(), "not defined", err.Error())
+			r.warn("no %s-basis value: %v", lv.name, err)
+			continue
+		}
+		lv.dst.Value, lv.dst.Factor = lots.Float(b.Value), lots.Float(b.Factor)
+		if b.MCStdErr > 0 {
+			lv.dst.MCStdErr = lots.Float(b.MCStdErr)
+		}
+		if method != r.Method {
+			lv.dst.Note = "by " + method
+		}
+		for _, n := range b.Notes {
+			if n != stats.DesignValueCaution && !strings.Contains(lv.dst.Note, n) {
+				lv.dst.Note = strings.TrimPrefix(lv.dst.Note+"; "+n, "; ")
+			}
+		}
+		*lv.val = lots.Float(b.Value)
+		for k, v := range b.Params {
+			r.Parameters[k] = lots.Float(v)
+		}
+		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g, factor %.5g", method, b.N, lv.l.Content, lv.l.Confidence, b.Factor)
+		if b.MCStdErr > 0 {
+			reason += fmt.Sprintf(", Monte Carlo standard error %.3g (%d samples, seed %d)", b.MCStdErr, opt.Sims, opt.Seed)
+		}
+		if ps := paramText(b.Params); ps != "" {
+			reason += "; " + ps
+		}
+		r.step(lv.name+"-basis", b.Value, math.NaN(), fmt.Sprintf("%.5g", b.Value), reason)
+	}
+	if math.IsNaN(float64(r.ABasis)) && math.IsNaN(float64(r.BBasis)) {
+		return fmt.Errorf("neither an A- nor a B-basis value is defined by the %s method: %s", r.Method, r.B.Note)
+	}
+	return nil
+}
+
+func paramText(p map[string]float64) string {
+	keys := make([]string, 0, len(p))
+	for k := range p {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	var parts []string
+	for _, k := range keys {
+		parts = append(parts, fmt.Sprintf("%s %.6g", k, p[k]))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// hansonKoopmans is the Hanson-Koopmans (1964) bound x_(n) (x_(1)/x_(n))^k
+// whatever n (the forced method; the automatic choice uses it only below
+// the order-statistic minimum), k from stats.HansonKoopmansK with r = n.
+func hansonKoopmans(x []float64, l Level) (stats.Bound, error) {
+	n := len(x)
+	if n < 2 {
+		return stats.Bound{}, fmt.Errorf("the Hanson-Koopmans bound needs at least 2 values")
+	}
+	s := append([]float64(nil), x...)
+	sort.Float64s(s)
+	if s[0] <= 0 {
+		return stats.Bound{}, fmt.Errorf("the Hanson-Koopmans bound needs positive values (smallest %g)", s[0])
+	}
+	k, err := stats.HansonKoopmansK(n, n, l.Content, l.Confidence)
+	if err != nil {
+		return stats.Bound{}, err
+	}
+	return stats.Bound{Value: s[n-1] * math.Pow(s[0]/s[n-1], k), Factor: k, Method: HansonKoop, N: n,
+		Content: l.Content, Confidence: l.Confidence, Params: map[string]float64{"x1": s[0], "xn": s[n-1]}}, nil
+}
