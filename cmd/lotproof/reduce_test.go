@@ -150,7 +150,7 @@ func TestReduceBadInput(t *testing.T) {
 		args  []string
 		want  string
 	}{
-		{"", []string{"reduce", bad}, "bad.rec:1:1: record \"T-1\": maximum stress"},
+		{"", []string{"reduce", bad}, "bad.rec:14:1: record \"T-1\": maximum stress"},
 		{string(good[:len(good)/2]), []string{"reduce", "-"}, "-:"},
 		{"", []string{"reduce", filepath.Join(dir, "missing.rec")}, "missing.rec: cannot open"},
 		{"", []string{"reduce", t.TempDir()}, "no .rec files"},

@@ -37,8 +37,10 @@ type Record struct {
 	FinalArea  float64 // minimum final cross-section Su [mm^2], NaN when not given
 	Crosshead  bool    // the extension is crosshead travel, not an extensometer
 
-	ForceUnit  string // as written
-	LengthUnit string // as written
+	ForceUnit      string // as written
+	LengthUnit     string // as written
+	ForceUnitLine  int    // line of the force unit (for messages)
+	LengthUnitLine int    // line of the length unit
 
 	Force  []float64 // [N]
 	Strain []float64 // engineering strain (extension / Le), before toe compensation
@@ -315,7 +317,7 @@ func (r *Record) applyMeta(meta map[string]metaKey, dataLine int, add func(line,
 		bad(m, fmt.Sprintf("unknown length unit %q (expected mm or in)", m.val), "write \"length unit: mm\" or \"length unit: in\"")
 	} else {
 		lscale = v
-		r.LengthUnit = m.val
+		r.LengthUnit, r.LengthUnitLine = m.val, m.line
 	}
 	// Columns.
 	colm, has := get("columns")
@@ -348,7 +350,7 @@ func (r *Record) applyMeta(meta map[string]metaKey, dataLine int, add func(line,
 		bad(m, fmt.Sprintf("unknown force unit %q (expected N, kN, lbf or kip)", m.val), "write one of N, kN, lbf, kip")
 	} else {
 		fscale = v
-		r.ForceUnit = m.val
+		r.ForceUnit, r.ForceUnitLine = m.val, m.line
 	}
 	strainU = 1
 	if m, has := get("strain unit"); has {

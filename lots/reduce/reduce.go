@@ -154,11 +154,11 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	// 2. Plausibility of the units: a metal tensile test gives a maximum
 	// stress of 1 to 5000 MPa and strains below 200 % (common practice).
 	if !(sm >= 1 && sm <= 5000) {
-		return nil, lots.Inputf(res.Source, "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
-			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force or length unit is probably wrong", rec.ID, sm)
+		return nil, lots.Inputf(rec.Where(firstNonZero(rec.ForceUnitLine, rec.Line)), "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
+			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force unit %q or the length unit %q is probably wrong", rec.ID, sm, rec.ForceUnit, rec.LengthUnit)
 	}
 	if xm := x[argmax(x)]; !(xm > 0) || xm > 2 {
-		return nil, lots.Inputf(res.Source, "check \"length unit\", \"extensometer gauge length\", \"strain unit\" and that the columns are in the order stated",
+		return nil, lots.Inputf(rec.Where(firstNonZero(rec.LengthUnitLine, rec.Line)), "check \"length unit\", \"extensometer gauge length\", \"strain unit\", the sign of the extension and that the columns are in the order stated",
 			"record %q: largest strain %.4g is implausible (expected between 0 and 2, i.e. up to 200 %%)", rec.ID, xm)
 	}
 	res.Noise = noiseSD(s)
@@ -827,4 +827,11 @@ func selectK(v []float64, k int) float64 {
 		}
 	}
 	return v[k]
+}
+
+func firstNonZero(a, b int) int {
+	if a != 0 {
+		return a
+	}
+	return b
 }

@@ -542,11 +542,11 @@ func TestBadInput(t *testing.T) {
 		t.Fatal(err)
 	}
 	_, err = Reduce(recs[0], Options{})
-	inputError(t, err, "u.rec:1:1", "implausible")
+	inputError(t, err, "u.rec:9:1", "implausible")
 	// Extension declared in inches but written in mm: strain 25 times too large.
 	recs, _ = ParseBytes([]byte(strings.Replace(text, "length unit: mm", "length unit: in", 1)), "u.rec")
 	_, err = Reduce(recs[0], Options{})
-	inputError(t, err, "u.rec:1:1", "implausible")
+	inputError(t, err, "u.rec:9:1", "the length unit \"in\" is probably wrong")
 	// Unknown unit, located at its value.
 	_, err = ParseBytes([]byte(strings.Replace(text, "force unit: kN", "force unit: kgf", 1)), "k.rec")
 	inputError(t, err, "k.rec:9:13", "unknown force unit \"kgf\"")
@@ -577,7 +577,7 @@ func TestBadInput(t *testing.T) {
 		recs[0].Strain[i] = -recs[0].Strain[i]
 	}
 	_, err = Reduce(recs[0], Options{})
-	inputError(t, err, "s.rec:1:1", "implausible")
+	inputError(t, err, "s.rec:10:1", "implausible")
 }
 
 // TestManyRecordsOneFile: records follow one another in one file.
