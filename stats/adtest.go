@@ -45,13 +45,16 @@ func logPhi(z float64) float64 {
 }
 
 // adNormalStat computes A² for the normal model with mean and SD (n-1)
-// estimated from x, and the fit.
+// estimated from x, and the fit of x - x[0].
 func adNormalStat(x []float64) (float64, NormalFit, error) {
-	f, err := FitNormal(x)
+	// Fit on x - x[0] (exact for close values) so that z keeps its
+	// accuracy when the spread is tiny relative to the level.
+	y := shifted(x)
+	f, err := FitNormal(y)
 	if err != nil {
 		return 0, f, err
 	}
-	s := sortedCopy(x)
+	s := sortedCopy(y)
 	lnF := make([]float64, len(s))
 	lnS := make([]float64, len(s))
 	for i, v := range s {

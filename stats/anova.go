@@ -112,6 +112,9 @@ func OneWayANOVA(groups [][]float64) (ANOVAResult, error) {
 	r.MSB = r.SSB / float64(r.DFB)
 	r.MSW = r.SSW / float64(r.DFW)
 	r.F = r.MSB / r.MSW
+	if math.IsInf(r.F, 0) || math.IsNaN(r.F) {
+		return ANOVAResult{}, fmt.Errorf("one-way anova: within-group variation negligible against between-group (F overflows): %w", ErrZeroSpread)
+	}
 	r.P = fSurvival(r.F, float64(r.DFB), float64(r.DFW))
 	return r, nil
 }

@@ -93,20 +93,24 @@ func MaxNormedResidual(x []float64, alpha float64) (MNRResult, error) {
 	if err != nil {
 		return MNRResult{}, err
 	}
-	m, sd := meanSD(x)
+	// Work on x - x[0] (exact when the values are close), so that the
+	// mean of data varying in the last bits is not rounded away.
+	y := shifted(x)
+	m, sd := meanSD(y)
 	if math.IsInf(sd, 0) || math.IsNaN(sd) || math.IsNaN(m) || math.IsInf(m, 0) {
 		return MNRResult{}, fmt.Errorf("max normed residual: values too large: %w", ErrNonFinite)
 	}
 	if sd == 0 {
 		return MNRResult{}, fmt.Errorf("max normed residual: all values equal: %w", ErrZeroSpread)
 	}
-	idx, dmax := 0, -1.0
-	for i, v := range x {
-		if d := math.Abs(v - m); d > dmax {
-			idx, dmax = i, d
+	// Half deviations cannot overflow for finite data.
+	idx, hmax := 0, -1.0
+	for i, v := range y {
+		if d := math.Abs(v/2 - m/2); d > hmax {
+			idx, hmax = i, d
 		}
 	}
-	r := MNRResult{Index: idx, Value: x[idx], MNR: dmax / sd, Critical: c}
+	r := MNRResult{Index: idx, Value: x[idx], MNR: 2 * (hmax / sd), Critical: c}
 	r.Outlier = r.MNR > r.Critical
 	return r, nil
 }
@@ -168,4 +172,18 @@ func removeIndex(idx []int, v int) []int {
 		}
 	}
 	return out
+}
+
+// shifted returns x - x[0] when that is finite for every value, else a
+// copy of x.
+func shifted(x []float64) []float64 {
+	y := make([]float64, len(x))
+	for i, v := range x {
+		y[i] = v - x[0]
+		if math.IsInf(y[i], 0) {
+			copy(y, x)
+			return y
+		}
+	}
+	return y
 }
