@@ -131,11 +131,12 @@ func SChartLimits(sbar float64, n int) (Limits, error) {
 	if math.IsNaN(sbar) || math.IsInf(sbar, 0) || sbar <= 0 {
 		return Limits{}, fmt.Errorf("S chart centre %v must be a positive number: %w", sbar, errCtlDomain)
 	}
-	c, err := ChartFactors(n)
+	c4, err := C4(n)
 	if err != nil {
 		return Limits{}, err
 	}
-	return Limits{Center: sbar, Lower: c.B3 * sbar, Upper: c.B4 * sbar, Sigma: sbar * math.Sqrt(1-c.C4*c.C4) / c.C4}, nil
+	k := 3 * math.Sqrt(1-c4*c4) / c4 // B3 = max(0, 1-k), B4 = 1+k
+	return Limits{Center: sbar, Lower: math.Max(0, 1-k) * sbar, Upper: (1 + k) * sbar, Sigma: sbar * k / 3}, nil
 }
 
 // PooledSBar is the S chart centre line for subgroups of unequal sizes,

@@ -1,0 +1,53 @@
+package store
+
+import (
+	"context"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// peakRSSMB reads the process's peak resident set size (VmHWM, Linux).
+func peakRSSMB() float64 {
+	b, err := os.ReadFile("/proc/self/status")
+	if err != nil {
+		return -1
+	}
+	for _, line := range strings.Split(string(b), "\n") {
+		if strings.HasPrefix(line, "VmHWM:") {
+			f := strings.Fields(line)
+			kb, _ := strconv.ParseFloat(f[1], 64)
+			return kb / 1024
+		}
+	}
+	return -1
+}
+
+// BenchmarkRecordMillion records 1,000,000 specimens (200,000 lots of 5,
+// two properties each) into a fresh SQLite database in one import.
+// Run: go test -run '^$' -bench RecordMillion -benchtime 1x ./lots/store/
+func BenchmarkRecordMillion(b *testing.B) {
+	d := dataset(b, "million.csv", synth("M", 200000, 5, 1))
+	ctx := context.Background()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		b.StopTimer()
+		s, err := Open(ctx, filepath.Join(b.TempDir(), "m.db"))
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.StartTimer()
+		r, err := s.Record(ctx, d, nil, nil, Meta{Time: t0, User: "bench"})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if r.SpecimensNew != 1000000 {
+			b.Fatalf("%d specimens", r.SpecimensNew)
+		}
+		b.StopTimer()
+		s.Close()
+	}
+	b.ReportMetric(peakRSSMB(), "peak-RSS-MB")
+}
