@@ -602,8 +602,9 @@ func (res *Result) smoothProof(x, s []float64, i int, E, off float64) {
 // A fall counts when the stress drops more than delta below its running
 // maximum while the plastic strain is below 1 % and the curve continues
 // for at least another 1 % strain (so necking and fracture do not count).
-// The yielding ends where the stress first regains ReH or reaches its
-// maximum; the initial transient is the first dip below the median of the
+// The yielding ends where the stress first regains ReH or, when it never
+// does, at the last point within delta of the highest stress after the
+// fall; the initial transient is the first dip below the median of the
 // yielding stresses, which is left out of the minimum.
 func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
 	run := 0
@@ -626,6 +627,15 @@ func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
 			q = i
 			break
 		}
+	}
+	// Without later hardening above ReH, the yielding ends at the last
+	// point within delta of the highest stress after the fall, before any
+	// necking.
+	if q == len(s) {
+		top := s[p+1+argmax(s[p+1:])]
+		for q = len(s) - 1; q > p+1 && s[q] < top-delta; q-- {
+		}
+		q++
 	}
 	if q-p < 3 {
 		return

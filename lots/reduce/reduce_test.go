@@ -330,6 +330,26 @@ func TestDiscontinuousYield(t *testing.T) {
 	}
 }
 
+// TestDiscontinuousNoHardening: when the stress never regains ReH, the
+// yielding ends at the highest point after the fall, so the necking that
+// follows does not count as yielding: ReH 360 = Rm, ReL 330 (constructed).
+func TestDiscontinuousNoHardening(t *testing.T) {
+	x, s := discontinuous(205000, 360, 330, 480)
+	k := indexAbove(x, 0.02)
+	x, s = x[:k], s[:k]
+	for i := 1; i <= 300; i++ {
+		x, s = append(x, 0.02+0.03*float64(i)/300), append(s, 336-86*float64(i)/300)
+	}
+	x, s = append(x, 0.051), append(s, 1)
+	r, err := Reduce(parseOne(t, record("Y2", x, s)), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "upper yield", r.UpperYield, 360, 1e-3)
+	near(t, "lower yield", r.LowerYield, 330, 1e-3)
+	near(t, "tensile", r.Tensile, 360, 1e-3)
+}
+
 // TestBrittle: a specimen that breaks at 200 MPa in the elastic range
 // has no proof strength and says so; nothing is made up.
 func TestBrittle(t *testing.T) {
