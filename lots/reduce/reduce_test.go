@@ -328,6 +328,18 @@ func TestDiscontinuousYield(t *testing.T) {
 	if !(r.Proof >= 330 && r.Proof <= 336) {
 		t.Errorf("proof %g: want on the plateau 330..336", r.Proof)
 	}
+	// With normal noise of SD 0.5 MPa the raw extremes move by a few SD:
+	// ReH and ReL within 2 MPa.
+	rng := rand.New(rand.NewPCG(5, 6))
+	for i := range s {
+		s[i] += 0.5 * rng.NormFloat64()
+	}
+	r, err = Reduce(parseOne(t, record("Yn", x, s)), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "noisy upper yield", r.UpperYield, 360, 2)
+	near(t, "noisy lower yield", r.LowerYield, 330, 2)
 }
 
 // TestDiscontinuousNoHardening: when the stress never regains ReH, the
