@@ -1,7 +1,6 @@
 package lots
 
 import (
-	"bufio"
 	"bytes"
 	"crypto/sha256"
 	"encoding/csv"
@@ -237,45 +236,40 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 // *InputError: a caller that wrote anything from fn must discard it.
 func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Header, error) {
 	t := newTable(name)
-	br := bufio.NewReaderSize(r, 1<<16)
+	rr := newRecordReader(r, name)
 	// A UTF-8 byte order mark is not part of the first heading.
-	if b, err := br.Peek(3); err == nil && bytes.Equal(b, []byte("\xEF\xBB\xBF")) {
-		br.Discard(3)
+	if b, err := rr.br.Peek(3); err == nil && bytes.Equal(b, []byte("\xEF\xBB\xBF")) {
+		rr.br.Discard(3)
 	}
-	cr := csv.NewReader(br)
-	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = true
-	var loc locator = csvLocator{name: name, r: cr}
-	fields, err := cr.Read()
+	fields, err := rr.Read()
 	if err == io.EOF {
 		return nil, Inputf(name+":1:1", "write a header row such as \"specimen,lot,tensile [MPa]\" and one row per specimen", "the file is empty")
 	}
 	if err != nil {
 		return nil, csvError(name, err)
 	}
-	if !t.parseHeader(fields, loc) {
+	if !t.parseHeader(fields, rr) {
 		return nil, t.problems.err()
 	}
 	h := t.header
 	s := Specimen{Values: make([]float64, len(h.Properties))}
 	for {
-		fields, err = cr.Read()
+		fields, err = rr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			t.problems.add(csvWhere(name, err), csvWhat(err), "fix the quoting: a field with a comma, quote or line break is enclosed in double quotes, and a quote inside it is doubled")
 			var pe *csv.ParseError
-			if errors.As(err, &pe) && (errors.Is(pe.Err, csv.ErrQuote) || errors.Is(pe.Err, csv.ErrBareQuote)) {
-				break // the rest of the file cannot be trusted to line up
+			if !errors.As(err, &pe) {
+				return nil, fmt.Errorf("%s: %w", name, err)
 			}
-			continue
+			t.problems.add(csvWhere(name, err), csvWhat(err), "fix the quoting: a field with a comma, quote or line break is enclosed in double quotes, and a quote inside it is doubled")
+			break // the rest of the file cannot be trusted to line up
 		}
-		line, _ := cr.FieldPos(0)
 		if len(fields) == 1 && strings.TrimSpace(fields[0]) == "" && h.width > 1 {
 			continue // a blank line
 		}
-		if !t.parseRow(fields, line, loc, &s) || t.problems.any() {
+		if !t.parseRow(fields, rr.line, rr, &s) || t.problems.any() {
 			continue
 		}
 		if fn != nil {
@@ -285,20 +279,9 @@ func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Head
 		}
 	}
 	if t.rows == 0 && !t.problems.any() {
-		line, _ := cr.FieldPos(0)
-		return nil, Inputf(fmt.Sprintf("%s:%d:1", name, line+1), "add one row per specimen below the header", "the file has a header but no specimen rows")
+		return nil, Inputf(fmt.Sprintf("%s:%d:1", name, rr.next), "add one row per specimen below the header", "the file has a header but no specimen rows")
 	}
 	return h, t.problems.err()
-}
-
-type csvLocator struct {
-	name string
-	r    *csv.Reader
-}
-
-func (l csvLocator) at(field int) string {
-	line, col := l.r.FieldPos(field)
-	return fmt.Sprintf("%s:%d:%d", l.name, line, col)
 }
 
 func csvWhere(name string, err error) string {

@@ -1,0 +1,146 @@
+package lots
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+)
+
+// recordReader reads CSV records (RFC 4180, as encoding/csv reads them)
+// with their positions. Lines without a double quote, by far the most
+// common, are split on commas directly (one string allocation a record);
+// a record with quotes, which may span lines, is handed to encoding/csv so
+// that quoting follows the standard library exactly.
+type recordReader struct {
+	br      *bufio.Reader
+	name    string
+	next    int // number of the next line to read (1-based)
+	line    int // line on which the current record starts
+	fields  []string
+	lines   []int // line of each field
+	cols    []int // 1-based byte column of each field
+	pending []byte
+}
+
+// maxQuoted caps how much a quoted record may span, so that a stray quote
+// cannot make the reader hold the rest of a large file.
+const maxQuoted = 1 << 20
+
+func newRecordReader(r io.Reader, name string) *recordReader {
+	return &recordReader{br: bufio.NewReaderSize(r, 1<<16), name: name, next: 1}
+}
+
+// readLine returns the next physical line without its line end, or io.EOF.
+func (rr *recordReader) readLine() ([]byte, error) {
+	line, err := rr.br.ReadSlice('\n')
+	if err == bufio.ErrBufferFull {
+		rr.pending = append(rr.pending[:0], line...)
+		for err == bufio.ErrBufferFull {
+			line, err = rr.br.ReadSlice('\n')
+			rr.pending = append(rr.pending, line...)
+		}
+		line = rr.pending
+	}
+	if err != nil && err != io.EOF {
+		return nil, err
+	}
+	if len(line) == 0 && err == io.EOF {
+		return nil, io.EOF
+	}
+	rr.next++
+	return line, nil
+}
+
+func trimEOL(b []byte) []byte {
+	b = bytes.TrimSuffix(b, []byte("\n"))
+	return bytes.TrimSuffix(b, []byte("\r"))
+}
+
+// Read returns the next record. Errors are *csv.ParseError with absolute
+// line numbers.
+func (rr *recordReader) Read() ([]string, error) {
+	for {
+		start := rr.next
+		raw, err := rr.readLine()
+		if err != nil {
+			return nil, err
+		}
+		line := trimEOL(raw)
+		if len(line) == 0 {
+			continue // encoding/csv skips empty lines too
+		}
+		if bytes.IndexByte(line, '"') < 0 {
+			rr.split(line, start)
+			return rr.fields, nil
+		}
+		// A quoted record: gather lines until the quotes balance.
+		chunk := append([]byte(nil), raw...)
+		for bytes.Count(chunk, []byte{'"'})%2 == 1 {
+			if len(chunk) > maxQuoted {
+				return nil, &csv.ParseError{StartLine: start, Line: start, Column: 1,
+					Err: fmt.Errorf("a quoted field opened here is not closed within %d bytes", maxQuoted)}
+			}
+			more, err := rr.readLine()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				return nil, err
+			}
+			chunk = append(chunk, more...)
+		}
+		return rr.quoted(chunk, start)
+	}
+}
+
+// split splits an unquoted line on commas.
+func (rr *recordReader) split(line []byte, lineNo int) {
+	s := string(line)
+	rr.line = lineNo
+	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
+	from := 0
+	for i := 0; i <= len(s); i++ {
+		if i == len(s) || s[i] == ',' {
+			rr.fields = append(rr.fields, s[from:i])
+			rr.lines = append(rr.lines, lineNo)
+			rr.cols = append(rr.cols, from+1)
+			from = i + 1
+		}
+	}
+}
+
+// quoted parses one quoted record with encoding/csv.
+func (rr *recordReader) quoted(chunk []byte, lineNo int) ([]string, error) {
+	cr := csv.NewReader(bytes.NewReader(chunk))
+	cr.FieldsPerRecord = -1
+	rec, err := cr.Read()
+	if err != nil {
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			pe.StartLine += lineNo - 1
+			pe.Line += lineNo - 1
+			return nil, pe
+		}
+		return nil, err
+	}
+	rr.line = lineNo
+	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
+	for i, f := range rec {
+		l, c := cr.FieldPos(i)
+		rr.fields = append(rr.fields, f)
+		rr.lines = append(rr.lines, l+lineNo-1)
+		rr.cols = append(rr.cols, c)
+	}
+	return rr.fields, nil
+}
+
+// at locates field i of the current record as file:line:column.
+func (rr *recordReader) at(i int) string {
+	if i >= len(rr.cols) {
+		return fmt.Sprintf("%s:%d:1", rr.name, rr.line)
+	}
+	return fmt.Sprintf("%s:%d:%d", rr.name, rr.lines[i], rr.cols[i])
+}
