@@ -17,34 +17,57 @@ type MNRResult struct {
 	Outlier  bool    // MNR > Critical
 }
 
-// tUpperQuantile returns the t value with upper-tail probability q for
-// Student's t with df degrees of freedom, t = sqrt(df (1-y)/y) with
-// y = I⁻¹(df/2, 1/2; 2q) (Abramowitz & Stegun 26.7.1 and 26.5). The tail
-// probability is passed directly so that q far below 1e-16 keeps its
-// accuracy (gonum's StudentsT.Quantile takes p = 1-q). gonum's
-// mathext.InvRegIncBeta alone is good to only ~2e-9 relative here, so the
-// starting value is polished by Newton steps on the survival function
-// S(t) = ½ I_{df/(df+t²)}(df/2, 1/2) (mathext.RegIncBeta, good to ~1e-12),
-// t ← t + (S(t) - q)/f(t) with f the t density. Checked against
-// scipy.stats.t.isf in outlier_test.go.
+// tUpperQuantile returns the t value with upper-tail probability q
+// (0 < q < 1/2) for Student's t with df degrees of freedom: the root of
+// S(t) = ½ I_{df/(df+t²)}(df/2, 1/2) = q (Abramowitz & Stegun 26.7.1 with
+// 26.5), S evaluated with gonum's mathext.RegIncBeta. The tail probability
+// is passed directly so that q far below 1e-16 keeps its accuracy (gonum's
+// StudentsT.Quantile takes p = 1-q), and the root is found by Newton's
+// method on ln S(t) - ln q, safeguarded by bisection inside a bracket
+// (Press et al., Numerical Recipes 3rd ed. section 9.4), started from
+// mathext.InvRegIncBeta — alone good to only ~2e-9 here and failing
+// outright for df ≳ 1e5 — or from the Cornish-Fisher normal
+// approximation t ≈ z + (z³ + z)/(4 df) when that start is unusable.
+// Checked against mpmath in outlier_test.go.
 func tUpperQuantile(q, df float64) float64 {
+	if !(q > 0 && q < 0.5) || !(df > 0) {
+		return math.NaN()
+	}
+	surv := func(t float64) float64 { return 0.5 * mathext.RegIncBeta(df/2, 0.5, df/(df+t*t)) }
+	lq := math.Log(q)
 	y := mathext.InvRegIncBeta(df/2, 0.5, 2*q)
 	t := math.Sqrt(df * (1 - y) / y)
-	if math.IsNaN(t) || math.IsInf(t, 0) || t <= 0 {
-		return t
+	if !(t > 0) || math.IsInf(t, 0) || math.Abs(math.Log(surv(t))-lq) > 0.7 {
+		z := math.Sqrt2 * math.Erfcinv(2*q)
+		t = z + (z*z*z+z)/(4*df)
+	}
+	// Bracket [lo, hi] with S(lo) > q > S(hi); S(0) = 1/2 > q.
+	lo, hi := 0.0, t
+	for i := 0; surv(hi) > q; i++ {
+		lo = hi
+		hi *= 2
+		if i > 2000 || math.IsInf(hi, 0) {
+			return math.NaN()
+		}
 	}
 	dist := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}
-	for i := 0; i < 8; i++ {
-		s := 0.5 * mathext.RegIncBeta(df/2, 0.5, df/(df+t*t))
-		f := dist.Prob(t)
-		if !(f > 0) {
-			break
+	for i := 0; i < 200; i++ {
+		s := surv(t)
+		if s > q {
+			lo = t
+		} else {
+			hi = t
 		}
-		step := (s - q) / f
-		t += step
-		if math.Abs(step) <= 1e-15*t {
-			break
+		f := math.Log(s) - lq
+		d := -dist.Prob(t) / s // d/dt ln S(t)
+		next := t - f/d
+		if !(next > lo && next < hi) || !(d < 0) || math.IsNaN(next) {
+			next = lo + (hi-lo)/2
 		}
+		if math.Abs(next-t) <= 1e-15*t || hi-lo <= 1e-15*hi {
+			return next
+		}
+		t = next
 	}
 	return t
 }

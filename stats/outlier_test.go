@@ -20,9 +20,12 @@ type distRef struct {
 
 // tUpperQuantile (gonum mathext.InvRegIncBeta start, Newton-polished on
 // mathext.RegIncBeta) against the upper alpha/(2n) quantile of t(n-2) for
-// n = 3..10000, alpha = 0.001..0.2 computed with mpmath at 40 digits
+// n = 3..1e7, alpha = 0.001..0.2 computed with mpmath at 40 digits
 // (Debian python3-mpmath; testdata/stats/make_dist_ref.py), and the MNR
-// critical value built from it: 1e-12 relative. Also against
+// critical value built from it: 1e-12 relative for n <= 10000; for
+// n = 3e4..1e7 gonum's RegIncBeta (which defines S(t)) carries a relative
+// error growing with df (measured up to ~5e-11; the same log-beta
+// cancellation as in the F survival check), asserted at 2e-10. Also against
 // scipy.stats.t.isf at 5e-9: scipy 1.10's t.isf is itself only good to
 // ~2e-9 there (measured against mpmath), as is unpolished InvRegIncBeta.
 func TestTQuantileAndMNRCriticalAgainstScipy(t *testing.T) {
@@ -38,8 +41,12 @@ func TestTQuantileAndMNRCriticalAgainstScipy(t *testing.T) {
 		}
 		worstT = math.Max(worstT, relErr(tq, r[2]))
 		worstC = math.Max(worstC, relErr(c, r[3]))
-		checkRel(t, "t quantile (mpmath)", tq, r[2], 1e-12)
-		checkRel(t, "MNR critical (mpmath)", c, r[3], 1e-12)
+		tol := 1e-12
+		if n > 10000 {
+			tol = 2e-10
+		}
+		checkRel(t, "t quantile (mpmath)", tq, r[2], tol)
+		checkRel(t, "MNR critical (mpmath)", c, r[3], tol)
 		checkRel(t, "t quantile (scipy t.isf)", tq, r[4], 5e-9)
 	}
 	t.Logf("worst relative error: t quantile %.3g, MNR critical %.3g over %d points", worstT, worstC, len(ref.TIsf))

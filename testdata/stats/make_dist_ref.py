@@ -4,7 +4,7 @@ the maximum normed residual test (stats/outlier_test.go, stats/adtest_test.go).
 
 Run: /usr/bin/python3 make_dist_ref.py > dist_ref.json
 
- - the upper alpha/(2n) quantile of Student's t with n-2 df, n = 3..10000, alpha = 0.001..0.2
+ - the upper alpha/(2n) quantile of Student's t with n-2 df, n = 3..1e7, alpha = 0.001..0.2
    (MNR critical values), two ways: scipy.stats.t.isf, and mpmath (Debian python3-mpmath) at
    40 digits, solving 1/2 I_{df/(df+t^2)}(df/2, 1/2) = q with findroot from scipy's value.
    scipy 1.10's t.isf turns out to be good to only ~2e-9 relative here; mpmath is the reference.
@@ -21,7 +21,8 @@ import numpy as np
 import scipy
 from scipy import stats
 
-ns = list(range(3, 31)) + [35, 40, 50, 60, 75, 100, 150, 200, 300, 500, 1000, 2000, 5000, 10000]
+ns = list(range(3, 31)) + [35, 40, 50, 60, 75, 100, 150, 200, 300, 500, 1000, 2000, 5000, 10000,
+                               30000, 100000, 1000000, 10000000]
 alphas = [0.001, 0.01, 0.02, 0.05, 0.10, 0.20]
 mp.mp.dps = 40
 
