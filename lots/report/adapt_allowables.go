@@ -1,0 +1,210 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"lotproof/lots"
+	"lotproof/lots/allowables"
+	"lotproof/lots/units"
+)
+
+// AllowablesSection lays out design values from a qualification campaign:
+// the table of A- and B-basis values per property and condition, then per
+// result its audit trail (every step with its statistic, threshold,
+// decision and reason), flagged and excluded values, warnings, and the
+// campaign's figures for the property with the basis values drawn (when
+// the campaign dataset is given). It also returns summary items.
+func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section, []KV, error) {
+	sec := Section{Title: "Design values (A- and B-basis)"}
+	if rep == nil {
+		return sec, nil, fmt.Errorf("report: no design-value analysis")
+	}
+	o := rep.Options
+	sec.Intro = fmt.Sprintf("Campaign %s (SHA-256 %s), grouped by %s. A-basis: %g content at %g confidence; B-basis: %g content at %g confidence.",
+		rep.Input, shortDigest(rep.SHA256), o.GroupBy, o.A.Content, o.A.Confidence, o.B.Content, o.B.Confidence)
+	sec.Blocks = append(sec.Blocks, KeyValues{Title: "Settings", Items: []KV{
+		{Key: "method", Value: o.Method},
+		{Key: "outlier test level (MNR)", Value: num(o.OutlierAlpha, 4)},
+		{Key: "lot comparison level (k-sample AD)", Value: num(o.LotAlpha, 4)},
+		{Key: "distribution accepted when AD OSL >", Value: num(o.OSLMin, 4)},
+		{Key: "pooling level (Levene)", Value: num(o.LeveneAlpha, 4)},
+		{Key: "Monte Carlo samples, seed", Value: strconv.Itoa(o.Sims) + ", " + strconv.FormatUint(rep.Seed, 10)},
+	}})
+
+	t := &Table{Title: "Design values", Columns: Cols("property", "condition", ">n", ">lots", "method", ">A-basis", ">B-basis", ">mean", ">SD", ">min", ">max")}
+	var summary []KV
+	for _, r := range rep.Results {
+		method := r.Method
+		if r.AutoMethod != "" && r.AutoMethod != r.Method {
+			method += " (automatic choice: " + r.AutoMethod + ")"
+		}
+		row := Cells(r.Property+unitText(r.Unit), condText(r.Condition), strconv.Itoa(r.N), strconv.Itoa(r.Lots), method)
+		row = append(row, basisCell(r.ABasis), basisCell(r.BBasis))
+		row = append(row, Cells(num(float64(r.Mean), 5), num(float64(r.SD), 4), num(float64(r.Min), 5), num(float64(r.Max), 5))...)
+		t.Rows = append(t.Rows, row)
+		summary = append(summary, KV{Key: "B-basis, " + r.Property + condSuffix(r.Condition), Value: basisText(r.BBasis, r.Unit), Status: statusIf(isNum(r.BBasis), None, Undecided)})
+		if isNum(r.ABasis) {
+			summary = append(summary, KV{Key: "A-basis, " + r.Property + condSuffix(r.Condition), Value: basisText(r.ABasis, r.Unit)})
+		}
+	}
+	t.Note = "A dash: the value is not defined for this campaign (the audit trail says why)."
+	sec.Blocks = append(sec.Blocks, t)
+
+	for _, r := range rep.Results {
+		name := r.Property + condSuffix(r.Condition)
+		audit := &Audit{Title: "Audit trail: " + name}
+		for _, s := range r.Steps {
+			audit.Steps = append(audit.Steps, Step{Step: s.Step, Statistic: numOrEmpty(s.Statistic, 5), Threshold: numOrEmpty(s.Threshold, 5),
+				Decision: s.Decision, Reason: s.Reason, Status: stepStatus(s)})
+		}
+		for _, b := range []struct {
+			name string
+			b    allowables.Basis
+		}{{"A", r.A}, {"B", r.B}} {
+			if b.b.Note != "" {
+				audit.Steps = append(audit.Steps, Step{Step: b.name + "-basis note", Decision: b.b.Note, Status: Info})
+			}
+		}
+		sec.Blocks = append(sec.Blocks, audit)
+		if r.Pooled != nil {
+			p := r.Pooled
+			sec.Blocks = append(sec.Blocks, KeyValues{Title: "Pooled across conditions: " + r.Property, Items: []KV{
+				{Key: "conditions", Value: strings.Join(p.Conditions, ", ")},
+				{Key: "n, degrees of freedom", Value: strconv.Itoa(p.N) + ", " + strconv.Itoa(p.DF)},
+				{Key: "pooled CV", Value: num(float64(p.CV), 4)},
+				{Key: "A-basis (factor)", Value: num(float64(p.ABasis), 5) + " (" + num(float64(p.AFactor), 5) + ")"},
+				{Key: "B-basis (factor)", Value: num(float64(p.BBasis), 5) + " (" + num(float64(p.BFactor), 5) + ")"},
+			}})
+		}
+		if len(r.Outliers) > 0 {
+			ot := &Table{Title: "Flagged values (kept unless excluded): " + name, Columns: Cols("specimen", "lot", ">value", "within", ">MNR", ">critical")}
+			for _, x := range r.Outliers {
+				ot.Rows = append(ot.Rows, []Cell{{Text: x.Specimen, Status: Warn}, {Text: x.Lot}, {Text: num(float64(x.Value), 5)}, {Text: x.Within},
+					{Text: num(float64(x.MNR), 4)}, {Text: num(float64(x.Critical), 4)}})
+			}
+			sec.Blocks = append(sec.Blocks, ot)
+		}
+		if len(r.Excluded) > 0 {
+			et := &Table{Title: "Excluded by the user: " + name, Columns: Cols("specimen", "lot", ">value", "reason")}
+			for _, x := range r.Excluded {
+				et.Rows = append(et.Rows, Cells(x.Specimen, x.Lot, num(float64(x.Value), 5), x.Reason))
+			}
+			sec.Blocks = append(sec.Blocks, et)
+		}
+		if len(r.Warnings) > 0 {
+			sec.Blocks = append(sec.Blocks, List{Title: "Warnings: " + name, Items: r.Warnings})
+		}
+		if campaign != nil {
+			blocks, err := basisFigures(campaign, lots.GroupBy(o.GroupBy), r)
+			if err != nil {
+				return sec, nil, err
+			}
+			sec.Blocks = append(sec.Blocks, blocks...)
+		}
+	}
+	for _, c := range rep.Cautions {
+		sec.Blocks = append(sec.Blocks, Paragraph(c))
+	}
+	return sec, summary, nil
+}
+
+// basisFigures draws the campaign values of one result (its property and
+// condition) with the basis values.
+func basisFigures(d *lots.Dataset, by lots.GroupBy, r allowables.Result) ([]Block, error) {
+	pi := d.Property(r.Property)
+	if pi < 0 {
+		return nil, nil
+	}
+	if by == "" {
+		by = lots.ByLot
+	}
+	groups, err := d.Group(by, lots.InCondition(r.Condition))
+	if err != nil {
+		return nil, err
+	}
+	// The result is in display units; the figures take internal units and
+	// convert to the same display unit.
+	du, err := units.Parse(r.Unit)
+	if err != nil {
+		return nil, nil
+	}
+	sys := units.SI
+	if d.Properties[pi].Unit.Display(units.US).Symbol == du.Symbol && d.Properties[pi].Unit.Display(units.SI).Symbol != du.Symbol {
+		sys = units.US
+	}
+	var lines []RefLine
+	for _, b := range []struct {
+		name string
+		v    lots.Float
+	}{{"B-basis", r.BBasis}, {"A-basis", r.ABasis}} {
+		if isNum(b.v) {
+			lines = append(lines, RefLine{Label: b.name, Value: du.ToInternal(float64(b.v))})
+		}
+	}
+	blocks, err := PropertyFigures(d, pi, groups, PropertyOptions{By: string(by), System: sys, Minimum: math.NaN(), Lines: lines})
+	if err != nil {
+		return nil, fmt.Errorf("report: figures of %s: %w", r.Property, err)
+	}
+	if r.Condition != "" {
+		for _, b := range blocks {
+			if f, ok := b.(*Figure); ok {
+				f.Title += " (" + r.Condition + ")"
+			}
+		}
+	}
+	return blocks, nil
+}
+
+// stepStatus marks the steps a reader must look at: a value that is not
+// defined, and values flagged by a screen.
+func stepStatus(s allowables.Step) Status {
+	d := strings.ToLower(s.Decision)
+	switch {
+	case strings.HasPrefix(d, "no ") || strings.HasPrefix(d, "none"):
+		return None
+	case strings.Contains(d, "not defined"), strings.Contains(d, "flagged"):
+		return Warn
+	}
+	return None
+}
+
+// numOrEmpty formats a step value, empty when there is none.
+func numOrEmpty(f lots.Float, sig int) string {
+	if !isNum(f) {
+		return ""
+	}
+	return num(float64(f), sig)
+}
+
+func isNum(f lots.Float) bool { v := float64(f); return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func basisCell(f lots.Float) Cell {
+	if !isNum(f) {
+		return Cell{Text: "-", Status: Undecided}
+	}
+	return Cell{Text: num(float64(f), 5)}
+}
+
+func basisText(f lots.Float, unit string) string {
+	if !isNum(f) {
+		return "not defined"
+	}
+	return num(float64(f), 5) + unitSuffix(unit)
+}
+
+func condText(c string) string {
+	if c == "" {
+		return "(none)"
+	}
+	return c
+}
+
+func condSuffix(c string) string {
+	if c == "" {
+		return ""
+	}
+	return " (" + c + ")"
+}
