@@ -43,6 +43,8 @@ sets = {
     "k4_moderate": [list(rng.normal(m, 1, 8)) for m in (0, 0.5, 0.9, 0.2)],
     "k2_moderate": [list(rng.normal(0, 1, 15)), list(rng.normal(0.8, 1, 15))],
     "k8_moderate": [list(rng.normal(0.15 * i, 1, 7)) for i in range(8)],
+    "k100_n50_rounded": [[float(v) for v in np.round(rng.normal(0.02 * (i % 5), 1, 50), 2)] for i in range(100)],
+    "k2_n2000": [list(rng.normal(0, 1, 2000)), list(rng.normal(0.05, 1, 1500))],
 }
 out = {"scipy": scipy.__version__, "numpy": np.__version__, "sets": []}
 for name, groups in sets.items():
