@@ -96,9 +96,12 @@ func logisticOSL(adj, c0, c1, c2 float64) float64 {
 	return 1 / (1 + math.Exp(c0+c1*math.Log(adj)+c2*adj))
 }
 
+// adWarnings flags very small samples: the modified-statistic percentage
+// points of Stephens (1974, 1977) are stated for n >= 8 or so (from
+// memory; common practice is to treat the OSL as rough below that).
 func adWarnings(n int) []string {
 	if n < 8 {
-		return []string{fmt.Sprintf("n = %d: the small-sample OSL approximations were fitted for n >= 8 and are rough below that", n)}
+		return []string{fmt.Sprintf("n = %d: the small-sample OSL approximation is rough below n = 8", n)}
 	}
 	return nil
 }

@@ -28,7 +28,7 @@ type distRef struct {
 // cancellation as in the F survival check), asserted at 2e-10. Also against
 // scipy.stats.t.isf at 5e-9: scipy 1.10's t.isf is itself only good to
 // ~2e-9 there (measured against mpmath), as is unpolished InvRegIncBeta.
-func TestTQuantileAndMNRCriticalAgainstScipy(t *testing.T) {
+func TestTQuantileAndMNRCriticalAgainstMpmath(t *testing.T) {
 	var ref distRef
 	loadJSON(t, "../testdata/stats/dist_ref.json", &ref)
 	worstT, worstC := 0.0, 0.0
