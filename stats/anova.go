@@ -66,8 +66,8 @@ func checkGroups(groups [][]float64, what string) (N int, err error) {
 //	MSB = SSB/(k-1),  MSW = SSW/(N-k),  F = MSB/MSW,  P = P(F(k-1, N-k) > F)
 //
 // (e.g. Montgomery, Design and Analysis of Experiments, ch. 3; CMH-17-1G
-// Vol. 1 section 8.3.5.2 uses the same table for the between-batch
-// variance). Means and sums of squares use the corrected two-pass algorithm
+// Vol. 1 section 8.3 uses the same table for the between-batch variance,
+// subsection 8.3.5.2 from memory). Means and sums of squares use the corrected two-pass algorithm
 // (Chan, Golub & LeVeque 1983) after shifting all data by the first value,
 // which reaches the NIST StRD one-way ANOVA certified values (see tests).
 //
@@ -128,7 +128,7 @@ type LeveneResult struct {
 // Levene tests whether k groups have equal variances by Levene's test with
 // median centring (Brown & Forsythe 1974, "Robust tests for the equality of
 // variances", J. Amer. Statist. Assoc. 69, 364-367; CMH-17-1G Vol. 1
-// section 8.3.2.3 uses this form): the one-way ANOVA F statistic of
+// section 8.3 uses this form, subsection 8.3.2.3 from memory): the one-way ANOVA F statistic of
 // z_ij = |x_ij - median_i|,
 //
 //	F = [(N-k) Σ n_i (z̄_i - z̄)²] / [(k-1) Σ_i Σ_j (z_ij - z̄_i)²]

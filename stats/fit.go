@@ -14,7 +14,7 @@ type NormalFit struct {
 // FitNormal fits a normal distribution by the usual unbiased-variance
 // estimates: Mu = (1/n) Σ x_i, Sigma = sqrt(Σ (x_i - Mu)² / (n-1)) (the
 // sample statistics used for the normal model in CMH-17-1G Vol. 1 section
-// 8.3.4.3.1; note Sigma is not the maximum-likelihood value, which divides
+// 8.3, normal model; note Sigma is not the maximum-likelihood value, which divides
 // by n). Computed with the corrected two-pass algorithm (Chan, Golub &
 // LeVeque 1983).
 //
@@ -45,8 +45,8 @@ type LognormalFit struct {
 
 // FitLognormal fits a lognormal distribution by the normal fit of the
 // natural logarithms: Mu = (1/n) Σ ln x_i, Sigma = sqrt(Σ (ln x_i - Mu)² /
-// (n-1)) (CMH-17-1G Vol. 1 section 8.3.4.3.3: the lognormal case is the
-// normal method applied to ln x).
+// (n-1)) (CMH-17-1G Vol. 1 section 8.3, lognormal model: the normal method
+// applied to ln x).
 //
 // It needs at least 2 finite, strictly positive values whose logarithms
 // are not all equal.
@@ -92,7 +92,7 @@ type WeibullFit struct {
 //
 // The shape β is the root of the profile likelihood equation
 // (Lawless, Statistical Models and Methods for Lifetime Data, 2nd ed. 2003,
-// section 5.2.2; also CMH-17-1G Vol. 1 section 8.3.4.3.2):
+// section 5.2.2; also CMH-17-1G Vol. 1 section 8.3, Weibull model):
 //
 //	g(β) = Σ x_i^β ln x_i / Σ x_i^β - 1/β - (1/n) Σ ln x_i = 0
 //
