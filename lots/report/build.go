@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"lotproof/lots"
 	"lotproof/lots/reduce"
@@ -25,12 +26,11 @@ type Inputs struct {
 	Data   *lots.Dataset
 	By     lots.GroupBy
 	System units.System
-	// Minimums are the specification minimums by property name, in the
-	// internal unit (drawn on the property figures).
+	// Minimums are the specification minimums in the internal unit, keyed
+	// by MinimumKey(material, property); drawn on the property figures.
 	Minimums map[string]float64
-	// Lines are further reference values by property name, in the internal
-	// unit (for example A- and B-basis values).
-	Lines map[string][]RefLine
+	// OnlyLimited leaves out the figures of properties without a minimum.
+	OnlyLimited bool
 	// Marked are group keys drawn as rejected on the dot plots.
 	Marked []string
 
@@ -49,9 +49,9 @@ type Inputs struct {
 }
 
 // Build makes the standard report: the summary and cautions, the caller's
-// sections, a section per property of the data (dot plot by group,
-// histogram with fitted densities, probability plots), the trend and the
-// reduced records.
+// sections, a section per material and property of the data (dot plot by
+// group, histogram with fitted densities, probability plots), the trend and
+// the reduced records.
 func Build(in Inputs) (*Document, error) {
 	d := &Document{Title: in.Title, Subtitle: in.Subtitle, Cautions: append([]string{Caution}, in.Cautions...)}
 	if d.Title == "" {
@@ -74,20 +74,43 @@ func Build(in Inputs) (*Document, error) {
 		d.Summary = append(d.Summary,
 			KV{Key: "Specimens", Value: strconv.Itoa(len(in.Data.Specimens))},
 			KV{Key: string(by) + "s", Value: strconv.Itoa(len(groups))})
-		for pi, p := range in.Data.Properties {
-			min := math.NaN()
-			if v, ok := in.Minimums[p.Name]; ok {
-				min = v
+		// One section per material and property: values of different
+		// materials are never mixed in a figure.
+		var materials []string
+		byMaterial := map[string][]lots.Group{}
+		for _, g := range groups {
+			if _, ok := byMaterial[g.Material]; !ok {
+				materials = append(materials, g.Material)
 			}
-			all, _ := in.Data.Values(pi, allIndexes(len(in.Data.Specimens)))
-			if len(all) < 3 {
-				continue
+			byMaterial[g.Material] = append(byMaterial[g.Material], g)
+		}
+		for _, m := range materials {
+			gs := byMaterial[m]
+			var idx []int
+			for _, g := range gs {
+				idx = append(idx, g.Specimens...)
 			}
-			blocks, err := PropertyFigures(in.Data, pi, groups, PropertyOptions{By: string(by), System: in.System, Minimum: min, Lines: in.Lines[p.Name], Marked: in.Marked})
-			if err != nil {
-				return nil, fmt.Errorf("report: %s: %w", p.Name, err)
+			for pi, p := range in.Data.Properties {
+				min, ok := in.Minimums[MinimumKey(m, p.Name)]
+				if !ok {
+					if in.OnlyLimited {
+						continue
+					}
+					min = math.NaN()
+				}
+				if vals, _ := in.Data.Values(pi, idx); len(vals) < 3 {
+					continue
+				}
+				blocks, err := PropertyFigures(in.Data, pi, gs, PropertyOptions{By: string(by), System: in.System, Minimum: min, Marked: in.Marked})
+				if err != nil {
+					return nil, fmt.Errorf("report: %s of %s: %w", p.Name, m, err)
+				}
+				title := "Distribution of " + p.Name
+				if m != "" {
+					title += ", " + m
+				}
+				d.Sections = append(d.Sections, Section{Title: title, Blocks: blocks})
 			}
-			d.Sections = append(d.Sections, Section{Title: "Distribution of " + p.Name, Blocks: blocks})
 		}
 	}
 	d.Summary = append(d.Summary, in.Summary...)
@@ -113,12 +136,9 @@ func Build(in Inputs) (*Document, error) {
 	return d, nil
 }
 
-func allIndexes(n int) []int {
-	out := make([]int, n)
-	for i := range out {
-		out[i] = i
-	}
-	return out
+// MinimumKey is the key of Inputs.Minimums (case is ignored).
+func MinimumKey(material, property string) string {
+	return strings.ToLower(material) + "\x00" + strings.ToLower(property)
 }
 
 func statusIf(cond bool, yes, no Status) Status {

@@ -11,9 +11,15 @@ import (
 func TestBuild(t *testing.T) {
 	d, _ := layoutDataset()
 	d.Digest = "ab12"
+	for i := range d.Specimens {
+		d.Specimens[i].Material = "bar"
+		if i >= 10 {
+			d.Specimens[i].Material = "plate"
+		}
+	}
 	tr := layoutTrend(t)
 	doc, err := Build(Inputs{Title: "Receiving " + hostile, Date: "2026-12-02", Data: d, System: units.SI,
-		Minimums: map[string]float64{"tensile": 570}, Lines: map[string][]RefLine{"tensile": {{Label: "B-basis", Value: 590}}},
+		Minimums: map[string]float64{MinimumKey("Bar", "Tensile"): 570},
 		Sections: []Section{{Title: "Caller's section", Blocks: []Block{Paragraph("first")}}}, Trend: tr})
 	if err != nil {
 		t.Fatal(err)
@@ -22,7 +28,7 @@ func TestBuild(t *testing.T) {
 	for _, s := range doc.Sections {
 		titles = append(titles, s.Title)
 	}
-	if got := strings.Join(titles, "|"); got != "Caller's section|Distribution of tensile|Supplier trend" {
+	if got := strings.Join(titles, "|"); got != "Caller's section|Distribution of tensile, bar|Distribution of tensile, plate|Supplier trend" {
 		t.Errorf("sections %q", got)
 	}
 	if doc.Cautions[0] != Caution || doc.Meta.Inputs[0].Digest != "ab12" || doc.Meta.Version == "" {
@@ -32,7 +38,7 @@ func TestBuild(t *testing.T) {
 	if err := doc.WriteHTML(&b); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"spec minimum 570 MPa", "B-basis 590 MPa", "Specimens</dt><dd>15</dd>", "Trend signals"} {
+	for _, want := range []string{"spec minimum 570 MPa", "Specimens</dt><dd>15</dd>", "Trend signals"} {
 		if !strings.Contains(b.String(), want) {
 			t.Errorf("report lacks %q", want)
 		}
