@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/acceptance"
 	"lotproof/lots/render"
 	"lotproof/lots/store"
 	"lotproof/spec"
@@ -86,8 +87,8 @@ func currentUser() string {
 	return "unknown"
 }
 
-// readSpecs reads specification files; a bad one is an input error.
-func readSpecs(names []string) ([]*spec.Spec, error) {
+// readSpecFiles reads specification files; a bad one is an input error.
+func readSpecFiles(names []string) ([]*spec.Spec, error) {
 	var specs []*spec.Spec
 	for _, n := range names {
 		s, err := spec.ReadFile(n)
@@ -124,7 +125,7 @@ func runRecord(o recordOptions, st streams) error {
 	if len(d.Specimens) == 0 {
 		return lots.Inputf(d.Source, "give a file with at least one specimen row", "no specimens to record")
 	}
-	specs, err := readSpecs(o.Specs)
+	specs, err := readSpecFiles(o.Specs)
 	if err != nil {
 		return err
 	}
@@ -214,12 +215,24 @@ func recordTable(r recordResult) *render.Table {
 // held in it).
 func internalSymbol(l spec.Limit) string { return store.StoredUnit(l.Unit) }
 
-// judgeLots computes each lot's verdict against its specification.
-// TODO(wire): lots/acceptance is not in the tree yet; until it lands, the
-// limits are stored and no verdicts are.
+// judgeLots computes each lot's verdict against its specification with
+// package acceptance. Verdicts are stored per lot, so a file judged by
+// heat stores its limits but no verdicts.
 func judgeLots(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) ([]store.Verdict, bool, string, error) {
 	if len(specs) == 0 {
 		return nil, false, "", nil
 	}
-	return nil, false, "specification limits stored; lot verdicts are not computed by this build", nil
+	if by != lots.ByLot {
+		return nil, false, "verdicts are recorded per lot; with --group-by heat only the specification limits were stored", nil
+	}
+	res, err := acceptance.Judge(d, specs, by)
+	if err != nil {
+		return nil, false, "", err
+	}
+	out := make([]store.Verdict, 0, len(res.Lots))
+	for _, l := range res.Lots {
+		out = append(out, store.Verdict{Lot: l.Lot, Spec: l.Spec, Verdict: l.Verdict})
+	}
+	return out, true, fmt.Sprintf("verdicts: %d conforming, %d nonconforming, %d undecided, %d not judged (lotproof accept shows the reasons)",
+		res.Counts.Conforming, res.Counts.Nonconforming, res.Counts.Undecided, res.Counts.NotJudged), nil
 }

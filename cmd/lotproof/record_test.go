@@ -110,12 +110,35 @@ func TestRecordDefaultDatabaseAndErrors(t *testing.T) {
 // period and a signals list.
 func TestRecordSpecThenTrendJSON(t *testing.T) {
 	db := filepath.Join(t.TempDir(), "h.db")
-	spec := "../../lots/demo/data/spec-steel-bar.yaml"
+	spec := writeFile(t, "s.yaml", `specification: T-1
+revision: A
+material: QT bar OH-S42
+properties:
+  tensile:
+    unit: MPa
+    min: 930
+  proof:
+    unit: MPa
+    min: 800
+acceptance:
+  content: 0.90
+  confidence: 0.90
+  min_specimens: 2
+`)
 	data := writeFile(t, "r.csv", strings.ReplaceAll(recordCSV, ",bar,", ",QT bar OH-S42,"))
-	if code, _, stderr := run(t, "", "record", data, "--db", db, "--spec", spec); code != 0 {
+	code, out, stderr := run(t, "", "record", data, "--db", db, "--spec", spec, "--format", "json")
+	if code != 0 {
 		t.Fatalf("record: exit %d: %s", code, stderr)
 	}
-	code, out, stderr := run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile")
+	var rec map[string]any
+	if err := json.Unmarshal([]byte(out), &rec); err != nil {
+		t.Fatal(err)
+	}
+	// Two lots judged (package acceptance), the two limits stored.
+	if rec["judged"] != true || rec["verdicts"] != 2.0 || rec["spec_limits"] != 2.0 || rec["specs"].([]any)[0] != "T-1 rev A" {
+		t.Fatalf("record with --spec: %s", out)
+	}
+	code, out, stderr = run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile")
 	if code != 0 {
 		t.Fatalf("trend: exit %d: %s", code, stderr)
 	}
@@ -128,7 +151,7 @@ func TestRecordSpecThenTrendJSON(t *testing.T) {
 		t.Fatal(err)
 	}
 	if len(r.Periods) != 2 || r.Periods[0]["period"] != "2025-Q1" || r.Periods[1]["period"] != "2025-Q2" || r.Periods[0]["minimum"] != 930.0 ||
-		r.Periods[0]["specimens"] != 2.0 || r.Periods[0]["mean"] != 999.75 || r.Signals == nil || r.Caution == "" {
+		r.Periods[0]["specimens"] != 2.0 || r.Periods[0]["mean"] != 999.75 || r.Periods[0]["lots_judged"] != 1.0 || r.Signals == nil || r.Caution == "" {
 		t.Fatalf("trend JSON: %s", out)
 	}
 	// US units: the mean in ksi (1 ksi = 6.894757293168361 MPa, NIST SP 811).

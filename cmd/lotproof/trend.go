@@ -68,7 +68,7 @@ regulations, local codes and licensed engineering judgement.`,
 func init() { register(newTrendCmd) }
 
 func runTrend(o trendOptions, st streams) error {
-	specs, err := readSpecs(o.Specs)
+	specs, err := readSpecFiles(o.Specs)
 	if err != nil {
 		return err
 	}
