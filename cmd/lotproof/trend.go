@@ -159,7 +159,7 @@ func displayTrend(r *trend.Result, sys units.System) {
 func trendTables(r *trend.Result) []*render.Table {
 	num := func(v lots.Float, sig int) string { return render.Num(float64(v), sig) }
 	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
-		">lots", ">specimens", ">mean", ">sd", ">minimum", ">ppk", fmt.Sprintf(">ppk_lower"), ">ppm_below", ">judged", ">rejected")
+		">lots", ">specimens", ">mean", ">sd", ">minimum", ">ppk", ">ppk_lower", ">ppm_below", ">judged", ">rejected")
 	for _, p := range r.Periods {
 		base := ""
 		if p.Baseline {

@@ -111,7 +111,17 @@ func Open(ctx context.Context, url string) (*Store, error) {
 		db.SetMaxOpenConns(1)
 		s = &Store{db: db, backend: SQLite, where: path}
 	}
-	if err := s.db.PingContext(ctx); err != nil {
+	// The first connection sets SQLite's WAL mode, which needs a moment
+	// of exclusive access when several processes open a new file at once:
+	// retry while the database is busy.
+	var err error
+	for attempt := 0; attempt < maxAttempts; attempt++ {
+		if err = s.db.PingContext(ctx); err == nil || !retryable(err) {
+			break
+		}
+		time.Sleep(time.Duration(10+rand.IntN(40)) * time.Millisecond)
+	}
+	if err != nil {
 		s.db.Close()
 		return nil, fmt.Errorf("store: cannot reach %s: %w", s.where, err)
 	}
