@@ -27,8 +27,8 @@ func verdictStatus(v string) Status {
 }
 
 // AcceptanceSection lays out lot verdicts: one row per lot with its
-// verdict, one row per lot and limit with the figures behind it, the
-// reasons of every lot that is not conforming, the flagged values and the
+// verdict, one row per limit of every lot that does not conform with the
+// figures behind it (AcceptanceAppendix has every lot), the reasons of every lot that is not conforming, the flagged values and the
 // method. Values are shown in the display units of sys. It also returns
 // summary items (counts by verdict) for the box at the top.
 func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, error) {
@@ -72,26 +72,9 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 	}
 	sec.Blocks = append(sec.Blocks, lots)
 
-	props := &Table{Title: "Figures behind the verdicts", Columns: Cols(r.GroupBy, "property", ">limit", ">n", ">mean", ">SD", ">extreme", ">k", ">tolerance bound", ">fraction beyond (est. / upper)", ">values beyond", "verdict")}
-	for _, l := range r.Lots {
-		for _, p := range l.Properties {
-			side := "min "
-			if p.Side == "max" {
-				side = "max "
-			}
-			row := Cells(l.Lot, p.Property, side+num(float64(p.Limit), 4)+unitSuffix(p.Unit), strconv.Itoa(p.N),
-				num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Extreme), 4), num(float64(p.K), 4),
-				num(float64(p.ToleranceBound), 4), num(float64(p.FractionEstimate), 2)+" / "+num(float64(p.FractionUpper), 2))
-			beyond := Cell{Text: strconv.Itoa(p.Beyond)}
-			if p.Beyond > 0 {
-				beyond.Status = Fail
-			}
-			row = append(row, beyond, Cell{Text: p.Verdict, Status: verdictStatus(p.Verdict)})
-			props.Rows = append(props.Rows, row)
-		}
+	if props := limitTable(r, "Figures behind the verdicts of lots not conforming", func(v string) bool { return v != acceptance.Conforming }); len(props.Rows) > 0 {
+		sec.Blocks = append(sec.Blocks, props)
 	}
-	props.Note = "The tolerance bound is mean - k SD for a minimum (mean + k SD for a maximum); a lot conforms when the bound lies within the limit."
-	sec.Blocks = append(sec.Blocks, props)
 
 	var reasons []string
 	for _, l := range r.Lots {
@@ -136,6 +119,43 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 		sec.Blocks = append(sec.Blocks, Paragraph(c))
 	}
 	return sec, summary, nil
+}
+
+// AcceptanceAppendix is the table of the figures behind every lot's
+// verdict, for an appendix (the main section shows only the lots that do
+// not conform).
+func AcceptanceAppendix(r *acceptance.Result, sys units.System) Section {
+	r = r.Display(sys)
+	return Section{Title: "Appendix: figures behind every verdict", Blocks: []Block{
+		limitTable(r, "Every "+r.GroupBy+" and limit", func(string) bool { return true })}}
+}
+
+// limitTable lists, for the lots whose verdict keep accepts, every limit
+// with the figures behind its verdict.
+func limitTable(r *acceptance.Result, title string, keep func(verdict string) bool) *Table {
+	props := &Table{Title: title, Columns: Cols(r.GroupBy, "property", ">limit", ">n", ">mean", ">SD", ">extreme", ">k", ">tolerance bound", ">fraction beyond (est. / upper)", ">values beyond", "verdict")}
+	for _, l := range r.Lots {
+		if !keep(l.Verdict) {
+			continue
+		}
+		for _, p := range l.Properties {
+			side := "min "
+			if p.Side == "max" {
+				side = "max "
+			}
+			row := Cells(l.Lot, p.Property, side+num(float64(p.Limit), 4)+unitSuffix(p.Unit), strconv.Itoa(p.N),
+				num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Extreme), 4), num(float64(p.K), 4),
+				num(float64(p.ToleranceBound), 4), num(float64(p.FractionEstimate), 2)+" / "+num(float64(p.FractionUpper), 2))
+			beyond := Cell{Text: strconv.Itoa(p.Beyond)}
+			if p.Beyond > 0 {
+				beyond.Status = Fail
+			}
+			row = append(row, beyond, Cell{Text: p.Verdict, Status: verdictStatus(p.Verdict)})
+			props.Rows = append(props.Rows, row)
+		}
+	}
+	props.Note = "The tolerance bound is mean - k SD for a minimum (mean + k SD for a maximum); a lot conforms when the bound lies within the limit."
+	return props
 }
 
 // ocFigure draws the operating characteristic of a specification's plan at

@@ -142,6 +142,13 @@ func TestAcceptanceSection(t *testing.T) {
 	}
 	// Limits in ksi: 590 MPa = 85.57 ksi (1 ksi = 6.894757 MPa, NIST SP 811).
 	props := sec.Blocks[1].(*Table)
+	if len(props.Rows) != 3 {
+		t.Errorf("%d rows of lots not conforming, want 3 (every lot of this layout data is not conforming)", len(props.Rows))
+	}
+	app := AcceptanceAppendix(r, units.US).Blocks[0].(*Table)
+	if len(app.Rows) != 3 {
+		t.Errorf("appendix has %d rows, want 3", len(app.Rows))
+	}
 	if !strings.Contains(props.Rows[0][2].Text, "min 85.57 ksi") {
 		t.Errorf("limit cell %q, want min 85.57 ksi", props.Rows[0][2].Text)
 	}

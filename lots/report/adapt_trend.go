@@ -17,10 +17,11 @@ const PpkTarget = 1.33
 
 // TrendSection lays out a supplier trend: the periods table (Ppk below
 // PpkTarget or a rejected lot marked), the signals, and for every series
-// its individuals chart of lot means and its EWMA chart, then per property
-// the period means and Ppk of every group. Values are shown in the units
-// the trend result carries.
-func TrendSection(r *trend.Result) (Section, error) {
+// its individuals chart of lot means and its EWMA chart (all series, or
+// only those with a signal when all is false), then per property the
+// period means and Ppk of every group. Values are shown in the units the
+// trend result carries.
+func TrendSection(r *trend.Result, all bool) (Section, error) {
 	sec := Section{Title: "Supplier trend"}
 	if r == nil || len(r.Periods) == 0 {
 		return sec, fmt.Errorf("report: the trend has no periods")
@@ -68,12 +69,20 @@ func TrendSection(r *trend.Result) (Section, error) {
 		sec.Blocks = append(sec.Blocks, Paragraph("No rule signalled."))
 	}
 
+	left := 0
 	for _, s := range r.Series {
+		if !all && !hasSignal(r, s) {
+			left++
+			continue
+		}
 		blocks, err := seriesCharts(r, s)
 		if err != nil {
 			return sec, err
 		}
 		sec.Blocks = append(sec.Blocks, blocks...)
+	}
+	if left > 0 {
+		sec.Blocks = append(sec.Blocks, Paragraph(fmt.Sprintf("Control and EWMA charts are drawn for the %d series with a signal; the other %d series have none (lotproof trend lists their figures).", len(r.Series)-left, left)))
 	}
 
 	blocks, err := periodPlots(r)
@@ -92,6 +101,15 @@ func TrendSection(r *trend.Result) (Section, error) {
 		sec.Blocks = append(sec.Blocks, Paragraph(r.Caution))
 	}
 	return sec, nil
+}
+
+func hasSignal(r *trend.Result, s trend.Series) bool {
+	for _, sg := range r.Signals {
+		if sg.Group == s.Group && sg.Property == s.Property && sg.Material == s.Material {
+			return true
+		}
+	}
+	return false
 }
 
 func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {

@@ -55,7 +55,7 @@ func layoutTrend(t *testing.T) *trend.Result {
 // carry the marks of PpkTarget.
 func TestTrendSection(t *testing.T) {
 	r := layoutTrend(t)
-	sec, err := TrendSection(r)
+	sec, err := TrendSection(r, true)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -94,6 +94,25 @@ func TestTrendSection(t *testing.T) {
 		if c.Status != want {
 			t.Errorf("period %s %s: Ppk %g marked %q, want %q", p.Group, p.Period, v, c.Status, want)
 		}
+	}
+	signalled = 0
+	for _, s := range r.Series {
+		if hasSignal(r, s) {
+			signalled++
+		}
+	}
+	few, err := TrendSection(r, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	figs = 0
+	for _, b := range few.Blocks {
+		if _, ok := b.(*Figure); ok {
+			figs++
+		}
+	}
+	if want := 2*signalled + 2; figs != want {
+		t.Errorf("signalled series only: %d figures, want %d", figs, want)
 	}
 	doc := &Document{Title: "trend", Sections: []Section{sec}}
 	var b bytes.Buffer

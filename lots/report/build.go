@@ -42,8 +42,14 @@ type Inputs struct {
 	// value results) go after the data overview, in order.
 	Sections []Section
 
-	Trend   *trend.Result
-	Reduced []*reduce.Result
+	// Appendices go last, after everything Build makes.
+	Appendices []Section
+
+	Trend *trend.Result
+	// AllTrendCharts draws the control and EWMA charts of every trend
+	// series; by default only of the series with a signal.
+	AllTrendCharts bool
+	Reduced        []*reduce.Result
 	// MaxCurves limits the stress-strain curves shown (0: 12).
 	MaxCurves int
 }
@@ -115,7 +121,7 @@ func Build(in Inputs) (*Document, error) {
 	}
 	d.Summary = append(d.Summary, in.Summary...)
 	if in.Trend != nil && len(in.Trend.Periods) > 0 {
-		sec, err := TrendSection(in.Trend)
+		sec, err := TrendSection(in.Trend, in.AllTrendCharts)
 		if err != nil {
 			return nil, err
 		}
@@ -133,6 +139,7 @@ func Build(in Inputs) (*Document, error) {
 		}
 		d.Sections = append(d.Sections, sec)
 	}
+	d.Sections = append(d.Sections, in.Appendices...)
 	return d, nil
 }
 

@@ -187,7 +187,7 @@ th,td{padding:.2rem .5rem;text-align:left;vertical-align:top;border-bottom:1px s
 thead th{border-top:1.5px solid var(--ink);border-bottom:1px solid var(--ink);font-weight:700}
 tbody tr:last-child td{border-bottom:1.5px solid var(--ink)}
 th.n,td.n{text-align:right;font-variant-numeric:tabular-nums}
-td.n,td.st-ok,td.st-fail,td.st-undecided,td.st-warn{white-space:nowrap}
+td.n,td.st-ok,td.st-fail,td.st-undecided,td.st-warn,td:first-child{white-space:nowrap}
 .tnote{font-size:.8rem;color:var(--muted);margin-top:.3rem}
 .label{font-weight:700;margin-right:.3rem}
 .mark{display:inline-block;min-width:1em;font-weight:700;text-align:center}
