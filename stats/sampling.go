@@ -227,3 +227,27 @@ func DesignAttributesPlan(p1, p2, alpha, beta float64) (AttributesPlan, error) {
 	}
 	return AttributesPlan{}, fmt.Errorf("attributes plan: no plan with n <= %d", MaxPlanN)
 }
+
+// ToleranceBoundPassProb returns the probability that a normal sample of
+// n values yields a one-sided (p, gamma) tolerance bound on the right side
+// of a limit, xbar - k s >= L (or xbar + k s <= U), when the population
+// mean lies margin standard deviations inside the limit
+// (margin = (mu - L)/sigma or (U - mu)/sigma). With k = NormalK(n, p, gamma)
+// and T = sqrt(n)(xbar - L)/s noncentral t (n-1 df, noncentrality
+// sqrt(n) margin),
+//
+//	P = P(T >= k sqrt(n)) = NoncentralTSurvival(k sqrt(n), n-1, sqrt(n) margin)
+//
+// (Owen 1968, Technometrics 10:445, section 5: the power of the
+// tolerance-bound test). At margin = z_p it equals 1 - gamma for every n.
+func ToleranceBoundPassProb(n int, p, gamma, margin float64) (float64, error) {
+	if math.IsNaN(margin) || math.IsInf(margin, 0) {
+		return math.NaN(), fmt.Errorf("tolerance pass probability: margin %g not finite: %w", margin, ErrNonFinite)
+	}
+	k, err := NormalK(n, p, gamma)
+	if err != nil {
+		return math.NaN(), err
+	}
+	rn := math.Sqrt(float64(n))
+	return NoncentralTSurvival(k*rn, float64(n-1), margin*rn), nil
+}
