@@ -547,7 +547,7 @@ func DotPlot(d DotPlotData) ([]byte, error) {
 	p.X.Min, p.X.Max = -0.5, k-0.5
 	rotateIfCrowded(p, names)
 	w := plotWidth
-	padY(p, 0.3)
+	padY(p, 0.4)
 	return renderSVG(p, w, plotHeight)
 }
 
