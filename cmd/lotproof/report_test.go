@@ -1,11 +1,16 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"lotproof/lots"
+	"lotproof/lots/acceptance"
+	"lotproof/lots/units"
 )
 
 const reportHostile = `<script>alert(1)</script> "q" & ]]>`
@@ -123,4 +128,35 @@ func TestReportBadInput(t *testing.T) {
 			t.Errorf("%s: wrote %d bytes to stdout", name, len(out))
 		}
 	}
+}
+
+// BenchmarkReportDemo measures making the report of the demo receipts
+// (320 specimens, 64 lots, two specifications) once the lots are judged:
+// figures, document and HTML. Judging is left out (see lots/acceptance).
+func BenchmarkReportDemo(b *testing.B) {
+	d, err := demoData("receipts.csv")
+	if err != nil {
+		b.Fatal(err)
+	}
+	specs, err := readSpecs([]string{"../../lots/demo/data/spec-steel-bar.yaml", "../../lots/demo/data/spec-plate.yaml"})
+	if err != nil {
+		b.Fatal(err)
+	}
+	acc, err := acceptance.Judge(d, specs, lots.ByLot)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var size int
+	for b.Loop() {
+		doc, err := reportDocument(reportInputs{Date: "2026-12-02", Data: d, By: lots.ByLot, Specs: specs, Acceptance: acc, System: units.SI})
+		if err != nil {
+			b.Fatal(err)
+		}
+		var page bytes.Buffer
+		if err := doc.WriteHTML(&page); err != nil {
+			b.Fatal(err)
+		}
+		size = page.Len()
+	}
+	b.ReportMetric(float64(size), "bytes/report")
 }
