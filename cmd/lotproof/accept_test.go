@@ -58,6 +58,15 @@ func TestAcceptJSONAndExitStatus(t *testing.T) {
 	if r.Lots[3].Lot != "D" || r.Lots[3].Properties[0].ToleranceBound != nil {
 		t.Errorf("one-specimen lot should have a null tolerance bound: %+v", r.Lots[3])
 	}
+	var raw struct{ Lots []map[string]json.RawMessage }
+	if err := json.Unmarshal([]byte(out), &raw); err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range raw.Lots {
+		if o := string(l["outliers"]); !strings.HasPrefix(o, "[") || !strings.HasPrefix(string(l["properties"]), "[") {
+			t.Errorf("lot %s: outliers %s, properties not a list", l["lot"], o)
+		}
+	}
 	if !strings.Contains(errs, "1 of 6 lots conforming") {
 		t.Errorf("stderr %q", errs)
 	}

@@ -480,7 +480,7 @@ func (r *Result) Display(sys units.System) *Result {
 	out := *r
 	out.Lots = make([]LotResult, len(r.Lots))
 	for i, l := range r.Lots {
-		l.Properties = append([]PropertyResult(nil), l.Properties...)
+		l.Properties = append(make([]PropertyResult, 0, len(l.Properties)), l.Properties...)
 		for j := range l.Properties {
 			p := &l.Properties[j]
 			u, err := units.Parse(p.Unit)
@@ -493,7 +493,7 @@ func (r *Result) Display(sys units.System) *Result {
 			p.SD = lots.Float(du.FromInternal(u.ToInternal(float64(p.SD))))
 			p.Unit = du.Symbol
 		}
-		l.Outliers = append([]Outlier(nil), l.Outliers...)
+		l.Outliers = append(make([]Outlier, 0, len(l.Outliers)), l.Outliers...)
 		for j := range l.Outliers {
 			o := &l.Outliers[j]
 			u, err := units.Parse(o.Unit)
