@@ -424,19 +424,30 @@ func flatten(v [][]float64) []float64 {
 	return out
 }
 
+// minScreen is the fewest values the outlier test is applied to.
+const minScreen = 4
+
 // screenOutliers runs the maximum normed residual test (iteratively, as in
-// CMH-17-1G 8.3.3) within each lot of at least 3 values and over all data.
+// CMH-17-1G 8.3.3) within each lot of at least 4 values and over all data.
 // Flagged values are reported and kept.
 func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 	flag := func(vals []float64, lotOf func(int) (string, string), within string) {
-		if len(vals) < 3 {
+		if len(vals) < minScreen {
 			return
 		}
 		res, err := stats.ScreenOutliers(vals, opt.OutlierAlpha, true)
 		if err != nil {
 			return // all equal within the lot: nothing to screen
 		}
-		for _, o := range res {
+		for k, o := range res {
+			// The k-th value flagged was tested among len(vals)-k values.
+			// Below 4 values the test says little: at n = 3 the statistic
+			// cannot exceed (n-1)/sqrt(n) = 1.1547 and the critical value
+			// at alpha 0.05 is about 1.1543 (stats.MNRCritical), so almost
+			// any unequal triple is "flagged". Such results are not used.
+			if len(vals)-k < minScreen {
+				break
+			}
 			lot, id := lotOf(o.Index)
 			r.Outliers = append(r.Outliers, Outlier{Specimen: id, Lot: lot, Value: lots.Float(o.Value), Within: within,
 				MNR: lots.Float(o.MNR), Critical: lots.Float(o.Critical)})
@@ -458,7 +469,7 @@ func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 	flag(flatten(r.values), func(j int) (string, string) { return allLot[j], allID[j] }, "all data")
 	if len(r.Outliers) == 0 {
 		r.step("outlier screen", math.NaN(), math.NaN(), "no outliers",
-			fmt.Sprintf("maximum normed residual test at alpha %g within each lot of 3 or more values and over all data", opt.OutlierAlpha))
+			fmt.Sprintf("maximum normed residual test at alpha %g within each lot of 4 or more values and over all data", opt.OutlierAlpha))
 	} else {
 		r.warn("%d value(s) flagged as outliers and kept; investigate them and exclude only with a documented physical cause", len(r.Outliers))
 	}

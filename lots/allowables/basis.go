@@ -1,6 +1,7 @@
 package allowables
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -19,8 +20,15 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 		return stats.NormalLowerBound(all, l.Content, l.Confidence)
 	case Lognormal:
 		return stats.LognormalLowerBound(all, l.Content, l.Confidence)
-	case Weibull, WeibullExact:
-		return stats.Bound{}, fmt.Errorf("PENDING weibull bound")
+	case Weibull:
+		// The handbook closed-form factor at the two usual levels; the
+		// exact pivotal factor (Monte Carlo) at any other level.
+		if b, err := stats.WeibullApproxLowerBound(all, l.Content, l.Confidence); err == nil || !errors.Is(err, stats.ErrDomain) {
+			return b, err
+		}
+		fallthrough
+	case WeibullExact:
+		return stats.WeibullLowerBound(all, l.Content, l.Confidence, stats.WeibullMCOptions{Sims: opt.Sims, Seed: opt.Seed})
 	case Nonparametric:
 		// The order statistic when n is large enough for the level,
 		// otherwise Hanson-Koopmans with the largest value as x_(r).

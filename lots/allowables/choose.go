@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"lotproof/stats"
 )
@@ -107,11 +108,11 @@ func campaignWarnings(r *Result) {
 	if r.Lots == 1 {
 		r.warn("all values come from one lot: the bounds describe that lot, not the lot-to-lot variation of production")
 	}
-	if r.Lots < MinLotsB || r.N < MinSpecimensB {
-		r.warn("%d lots and %d specimens: fewer than the %d lots and %d specimens common practice asks for a B-basis value (CMH-17-1G Vol. 1 section 2.3, from memory)", r.Lots, r.N, MinLotsB, MinSpecimensB)
+	if short := shortfall(r, MinLotsB, MinSpecimensB); short != "" {
+		r.warn("%s: common practice asks for at least %d lots and %d specimens for a B-basis value (CMH-17-1G Vol. 1 section 2.3, from memory)", short, MinLotsB, MinSpecimensB)
 	}
-	if r.Lots < MinLotsA || r.N < MinSpecimensA {
-		r.warn("%d lots and %d specimens: fewer than the %d lots and %d specimens common practice asks for an A-basis value (CMH-17-1G Vol. 1 section 2.3, from memory; MMPDS asks for 100 observations from 10 lots for metals)", r.Lots, r.N, MinLotsA, MinSpecimensA)
+	if short := shortfall(r, MinLotsA, MinSpecimensA); short != "" {
+		r.warn("%s: common practice asks for at least %d lots and %d specimens for an A-basis value (CMH-17-1G Vol. 1 section 2.3, from memory; MMPDS asks for 100 observations from 10 lots for metals)", short, MinLotsA, MinSpecimensA)
 	}
 	min := float64(r.Min)
 	if a := float64(r.ABasis); !math.IsNaN(a) && a > min {
@@ -126,3 +127,15 @@ func campaignWarnings(r *Result) {
 }
 
 var errNonPositive = errors.New("the method needs positive values")
+
+// shortfall says which of the campaign's counts fall short, or "".
+func shortfall(r *Result, minLots, minN int) string {
+	var parts []string
+	if r.Lots < minLots {
+		parts = append(parts, fmt.Sprintf("only %d lots", r.Lots))
+	}
+	if r.N < minN {
+		parts = append(parts, fmt.Sprintf("only %d specimens", r.N))
+	}
+	return strings.Join(parts, " and ")
+}
