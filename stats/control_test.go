@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"os"
 	"testing"
 )
@@ -318,5 +319,34 @@ func TestWesternElectric(t *testing.T) {
 	}
 	if _, err := WesternElectric([]float64{1}, 0, 0); err == nil {
 		t.Error("zero sigma accepted")
+	}
+}
+
+// Coverage of Bissell's bound by simulation in Go (20000 normal samples of
+// n = 10, true index 1, 95 %), against the 100000-sample scipy simulation
+// recorded in control_ref.json (0.94632): within four binomial standard
+// errors of the two simulations combined.
+func TestBissellCoverageBySimulation(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	const reps, n = 20000, 10
+	x := make([]float64, n)
+	covered := 0
+	for r := 0; r < reps; r++ {
+		for i := range x {
+			x[i] = rng.NormFloat64()
+		}
+		c, err := PerformanceLower(x, -3, 0.95) // true index (0 - (-3))/(3·1) = 1
+		if err != nil {
+			t.Fatal(err)
+		}
+		if c.Bound <= 1 {
+			covered++
+		}
+	}
+	got := float64(covered) / reps
+	const scipyCoverage = 0.94632
+	se := math.Sqrt(0.95*0.05/reps + 0.95*0.05/100000)
+	if math.Abs(got-scipyCoverage) > 4*se {
+		t.Errorf("coverage %.4f, scipy simulation %.4f (4 SE = %.4f)", got, scipyCoverage, 4*se)
 	}
 }

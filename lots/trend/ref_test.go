@@ -184,3 +184,43 @@ func TestOptionsAndPeriods(t *testing.T) {
 		t.Errorf("empty history: %+v %v", r, err)
 	}
 }
+
+// Grouping by material, monthly periods and a chosen baseline.
+func TestByMaterialMonthlyBaseline(t *testing.T) {
+	d, err := lots.ReadFile("../../testdata/trend/ref_history.csv", lots.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, r, err := RecordAndCompute(context.Background(), filepath.Join(t.TempDir(), "m.db"), d, nil, nil,
+		store.Meta{Time: time.Unix(0, 0), User: "u"}, Options{By: "material", Every: "month", Baseline: "2024-01..2024-06", Since: "2024-01-01", Until: "2025-03-31"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Series) != 2 {
+		t.Fatalf("%d series, want 2 (one material, two properties)", len(r.Series))
+	}
+	lotsIn := 0
+	for _, p := range r.Periods {
+		if p.Group != "bar" || len(p.Period) != 7 || p.Period[4] != '-' || p.Period < "2024-01" || p.Period > "2025-03" {
+			t.Errorf("row %+v", p)
+		}
+		if p.Baseline != (p.Period <= "2024-06") {
+			t.Errorf("period %s baseline %v", p.Period, p.Baseline)
+		}
+		if p.Property == "tensile" {
+			lotsIn += p.Lots
+		}
+		if !math.IsNaN(float64(p.Minimum)) {
+			t.Errorf("no limits were given, but row has minimum %v", p.Minimum)
+		}
+	}
+	// Two suppliers with 2 and 3 lots per quarter; five quarters in range.
+	if lotsIn != 5*5 {
+		t.Errorf("%d tensile lots in range, want 25", lotsIn)
+	}
+	for _, s := range r.Series {
+		if s.BaselineFrom < "2024-01" || s.BaselineTo > "2024-06" {
+			t.Errorf("baseline %s..%s", s.BaselineFrom, s.BaselineTo)
+		}
+	}
+}
