@@ -604,7 +604,7 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		}
 		if w.P < o.Alpha {
 			signal("shift_welch", periods[pi], "", w.P, o.Alpha,
-				fmt.Sprintf("lot means moved by %.4g from %s to %s (Welch t = %.3f, df = %.2f, p = %.3g)", w.Difference, periods[pi-1], periods[pi], w.T, w.DF, w.P))
+				fmt.Sprintf("lot means moved by %.4g %s from %s to %s (Welch t = %.3f, df = %.2f, p = %.3g)", w.Difference, unit, periods[pi-1], periods[pi], w.T, w.DF, w.P))
 		}
 	}
 	res.Series = append(res.Series, sr)
