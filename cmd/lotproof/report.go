@@ -16,6 +16,7 @@ import (
 	"lotproof/lots/acceptance"
 	"lotproof/lots/allowables"
 	"lotproof/lots/progress"
+	"lotproof/lots/reduce"
 	"lotproof/lots/report"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
@@ -28,6 +29,7 @@ type reportOptions struct {
 	Specs    []string
 	Campaign string
 	DB       string
+	Records  []string
 	OutFile  string
 	Title    string
 	Date     string
@@ -58,7 +60,9 @@ Letter paper. It holds:
     lot, a histogram with fitted normal, lognormal and Weibull densities,
     and normal and Weibull probability plots;
   - with --db: the supplier trend of the lot history (as lotproof trend),
-    with control and EWMA charts and the mean and Ppk by period.
+    with control and EWMA charts and the mean and Ppk by period;
+  - with --records: the properties reduced from raw tensile records (as
+    lotproof reduce, default options) and their stress-strain curves.
 
 The report goes to --out (default: standard output). Exit status: 0 when
 every lot conforms, 1 when any lot is nonconforming, undecided or not
@@ -83,6 +87,7 @@ specification, regulations, local codes and licensed engineering judgement.`,
 	f.StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
 	f.StringVar(&o.Campaign, "campaign", "", "qualification campaign results (CSV or .xlsx) for A- and B-basis values")
 	f.StringVar(&o.DB, "db", "", "lot history to trend: a SQLite file or postgres://... URL (default: no trend)")
+	f.StringArrayVar(&o.Records, "records", nil, "raw tensile records (file or folder of *.rec, as lotproof reduce reads) whose curves the report shows; repeat for several")
 	f.StringVarP(&o.OutFile, "out", "o", "-", "HTML file to write (- for standard output)")
 	f.StringVar(&o.Title, "title", "", "report title (default: from the data file name)")
 	f.StringVar(&o.Date, "date", "", "date shown in the report and its audit trails (default: today, or SOURCE_DATE_EPOCH)")
@@ -103,6 +108,7 @@ type reportInputs struct {
 	Allowables *allowables.Report
 	Trend      *trend.Result // values in internal units
 	TrendFrom  string        // where the trend came from (database)
+	Reduced    []*reduce.Result
 	System     units.System
 	Seed       uint64
 }
@@ -163,6 +169,7 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 			b.Extra = append(b.Extra, report.KV{Key: "Lot history", Value: in.TrendFrom})
 		}
 	}
+	b.Reduced = in.Reduced
 	b.Cautions = dedupe(b.Cautions)
 	return report.Build(b)
 }
@@ -192,11 +199,10 @@ func runReport(o reportOptions, st streams) error {
 		return err
 	}
 	steps := int64(3)
-	if o.Campaign != "" {
-		steps++
-	}
-	if o.DB != "" {
-		steps++
+	for _, opt := range []bool{o.Campaign != "", o.DB != "", len(o.Records) > 0} {
+		if opt {
+			steps++
+		}
 	}
 	bar := progress.New(st.Err, st.ErrTerminal, steps, "report")
 	defer bar.Finish()
@@ -241,6 +247,16 @@ func runReport(o reportOptions, st streams) error {
 			fmt.Fprintf(st.Err, "lotproof: %s holds no dated lots to trend; the report has no trend section\n", in.TrendFrom)
 		}
 		in.Trend = tr
+		bar.Add(1)
+	}
+	if len(o.Records) > 0 {
+		recs, err := readRecords(o.Records, st)
+		if err != nil {
+			return err
+		}
+		if in.Reduced, err = reduce.ReduceAll(recs, reduce.Options{}); err != nil {
+			return err
+		}
 		bar.Add(1)
 	}
 	doc, err := reportDocument(in)

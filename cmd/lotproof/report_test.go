@@ -10,6 +10,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/acceptance"
+	"lotproof/lots/reduce"
 	"lotproof/lots/units"
 )
 
@@ -85,8 +86,18 @@ func TestReportToFileWithTrend(t *testing.T) {
 	if code, _, errs := run(t, "", "record", data, "--spec", sp, "--db", db); code != 0 {
 		t.Fatalf("record: exit %d: %s", code, errs)
 	}
+	raw, err := reduce.Synthesize(reduce.SynthSpec{ID: "R-1", Lot: "L1", Diameter: 10, Gauge: 50, E: 205000, Rp: 880, Rm: 1010,
+		Uniform: 0.07, Elongation: 0.15, ReductionOfArea: 0.5, Points: 400, Seed: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := filepath.Join(dir, "R-1.rec")
+	if err := os.WriteFile(rec, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
 	out := filepath.Join(dir, "r.html")
-	code, stdout, errs := run(t, "", "report", data, "--spec", sp, "--db", db, "--out", out, "--date", "2026-12-02", "--units", "us")
+	code, stdout, errs := run(t, "", "report", data, "--spec", sp, "--db", db, "--out", out, "--date", "2026-12-02", "--units", "us",
+		"--records", rec)
 	if code != exitVerdict {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -98,7 +109,7 @@ func TestReportToFileWithTrend(t *testing.T) {
 		t.Fatal(err)
 	}
 	page := string(b)
-	for _, want := range []string{"Supplier trend", "ksi", "wrote " + out} {
+	for _, want := range []string{"Supplier trend", "ksi", "wrote " + out, "Tensile records", "Stress-strain curve of R-1"} {
 		if !strings.Contains(page+errs, want) {
 			t.Errorf("report or stderr lacks %q", want)
 		}
