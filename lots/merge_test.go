@@ -1,0 +1,38 @@
+package lots
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+func TestMerge(t *testing.T) {
+	a, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [MPa]\nS1,L1,300\nS2,L1,310\n"), "a.csv")
+	b, _ := ReadCSV(strings.NewReader("specimen,lot,supplier,hardness [HBW],tensile [ksi]\nS2,L1,M,95,\nS3,L2,M,96,45\n"), "b.csv")
+	m, err := Merge("merged", a, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Specimens) != 3 || len(m.Properties) != 2 {
+		t.Fatalf("%d specimens %d properties", len(m.Specimens), len(m.Properties))
+	}
+	s2 := m.Specimens[1]
+	if s2.ID != "S2" || s2.Values[0] != 310 || s2.Values[1] != 95 || s2.Supplier != "M" {
+		t.Errorf("S2 merged wrong: %+v", s2)
+	}
+	// 45 ksi in MPa (exact definitions, NIST SP 811).
+	if got := m.Specimens[2].Values[0]; math.Abs(got-45*6.894757293168361) > 1e-9 {
+		t.Errorf("S3 tensile %g", got)
+	}
+	if !m.Specimens[0].Missing(1) || m.Missing[1] != 1 {
+		t.Errorf("missing hardness not counted: %v", m.Missing)
+	}
+	c, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [MPa]\nS1,L9,300\n"), "c.csv")
+	if _, err := Merge("m", a, c); err == nil || !strings.Contains(err.Error(), `c.csv:2: specimen "S1": lot "L9" differs from "L1" given earlier`) {
+		t.Errorf("lot conflict: %v", err)
+	}
+	e, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [%]\nS9,L9,3\n"), "e.csv")
+	if _, err := Merge("m", a, e); err == nil || !strings.Contains(err.Error(), "is in % here but in MPa") {
+		t.Errorf("unit conflict: %v", err)
+	}
+}
