@@ -69,8 +69,8 @@ func TailFractionMVUE(n int, q float64) (float64, error) {
 // 31.4). The upper bound solves F_T(sqrt(n) q; n-1, delta_U) = gamma for
 // delta_U and returns Phi(-delta_U / sqrt(n)); the lower bound solves
 // F_T(...; delta_L) = 1 - gamma. F_T is stats.NoncentralTCDF, decreasing
-// in delta; the root is found by bisection on a bracket (to 1e-12 in
-// delta). The upper bound is at most 1 - p exactly when xbar - k s >= L for
+// in delta; the root is found on a bracket by the Illinois method (to 1e-12
+// in delta). The upper bound is at most 1 - p exactly when xbar - k s >= L for
 // the one-sided (p, gamma) normal tolerance factor k (the two are the same
 // test).
 func TailFractionBound(n int, q, gamma float64, upper bool) (float64, error) {
@@ -118,15 +118,37 @@ func solveNoncentrality(t, df, target float64) (float64, error) {
 		hi += step
 		step *= 1.6
 	}
+	// Illinois (modified regula falsi; Dowell and Jarratt 1971, BIT
+	// 11:168) on the bracket: superlinear, and never leaves the bracket.
+	flo, fhi := f(lo), f(hi)
+	side := 0
 	for range 200 {
-		mid := 0.5 * (lo + hi)
-		if f(mid) > 0 {
-			lo = mid
-		} else {
-			hi = mid
+		if flo == 0 {
+			return lo, nil
 		}
-		if hi-lo <= 1e-12*math.Max(1, math.Abs(mid)) {
-			break
+		if fhi == 0 {
+			return hi, nil
+		}
+		x := (lo*fhi - hi*flo) / (fhi - flo)
+		if !(x > lo && x < hi) {
+			x = 0.5 * (lo + hi)
+		}
+		fx := f(x)
+		if fx > 0 { // root above x
+			lo, flo = x, fx
+			if side == -1 {
+				fhi /= 2
+			}
+			side = -1
+		} else {
+			hi, fhi = x, fx
+			if side == 1 {
+				flo /= 2
+			}
+			side = 1
+		}
+		if hi-lo <= 1e-12*math.Max(1, math.Abs(x)) || fx == 0 {
+			return x, nil
 		}
 	}
 	return 0.5 * (lo + hi), nil
