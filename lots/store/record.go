@@ -103,6 +103,30 @@ func (e *ConflictError) add(c Conflict) {
 	}
 }
 
+// batchRows is the number of rows per multi-row INSERT (at most 6 values
+// per row, far below the SQLite and PostgreSQL parameter limits).
+const batchRows = 256
+
+// placeholders writes n groups of k placeholders: (?, ?), (?, ?), ...
+func placeholders(n, k int) string {
+	var b strings.Builder
+	b.Grow(n * (3*k + 3))
+	for i := 0; i < n; i++ {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteByte('(')
+		for j := 0; j < k; j++ {
+			if j > 0 {
+				b.WriteString(", ")
+			}
+			b.WriteByte('?')
+		}
+		b.WriteByte(')')
+	}
+	return b.String()
+}
+
 // StoredUnit is the unit values of a property are stored in: the internal
 // unit of its quantity, except for hardness (scales are never converted, so
 // the scale symbol is kept) and dimensionless values.
@@ -273,44 +297,119 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		}
 	}
 
-	// Specimens and their values.
-	specStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO specimens (specimen, lot, heat, tested, test_condition, import_digest) VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT (specimen) DO NOTHING`))
-	if err != nil {
-		return nil, err
+	// Specimens and their values, in multi-row statements of up to
+	// batchRows rows. RETURNING (SQLite >= 3.35, PostgreSQL) tells which
+	// specimens were new; the others were stored before and are compared.
+	specSQL := func(n int) string {
+		return s.q(`INSERT INTO specimens (specimen, lot, heat, tested, test_condition, import_digest) VALUES ` +
+			placeholders(n, 6) + ` ON CONFLICT (specimen) DO NOTHING RETURNING specimen`)
 	}
-	defer specStmt.Close()
-	valStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO measurements (specimen, property, value) VALUES (?, ?, ?)`))
-	if err != nil {
-		return nil, err
+	valSQL := func(n int) string {
+		return s.q(`INSERT INTO measurements (specimen, property, value) VALUES ` + placeholders(n, 3))
 	}
-	defer valStmt.Close()
-	for i := range d.Specimens {
-		if i%4096 == 0 {
-			if err := ctx.Err(); err != nil {
-				return nil, err
-			}
+	var fullSpec, fullVal *sql.Stmt
+	defer func() {
+		if fullSpec != nil {
+			fullSpec.Close()
 		}
-		sp := &d.Specimens[i]
-		r, err := specStmt.ExecContext(ctx, sp.ID, sp.Lot, sp.Heat, sp.Tested, sp.Condition, d.Digest)
+		if fullVal != nil {
+			fullVal.Close()
+		}
+	}()
+	args := make([]any, 0, 6*batchRows)
+	vals := make([]any, 0, 3*batchRows)
+	flushVals := func() error {
+		n := len(vals) / 3
+		if n == 0 {
+			return nil
+		}
+		var err error
+		if n == batchRows {
+			if fullVal == nil {
+				if fullVal, err = tx.PrepareContext(ctx, valSQL(batchRows)); err != nil {
+					return err
+				}
+			}
+			_, err = fullVal.ExecContext(ctx, vals...)
+		} else {
+			_, err = tx.ExecContext(ctx, valSQL(n), vals...)
+		}
+		vals = vals[:0]
+		return err
+	}
+	inserted := map[string]bool{}
+	for startAt := 0; startAt < len(d.Specimens); startAt += batchRows {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		chunk := d.Specimens[startAt:min(startAt+batchRows, len(d.Specimens))]
+		args = args[:0]
+		for i := range chunk {
+			sp := &chunk[i]
+			args = append(args, sp.ID, sp.Lot, sp.Heat, sp.Tested, sp.Condition, d.Digest)
+		}
+		var rows *sql.Rows
+		if len(chunk) == batchRows {
+			if fullSpec == nil {
+				if fullSpec, err = tx.PrepareContext(ctx, specSQL(batchRows)); err != nil {
+					return nil, err
+				}
+			}
+			rows, err = fullSpec.QueryContext(ctx, args...)
+		} else {
+			rows, err = tx.QueryContext(ctx, specSQL(len(chunk)), args...)
+		}
 		if err != nil {
 			return nil, err
 		}
-		if n, _ := r.RowsAffected(); n == 0 {
-			if err := s.compare(ctx, tx, d, sp, unitOf, conf); err != nil {
+		clear(inserted)
+		for rows.Next() {
+			var id string
+			if err := rows.Scan(&id); err != nil {
+				rows.Close()
 				return nil, err
 			}
-			res.SpecimensSame++
-			continue
+			inserted[id] = true
 		}
-		res.SpecimensNew++
-		if len(conf.Conflicts) > 0 {
-			continue // nothing will be written; only look for more conflicts
+		if err := rows.Close(); err != nil {
+			return nil, err
 		}
-		for pi, v := range sp.Values {
-			if math.IsNaN(v) {
+		for i := range chunk {
+			sp := &chunk[i]
+			if !inserted[sp.ID] {
+				if len(conf.Conflicts) == 0 {
+					if err := flushVals(); err != nil { // the stored specimen may be from this chunk
+						return nil, err
+					}
+				}
+				if err := s.compare(ctx, tx, d, sp, unitOf, conf); err != nil {
+					return nil, err
+				}
+				res.SpecimensSame++
 				continue
 			}
-			if _, err := valStmt.ExecContext(ctx, sp.ID, d.Properties[pi].Name, v); err != nil {
+			// A specimen id twice in one file: the second is compared.
+			delete(inserted, sp.ID)
+			res.SpecimensNew++
+			if len(conf.Conflicts) > 0 {
+				continue // nothing will be written; only look for more conflicts
+			}
+			for pi, v := range sp.Values {
+				if math.IsNaN(v) {
+					continue
+				}
+				vals = append(vals, sp.ID, d.Properties[pi].Name, v)
+				if len(vals) == 3*batchRows {
+					if err := flushVals(); err != nil {
+						return nil, err
+					}
+				}
+			}
+		}
+		// Write the values before comparing the next chunk, which may
+		// hold this chunk's specimen ids again.
+		if len(conf.Conflicts) == 0 {
+			if err := flushVals(); err != nil {
 				return nil, err
 			}
 		}

@@ -558,3 +558,55 @@ func TestOpenErrors(t *testing.T) {
 		t.Error("default path")
 	}
 }
+
+// A dataset built in code (the file reader rejects this) holding one
+// specimen twice: identical rows are stored once, differing rows conflict.
+func TestDuplicateSpecimenInOneDataset(t *testing.T) {
+	ctx := context.Background()
+	s := open(t, filepath.Join(t.TempDir(), "d.db"))
+	rows := synth("D", 1, 3, 5)
+	same := append(append([]specRow(nil), rows...), rows[1])
+	r, err := s.Record(ctx, dataset(t, "same.csv", same), nil, nil, Meta{Time: t0, User: "u"})
+	if err != nil || r.SpecimensNew != 3 || r.SpecimensSame != 1 {
+		t.Fatalf("%+v %v", r, err)
+	}
+	diff := append(append([]specRow(nil), synth("E", 1, 3, 5)...), specRow{id: "E-L00000-1", lot: "E-L00000", supplier: "E Mill", material: "bar", tested: "2025-01-02", tensile: 1, proof: 2})
+	var ce *ConflictError
+	if _, err := s.Record(ctx, dataset(t, "diff.csv", diff), nil, nil, Meta{Time: t0, User: "u"}); !errors.As(err, &ce) {
+		t.Fatalf("want a conflict, got %v", err)
+	}
+}
+
+// Imports larger than one multi-row statement (batchRows), mixing stored
+// and new specimens across statement boundaries.
+func TestOverlapAcrossBatches(t *testing.T) {
+	ctx := context.Background()
+	for _, b := range backends(t) {
+		t.Run(b.name, func(t *testing.T) {
+			s := open(t, b.fresh(t))
+			first := synth("F", 120, 5, 6) // 600 specimens
+			if _, err := s.Record(ctx, dataset(t, "f1.csv", first), nil, nil, Meta{Time: t0, User: "u"}); err != nil {
+				t.Fatal(err)
+			}
+			// Interleave new specimens among the stored ones.
+			var mixed []specRow
+			extra := synth("G", 70, 5, 7) // 350 new
+			for i := range first {
+				mixed = append(mixed, first[i])
+				if i < len(extra) {
+					mixed = append(mixed, extra[i])
+				}
+			}
+			r, err := s.Record(ctx, dataset(t, "f2.csv", mixed), nil, nil, Meta{Time: t0, User: "u"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.SpecimensNew != 350 || r.SpecimensSame != 600 || r.LotsNew != 70 {
+				t.Fatalf("%+v", r)
+			}
+			if c := counts(t, s); c.Specimens != 950 || c.Measurements != 1900 || c.Lots != 190 {
+				t.Fatalf("counts %+v", c)
+			}
+		})
+	}
+}
