@@ -2,48 +2,129 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
 
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/acceptance"
+	"lotproof/lots/allowables"
 	"lotproof/lots/demo"
+	"lotproof/lots/progress"
+	"lotproof/lots/reduce"
 	"lotproof/lots/render"
+	"lotproof/lots/store"
+	"lotproof/lots/trend"
+	"lotproof/spec"
 )
 
 type demoOptions struct {
-	Out output
+	Report string // report file; "" for none
+	Date   string
+	Seed   uint64
+	Out    output
 }
 
+const demoReport = "lotproof-report-demo.html"
+
 func newDemoCmd(g *globalOptions, st streams) *cobra.Command {
-	var o demoOptions
+	o := demoOptions{Report: demoReport, Seed: allowables.DefaultOptions().Seed}
+	var noReport bool
 	cmd := &cobra.Command{
 		Use:   "demo",
 		Short: "Run the whole job on the embedded, invented demo scenario",
-		Long: `demo runs lotproof's pipeline on an invented scenario embedded in the binary:
-Orrin Hollow Pumpworks receives steel bar and aluminium plate from five
-invented mills over eight quarters, and qualifies a new plate gauge.
-Every name and number in it is invented.`,
+		Long: `demo runs lotproof's pipeline on an invented scenario embedded in the binary.
+Orrin Hollow Pumpworks buys steel bar and aluminium plate from five invented
+mills; over eight quarters it received 64 lots, and two more arrived as raw
+tensile records. The demo
+
+  1. reduces the raw tensile records to specimen properties,
+  2. judges every lot against the invented purchase specifications,
+  3. derives A- and B-basis design values from a qualification campaign,
+  4. records the lots in a temporary database and trends each supplier by
+     quarter, flagging drift,
+  5. writes a one-file HTML report (default ` + demoReport + `).
+
+Every company, material, specification and number in it is invented.`,
 		Args: exactArgs(0, "no arguments"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			var err error
 			if o.Out, err = g.resolve(st); err != nil {
 				return err
 			}
+			if noReport {
+				o.Report = ""
+			}
 			return runDemo(o, st)
 		},
 	}
+	cmd.Flags().StringVar(&o.Report, "report", o.Report, "write the HTML report to this file")
+	cmd.Flags().BoolVar(&noReport, "no-report", false, "do not write the HTML report")
+	cmd.Flags().StringVar(&o.Date, "date", "", "date written into the results (default: today, or SOURCE_DATE_EPOCH)")
+	cmd.Flags().Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bounds")
 	return cmd
 }
 
 // demoResult is everything the demo computed, as written with --format json.
 type demoResult struct {
-	Scenario string              `json:"scenario"`
-	Receipts []lots.GroupSummary `json:"receipts"`
+	Scenario   string              `json:"scenario"`
+	Date       string              `json:"date"`
+	Seed       uint64              `json:"seed"`
+	Receipts   []lots.GroupSummary `json:"receipts"`
+	Reduced    []demoReduced       `json:"reduced"`
+	Acceptance *acceptance.Result  `json:"acceptance"`
+	Allowables *allowables.Report  `json:"allowables"`
+	Trend      *trend.Result       `json:"trend"`
+	Report     string              `json:"report"`
+	Cautions   []string            `json:"cautions"`
 }
 
+// demoReduced is one reduced raw record, in display units.
+type demoReduced struct {
+	Specimen   string     `json:"specimen"`
+	Lot        string     `json:"lot"`
+	Modulus    lots.Float `json:"modulus"`
+	Proof      lots.Float `json:"proof"`
+	Tensile    lots.Float `json:"tensile"`
+	Elongation lots.Float `json:"elongation"`
+	Units      []string   `json:"units"` // modulus, strengths, elongation
+}
+
+const demoScenario = "Orrin Hollow Pumpworks (invented): steel bar and aluminium plate from five invented mills, 2025-Q1 to 2026-Q4"
+
 func runDemo(o demoOptions, st streams) error {
+	date, err := runDate(o.Date)
+	if err != nil {
+		return err
+	}
+	bar := progress.New(st.Err, st.ErrTerminal, 6, "demo")
+	defer bar.Finish()
+	res := demoResult{Scenario: demoScenario, Date: date, Seed: o.Seed}
+
+	// 1. Reduce the raw records; add the separately measured hardness.
+	rs, err := reduce.ReduceFS(demo.FS(), "raw", reduce.Options{})
+	if err != nil {
+		return err
+	}
+	hardness, err := demoData("raw-hardness.csv")
+	if err != nil {
+		return err
+	}
+	newLots, err := lots.Merge("demo/raw (reduced) + demo/raw-hardness.csv", reduce.Dataset(rs, "demo/raw"), hardness)
+	if err != nil {
+		return err
+	}
+	res.Reduced = demoReducedRows(newLots, o.Out)
+	bar.Add(1)
+
+	// 2. Judge every lot, old and new, against its specification.
 	receipts, err := demoData("receipts.csv")
 	if err != nil {
 		return err
@@ -52,19 +133,78 @@ func runDemo(o demoOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	res := demoResult{
-		Scenario: "Orrin Hollow Pumpworks (invented): steel bar and aluminium plate receipts 2025-Q1 to 2026-Q4",
-		Receipts: lots.Summarize(receipts, groups, o.Out.System),
+	res.Receipts = lots.Summarize(receipts, groups, o.Out.System)
+	all, err := lots.Merge("demo/receipts.csv + reduced records", receipts, newLots)
+	if err != nil {
+		return err
+	}
+	specs, err := demoSpecs()
+	if err != nil {
+		return err
+	}
+	acc, err := acceptance.Judge(all, specs, lots.ByLot)
+	if err != nil {
+		return err
+	}
+	res.Acceptance = acc.Display(o.Out.System)
+	bar.Add(1)
+
+	// 3. Design values from the qualification campaign.
+	campaign, err := demoData("campaign.csv")
+	if err != nil {
+		return err
+	}
+	aopt := allowables.DefaultOptions()
+	aopt.Seed, aopt.System = o.Seed, o.Out.System
+	res.Allowables, err = allowables.Analyze(campaign, aopt, date)
+	if err != nil {
+		return err
+	}
+	bar.Add(1)
+
+	// 4. Record the history in a temporary database and trend it.
+	tr, err := demoTrend(receipts, newLots, specs, date)
+	if err != nil {
+		return err
+	}
+	bar.Add(1)
+
+	// 5. The report.
+	if o.Report != "" {
+		doc, err := reportDocument(reportInputs{Title: "Demo: Orrin Hollow Pumpworks receipts and qualification (invented)",
+			Date: date, Data: all, By: lots.ByLot, Specs: specs, Acceptance: acc, Campaign: campaign,
+			Allowables: res.Allowables, Trend: tr, TrendFrom: "temporary SQLite database", Reduced: rs,
+			System: o.Out.System, Seed: o.Seed})
+		if err != nil {
+			return err
+		}
+		var page bytes.Buffer
+		if err := doc.WriteHTML(&page); err != nil {
+			return err
+		}
+		if err := writeOut(o.Report, page.Bytes(), st); err != nil {
+			return err
+		}
+		if abs, err := filepath.Abs(o.Report); err == nil {
+			res.Report = abs
+		} else {
+			res.Report = o.Report
+		}
+	} else {
+		displayTrend(tr, o.Out.System)
+	}
+	res.Trend = tr
+	bar.Add(1)
+	res.Cautions = dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))
+	bar.Finish()
+	if res.Report != "" {
+		fmt.Fprintf(st.Err, "lotproof: report written to %s\n", res.Report)
 	}
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		t := summaryTable("lot", res.Receipts)
-		if o.Out.Format == render.Text {
-			t.Title = fmt.Sprintf("Receipts: %d lots, %d specimens (%s)", len(groups), len(receipts.Specimens), res.Scenario)
-		}
-		return writeTables(w, o.Out.Format, t)
+		return writeTables(w, o.Out.Format, demoTables(res, o.Out.Format == render.Text)...)
 	})
 }
 
@@ -75,4 +215,143 @@ func demoData(name string) (*lots.Dataset, error) {
 		return nil, err
 	}
 	return lots.ReadCSV(bytes.NewReader(b), "demo/"+name)
+}
+
+// demoSpecs reads the embedded purchase specifications.
+func demoSpecs() ([]*spec.Spec, error) {
+	var specs []*spec.Spec
+	for _, name := range []string{"spec-steel-bar.yaml", "spec-plate.yaml"} {
+		b, err := demo.Read(name)
+		if err != nil {
+			return nil, err
+		}
+		s, err := spec.Parse("demo/"+name, b)
+		if err != nil {
+			return nil, err
+		}
+		specs = append(specs, s)
+	}
+	return specs, spec.CheckSet(specs)
+}
+
+// demoTrend records the receipts and the new lots, with their verdicts,
+// into a temporary SQLite database (two imports, as an inspector would
+// make them) and computes the quarterly trend by supplier.
+func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date string) (*trend.Result, error) {
+	dir, err := os.MkdirTemp("", "lotproof-demo-")
+	if err != nil {
+		return nil, err
+	}
+	defer os.RemoveAll(dir)
+	ctx := context.Background()
+	s, err := store.Open(ctx, filepath.Join(dir, "history.db"))
+	if err != nil {
+		return nil, err
+	}
+	defer s.Close()
+	when, _ := time.Parse("2006-01-02", date)
+	for _, d := range []*lots.Dataset{receipts, newLots} {
+		verdicts, _, _, err := judgeLots(d, specs, lots.ByLot)
+		if err != nil {
+			return nil, err
+		}
+		if _, err := s.Record(ctx, d, verdicts, specLimits(specs), store.Meta{Time: when, User: "demo", Version: lots.Version}); err != nil {
+			return nil, err
+		}
+	}
+	return trend.Compute(ctx, s, trend.Options{Baseline: "2025-Q1..2025-Q4"})
+}
+
+func demoReducedRows(d *lots.Dataset, out output) []demoReduced {
+	col := func(name string) int { return d.Property(name) }
+	e, p, t, a := col("modulus"), col("proof"), col("tensile"), col("elongation")
+	var rows []demoReduced
+	for _, s := range d.Specimens {
+		r := demoReduced{Specimen: s.ID, Lot: s.Lot, Modulus: lots.NaN, Proof: lots.NaN, Tensile: lots.NaN, Elongation: lots.NaN}
+		for _, c := range []struct {
+			i   int
+			dst *lots.Float
+		}{{e, &r.Modulus}, {p, &r.Proof}, {t, &r.Tensile}, {a, &r.Elongation}} {
+			if c.i >= 0 && !s.Missing(c.i) {
+				u := d.Properties[c.i].Unit.Display(out.System)
+				*c.dst = lots.Float(u.FromInternal(s.Values[c.i]))
+			}
+		}
+		for _, i := range []int{e, p, a} {
+			if i >= 0 {
+				r.Units = append(r.Units, d.Properties[i].Unit.Display(out.System).Symbol)
+			}
+		}
+		rows = append(rows, r)
+	}
+	return rows
+}
+
+// demoTables lays the demo's results out: the reduced records, the lots
+// that did not conform, the design values and the trend signals.
+func demoTables(res demoResult, text bool) []*render.Table {
+	var out []*render.Table
+	red := render.NewTable("", "specimen", "lot", ">modulus", ">proof", ">tensile", ">elongation")
+	for _, r := range res.Reduced {
+		red.Add(r.Specimen, r.Lot, render.Num(float64(r.Modulus), 4), render.Num(float64(r.Proof), 4),
+			render.Num(float64(r.Tensile), 4), render.Num(float64(r.Elongation), 3))
+	}
+	if text {
+		u := []string{"", "", ""}
+		if len(res.Reduced) > 0 && len(res.Reduced[0].Units) == 3 {
+			u = res.Reduced[0].Units
+		}
+		red.Title = fmt.Sprintf("%s\nDate %s, seed %d\n\n1. Raw tensile records reduced (modulus %s, strengths %s, elongation %s)", res.Scenario, res.Date, res.Seed, u[0], u[1], u[2])
+	}
+	out = append(out, red)
+
+	acc := res.Acceptance
+	lotsT := render.NewTable("", "lot", "supplier", "verdict", "reasons")
+	for _, l := range acc.Lots {
+		if l.Verdict != acceptance.Conforming {
+			lotsT.Add(l.Lot, l.Supplier, l.Verdict, strings.Join(l.Reasons, "; "))
+		}
+	}
+	if text {
+		c := acc.Counts
+		var specs []string
+		for _, s := range acc.Specs {
+			specs = append(specs, s.ID+" rev "+s.Revision)
+		}
+		lotsT.Title = fmt.Sprintf("2. Lot acceptance against %s: %d lots, %d conforming, %d nonconforming, %d undecided, %d not judged\nLots that did not conform:",
+			strings.Join(specs, " and "), len(acc.Lots), c.Conforming, c.Nonconforming, c.Undecided, c.NotJudged)
+		var flagged []string
+		for _, l := range acc.Lots {
+			for _, f := range l.Outliers {
+				flagged = append(flagged, fmt.Sprintf("%s %s %s", f.Specimen, f.Property, render.Num(float64(f.Value), 4)))
+			}
+		}
+		sort.Strings(flagged)
+		lotsT.Note("%d values flagged by the maximum normed residual test within their lot (alpha 0.05; kept): %s", len(flagged), strings.Join(flagged, ", "))
+	}
+	out = append(out, lotsT)
+
+	al := allowablesTables(res.Allowables, false)[0]
+	if text {
+		al.Title = fmt.Sprintf("3. Design values from the qualification campaign %s (A-basis %g%%/%g%%, B-basis %g%%/%g%% content/confidence; lotproof allowables shows the audit trail)",
+			res.Allowables.Input, 100*res.Allowables.Options.A.Content, 100*res.Allowables.Options.A.Confidence,
+			100*res.Allowables.Options.B.Content, 100*res.Allowables.Options.B.Confidence)
+	}
+	out = append(out, al)
+
+	sig := render.NewTable("", "supplier", "property", "period", "lot", "rule", ">value", ">limit")
+	for _, s := range res.Trend.Signals {
+		sig.Add(s.Group, s.Property, s.Period, s.Lot, s.Rule, render.Num(float64(s.Value), 4), render.Num(float64(s.Limit), 4))
+	}
+	if text {
+		sig.Title = fmt.Sprintf("4. Supplier trend by quarter (control limits from %s): %d signals", res.Trend.Baseline, len(res.Trend.Signals))
+		if res.Report != "" {
+			sig.Note("\n5. Report: %s", res.Report)
+		}
+		for _, c := range res.Cautions {
+			sig.Note("Note: %s", c)
+		}
+	}
+	out = append(out, sig)
+	return out
 }

@@ -81,8 +81,12 @@ func TestBadInputExitsTwoAndWritesNothing(t *testing.T) {
 	}
 }
 
-func TestDemoSummary(t *testing.T) {
-	code, out, errs := run(t, "", "demo", "--format", "json")
+// The demo runs the whole pipeline on the invented scenario and finds what
+// the scenario planted (lots/demo/doc.go): the bad lot, the outlier and the
+// drifting mill. These check the demo's wiring, not the statistics.
+func TestDemo(t *testing.T) {
+	page := filepath.Join(t.TempDir(), "report.html")
+	code, out, errs := run(t, "", "demo", "--format", "json", "--date", "2026-12-02", "--report", page)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -91,17 +95,65 @@ func TestDemoSummary(t *testing.T) {
 			Lot       string `json:"lot"`
 			Specimens int    `json:"specimens"`
 		} `json:"receipts"`
+		Reduced    []struct{ Specimen string } `json:"reduced"`
+		Acceptance struct {
+			Lots []struct {
+				Lot      string `json:"lot"`
+				Verdict  string `json:"verdict"`
+				Outliers []struct {
+					Specimen string `json:"specimen"`
+				} `json:"outliers"`
+			} `json:"lots"`
+		} `json:"acceptance"`
+		Allowables struct {
+			Results []struct {
+				Property, Condition, Method string
+				B                           *float64 `json:"b_basis"`
+			} `json:"results"`
+		} `json:"allowables"`
+		Report string `json:"report"`
 	}
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}
-	if len(res.Receipts) != 64 {
-		t.Errorf("demo receipts: %d lots, want 64", len(res.Receipts))
+	if len(res.Receipts) != 64 || len(res.Reduced) != 10 {
+		t.Errorf("demo: %d receipt lots (want 64), %d reduced records (want 10)", len(res.Receipts), len(res.Reduced))
 	}
-	for _, l := range res.Receipts {
-		if l.Specimens != 5 {
-			t.Errorf("lot %s has %d specimens", l.Lot, l.Specimens)
+	verdict := map[string]string{}
+	outlier := map[string]bool{}
+	for _, l := range res.Acceptance.Lots {
+		verdict[l.Lot] = l.Verdict
+		for _, o := range l.Outliers {
+			outlier[o.Specimen] = true
 		}
+	}
+	if len(verdict) != 66 {
+		t.Errorf("%d lots judged, want 66 (64 received + 2 reduced)", len(verdict))
+	}
+	if verdict["SR-2503-2"] != "nonconforming" {
+		t.Errorf("bad lot SR-2503-2: %s", verdict["SR-2503-2"])
+	}
+	if !outlier["BW-2504-1-5"] {
+		t.Error("outlier specimen BW-2504-1-5 not reported")
+	}
+	for _, l := range []string{"LF-2604-2", "LF-2604-3"} {
+		if verdict[l] != "conforming" {
+			t.Errorf("reduced lot %s: %s", l, verdict[l])
+		}
+	}
+	if len(res.Allowables.Results) != 6 {
+		t.Errorf("%d design values, want 3 properties x 2 conditions", len(res.Allowables.Results))
+	}
+	for _, r := range res.Allowables.Results {
+		if r.B == nil {
+			t.Errorf("%s at %s: no B-basis value", r.Property, r.Condition)
+		}
+	}
+	if res.Report != page {
+		t.Errorf("report path %q, want %q", res.Report, page)
+	}
+	if b, err := os.ReadFile(page); err != nil || !bytes.Contains(b, []byte("<svg")) {
+		t.Errorf("report not written with figures: %v", err)
 	}
 }
 

@@ -87,6 +87,7 @@ func Generate(seed uint64) map[string][]byte {
 	for name, b := range rawRecords(seed) {
 		files[name] = b
 	}
+	files["raw-hardness.csv"] = rawHardness(seed)
 	return files
 }
 
@@ -139,7 +140,7 @@ func receipts(rng *rand.Rand) []byte {
 					for pi, p := range props {
 						v := lotMeans[pi] + p.within*rng.NormFloat64()
 						if id == OutlierSpecimen && pi == 0 {
-							v = lotMeans[pi] - 62 // a specimen with a machining flaw
+							v = lotMeans[pi] - 110 // a specimen with a machining flaw
 						}
 						row = append(row, cell(v, p.dec))
 					}

@@ -3,6 +3,7 @@ package demo
 import (
 	"fmt"
 	"math/rand/v2"
+	"strings"
 
 	"lotproof/lots/reduce"
 )
@@ -65,4 +66,17 @@ func rawRecords(seed uint64) map[string][]byte {
 		m["raw/"+sp.ID+".rec"] = b
 	}
 	return m
+}
+
+// rawHardness makes the hardness results of the raw-record specimens
+// (measured on the grip ends, as a separate test): specimen, lot and
+// hardness [HBW], to be merged with the reduced tensile results.
+func rawHardness(seed uint64) []byte {
+	rng := rand.New(rand.NewPCG(seed, 0x68617264))
+	var b strings.Builder
+	b.WriteString("specimen,lot,hardness [HBW]\n")
+	for _, sp := range RawSpecs(seed) {
+		fmt.Fprintf(&b, "%s,%s,%.0f\n", sp.ID, sp.Lot, 96+2*rng.NormFloat64())
+	}
+	return []byte(b.String())
 }
