@@ -132,7 +132,11 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 	if len(specNames) > 0 {
 		b.Extra = append(b.Extra, report.KV{Key: "Specifications", Value: strings.Join(specNames, "; ")})
 	}
-	b.Extra = append(b.Extra, report.KV{Key: "Units", Value: string(in.System)})
+	sys := "SI"
+	if in.System == units.US {
+		sys = "US customary"
+	}
+	b.Extra = append(b.Extra, report.KV{Key: "Units", Value: sys})
 	if in.Acceptance != nil {
 		sec, sum, err := report.AcceptanceSection(in.Acceptance, in.System)
 		if err != nil {

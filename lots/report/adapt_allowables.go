@@ -45,10 +45,9 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 		row = append(row, basisCell(r.ABasis), basisCell(r.BBasis))
 		row = append(row, Cells(num(float64(r.Mean), 5), num(float64(r.SD), 4), num(float64(r.Min), 5), num(float64(r.Max), 5))...)
 		t.Rows = append(t.Rows, row)
-		summary = append(summary, KV{Key: "B-basis, " + r.Property + condSuffix(r.Condition), Value: basisText(r.BBasis, r.Unit), Status: statusIf(isNum(r.BBasis), None, Undecided)})
-		if isNum(r.ABasis) {
-			summary = append(summary, KV{Key: "A-basis, " + r.Property + condSuffix(r.Condition), Value: basisText(r.ABasis, r.Unit)})
-		}
+		summary = append(summary, KV{Key: "Design values, " + r.Property + condSuffix(r.Condition),
+			Value:  "B-basis " + basisText(r.BBasis, r.Unit) + "; A-basis " + basisText(r.ABasis, r.Unit),
+			Status: statusIf(isNum(r.BBasis) && isNum(r.ABasis), None, Undecided)})
 	}
 	t.Note = "A dash: the value is not defined for this campaign (the audit trail says why)."
 	sec.Blocks = append(sec.Blocks, t)

@@ -78,7 +78,7 @@ func TestAllowablesSection(t *testing.T) {
 	if want := "B-basis " + fmt.Sprintf("%.4g", float64(r.BBasis)) + " MPa"; !bytes.Contains(figs[1].SVG, []byte(want)) {
 		t.Errorf("histogram lacks %q", want)
 	}
-	if len(summary) == 0 || !strings.HasPrefix(summary[0].Key, "B-basis") {
+	if len(summary) != 1 || !strings.Contains(summary[0].Value, "B-basis "+num(float64(r.BBasis), 5)+" MPa") {
 		t.Errorf("summary %+v", summary)
 	}
 	doc := &Document{Title: "allowables", Summary: summary, Sections: []Section{sec}}
