@@ -1,8 +1,11 @@
 package report
 
 import (
+	"bytes"
 	"math"
+	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // TestPlotEdgeCases feeds the plot functions degenerate and hostile input:
@@ -134,4 +137,26 @@ type failWriter struct{ t *testing.T }
 func (w *failWriter) Write(p []byte) (int, error) {
 	w.t.Errorf("wrote %d bytes for a document that should be refused", len(p))
 	return len(p), nil
+}
+
+// TestInvalidUTF8 : a page declared UTF-8 stays valid UTF-8 whatever bytes
+// a user string holds.
+func TestInvalidUTF8(t *testing.T) {
+	bad := "lot \xff\xfe-1"
+	svg, err := DotPlot(DotPlotData{Title: bad, Groups: []DotGroup{{bad, []float64{1, 2}}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := &Document{Title: bad, Summary: []KV{{Key: bad, Value: bad}}, Sections: []Section{{Title: bad, Blocks: []Block{
+		&Table{Columns: Cols(bad), Rows: [][]Cell{Cells(bad)}}, &Figure{Title: bad, SVG: svg}}}}}
+	var b bytes.Buffer
+	if err := d.WriteHTML(&b); err != nil {
+		t.Fatal(err)
+	}
+	if !utf8.Valid(b.Bytes()) {
+		t.Error("page is not valid UTF-8")
+	}
+	if !strings.Contains(b.String(), "lot \uFFFD-1") {
+		t.Error("invalid bytes not replaced by U+FFFD")
+	}
 }

@@ -95,7 +95,9 @@ func (d *Document) WriteHTML(w io.Writer) error {
 	if err := page.Execute(&b, v); err != nil {
 		return fmt.Errorf("report: %w", err)
 	}
-	_, err = w.Write(b.Bytes())
+	// The page is declared UTF-8: bytes of user strings that are not valid
+	// UTF-8 are shown as U+FFFD rather than passed on.
+	_, err = w.Write(bytes.ToValidUTF8(b.Bytes(), []byte("\uFFFD")))
 	return err
 }
 

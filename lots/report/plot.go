@@ -107,7 +107,8 @@ func renderSVG(p *plot.Plot, w, h vg.Length) (out []byte, err error) {
 	if _, err := c.WriteTo(&b); err != nil {
 		return nil, err
 	}
-	return b.Bytes(), nil
+	// Plot text comes from user strings: keep the SVG valid UTF-8.
+	return bytes.ToValidUTF8(b.Bytes(), []byte("\uFFFD")), nil
 }
 
 // finite checks that every value is a finite number.

@@ -39,6 +39,7 @@ var (
 // other than to a local #id or an inline data:image, url() other than
 // url(#id), @import, and DOCTYPE declarations (entities).
 func embedSVG(svg []byte, prefix string) ([]byte, error) {
+	svg = bytes.ToValidUTF8(svg, []byte("\uFFFD")) // text of user strings may hold invalid bytes
 	dec := xml.NewDecoder(bytes.NewReader(svg))
 	dec.Strict = true
 	start := int64(-1)
