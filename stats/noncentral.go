@@ -73,16 +73,17 @@ var ntInvFact = func() (c [17]float64) {
 }()
 
 // ntWindow returns an interval [lo, hi] in w outside which h(w) is below
-// exp(-40) times its peak value (the tail mass there is below 1e-17).
-func ntWindow(f float64) (lo, hi float64) {
-	const L = 40.0
+// exp(-L) times its peak value.
+func ntWindow(f, L float64) (lo, hi float64) {
 	// Solve (2w - expm1(2w))/2 = -L/f on each side by Newton; the function
 	// is concave with maximum 0 at w = 0.
 	target := -L / f
 	g := func(w float64) float64 { return 0.5*(2*w-math.Expm1(2*w)) - target }
 	dg := func(w float64) float64 { return 1 - math.Exp(2*w) }
 	// Right side: start where the exponential dominates.
-	hi = math.Max(0.5*math.Log1p(2*(L/f)+1), math.Sqrt(2*L/f)) + 0.1
+	// Either bound is right of the root: w^2 <= (expm1(2w) - 2w)/2 gives
+	// sqrt(L/f); exp(2w) = 1 + 2w + 2L/f gives the logarithmic one.
+	hi = math.Min(math.Sqrt(2*L/f), 0.5*math.Log(4*L/f+4)+1) + 0.1
 	for range 60 {
 		d := g(hi) / dg(hi)
 		hi -= d
@@ -140,16 +141,25 @@ type ntProblem struct {
 	upper             bool // integrate Phi(delta - t s) (upper tail) instead
 	wantPDF           bool
 	rough             bool // fixed rule only, no accuracy check (solver start-up)
+	segments          int  // Gauss-Kronrod panels used so far (capped by ntMaxSegments)
 }
 
 func (p *ntProblem) eval(w float64) (c, d float64) {
-	em := math.Expm1(2 * w)
+	// s = e^w; em = expm1(2w). For w well below 0, 1 + em loses relative
+	// accuracy, so s comes from exp directly there.
+	var s, em float64
+	if w < -0.35 {
+		s = math.Exp(w)
+		em = s*s - 1
+	} else {
+		em = math.Expm1(2 * w)
+		s = math.Sqrt(1 + em)
+	}
 	lh := p.logc + 0.5*p.f*ntTwoWMinusExpm1(2*w, em)
 	if lh < -745 {
 		return 0, 0
 	}
 	h := math.Exp(lh)
-	s := math.Sqrt(1 + em)
 	x := p.t*s - p.delta
 	if p.upper {
 		c = h * 0.5 * math.Erfc(x/math.Sqrt2)
@@ -168,6 +178,10 @@ func (p *ntProblem) eval(w float64) (c, d float64) {
 var ntGLax, ntGLaw, ntGLbx, ntGLbw = ntGLRule(ntNA), ntGLRuleW(ntNA), ntGLRule(ntNB), ntGLRuleW(ntNB)
 
 const ntNA, ntNB, ntPanels = 16, 24, 5
+
+// ntMaxSegments caps the adaptive subdivision (about 30,000 integrand
+// evaluations) so that no input can make the quadrature run away.
+const ntMaxSegments = 2000
 
 func ntGLRule(n int) []float64 {
 	x := make([]float64, n)
@@ -243,7 +257,8 @@ const ntEps = 0x1p-52
 // level, or the depth cap is reached.
 func (p *ntProblem) integrate(a, b, tol float64, depth int) (c, d float64) {
 	c, d, e := p.gk15(a, b)
-	if e <= tol || e <= 100*ntEps*math.Abs(c) || depth >= 30 {
+	p.segments++
+	if e <= tol || e <= 100*ntEps*math.Abs(c) || depth >= 30 || p.segments > ntMaxSegments {
 		return c, d
 	}
 	m := 0.5 * (a + b)
@@ -342,7 +357,11 @@ func ntCDFPDF(t, f, delta float64, wantPDF bool) (lower, upper, pdf float64) {
 // ntCDFPDFMode is ntCDFPDF with the option of a rough (unchecked, about
 // 1e-10 relative for df >= 30) evaluation used to approach a quantile.
 func ntCDFPDFMode(t, f, delta float64, wantPDF, rough bool) (lower, upper, pdf float64) {
-	lo, hi := ntWindow(f)
+	// Window: h(w) above exp(-40) of its peak. Mass outside is below 1e-17,
+	// enough unless the small tail itself is tiny; then the window is
+	// widened to exp(-(36 - ln c)) so that what lies outside stays below
+	// 1e-16 relative to the tail c (up to the exp(-745) underflow limit).
+	lo, hi := ntWindow(f, 40)
 	p := ntProblem{f: f, t: t, delta: delta, logc: ntLogNorm(f), wantPDF: wantPDF, rough: rough}
 	// Decide which tail is small from a cheap evaluation at the mode
 	// (w = 0, s = 1): Phi(t - delta) approximates the CDF.
@@ -352,6 +371,17 @@ func ntCDFPDFMode(t, f, delta float64, wantPDF, rough bool) (lower, upper, pdf f
 		p.upper = !p.upper
 		p.wantPDF = false
 		c, _ = p.runCut(lo, hi)
+	}
+	L := 40.0
+	for range 4 {
+		need := math.Min(745, 36-math.Log(math.Max(c, 1e-320)))
+		if rough || need <= L+1 {
+			break
+		}
+		L = need
+		lo, hi = ntWindow(f, L)
+		p.segments = 0
+		c, d = p.runCut(lo, hi)
 	}
 	c = math.Min(math.Max(c, 0), 1)
 	if p.upper {

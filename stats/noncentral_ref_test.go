@@ -1,0 +1,145 @@
+package stats
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"strconv"
+	"testing"
+)
+
+type tbNormalKRef struct {
+	Python, Scipy, Numpy, Mpmath string
+	K                            []struct {
+		N      int
+		P      float64
+		Gamma  float64
+		Scipy  *float64
+		Mpmath *float64
+	}
+}
+
+type tbNCTCDFRef struct {
+	CDF []struct {
+		T, DF, Delta float64
+		MpCDF        string  `json:"mp_cdf"`
+		MpSF         string  `json:"mp_sf"`
+		MpCheck      string  `json:"mp_check"`
+		ScipyCDF     float64 `json:"scipy_cdf"`
+		ScipySF      float64 `json:"scipy_sf"`
+	}
+}
+
+func tbLoadNormalK(t *testing.T) tbNormalKRef {
+	t.Helper()
+	b, err := os.ReadFile("../testdata/tolerance/normal_k.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var r tbNormalKRef
+	if err := json.Unmarshal(b, &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.K) < 50 {
+		t.Fatalf("reference file too short: %d k rows", len(r.K))
+	}
+	return r
+}
+
+// TestNormalKAgainstMpmath: source mpmath direct integration over the
+// chi-square variable at 30 digits (testdata/tolerance/gen_normal_k.py),
+// independent of both our quadrature and Boost's series. Required 1e-9
+// relative; n = 2 to 100,000 including 1,000, 10,000 and 100,000.
+func TestNormalKAgainstMpmath(t *testing.T) {
+	r := tbLoadNormalK(t)
+	count := 0
+	worst := 0.0
+	for _, c := range r.K {
+		if c.Mpmath == nil {
+			continue
+		}
+		k, err := NormalK(c.N, c.P, c.Gamma)
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := tbRel(k, *c.Mpmath)
+		worst = math.Max(worst, e)
+		if e > 1e-11 {
+			t.Logf("n=%d p=%g g=%g rel err %.2g", c.N, c.P, c.Gamma, e)
+		}
+		if e > 1e-9 {
+			t.Errorf("k(n=%d, p=%g, gamma=%g) = %.15g, mpmath %.15g, rel err %.2g", c.N, c.P, c.Gamma, k, *c.Mpmath, e)
+		}
+		count++
+	}
+	if count < 40 {
+		t.Fatalf("only %d mpmath rows", count)
+	}
+	t.Logf("mpmath: %d factors, worst relative error %.2g", count, worst)
+}
+
+// TestNormalKAgainstScipy: source scipy.stats.nct.ppf (Boost.Math) under
+// Debian python3-scipy. Boost's series loses accuracy or fails to converge
+// at large noncentrality, so rows it could not compute are null in the file
+// and the tolerance is 1e-9 relative only up to n = 10,000 (see the mpmath
+// test for larger n); above that scipy is checked to 1e-7.
+func TestNormalKAgainstScipy(t *testing.T) {
+	r := tbLoadNormalK(t)
+	count := 0
+	for _, c := range r.K {
+		if c.Scipy == nil {
+			continue
+		}
+		k, err := NormalK(c.N, c.P, c.Gamma)
+		if err != nil {
+			t.Fatal(err)
+		}
+		tol := 1e-9
+		if c.N > 10000 {
+			tol = 1e-7
+		}
+		if e := tbRel(k, *c.Scipy); e > tol {
+			t.Errorf("k(n=%d, p=%g, gamma=%g) = %.15g, scipy %.15g, rel err %.2g", c.N, c.P, c.Gamma, k, *c.Scipy, e)
+		}
+		count++
+	}
+	if count < 60 {
+		t.Fatalf("only %d scipy rows", count)
+	}
+}
+
+// TestNoncentralTCDFAgainstMpmath: both tails against mpmath integration
+// (40 digits, testdata/tolerance/gen_nct_cdf.py; each row's mp_cdf + mp_sf
+// - 1 is checked below 1e-20). Relative tolerance 1e-11 on each tail down
+// to 1e-280, including far tails such as P(T > 50; 99.5, 3) = 1.19e-60.
+func TestNoncentralTCDFAgainstMpmath(t *testing.T) {
+	b, err := os.ReadFile("../testdata/tolerance/nct_cdf.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var r tbNCTCDFRef
+	if err := json.Unmarshal(b, &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.CDF) < 15 {
+		t.Fatalf("only %d CDF rows", len(r.CDF))
+	}
+	for _, c := range r.CDF {
+		if chk, _ := strconv.ParseFloat(c.MpCheck, 64); math.Abs(chk) > 1e-20 {
+			t.Fatalf("reference row (%g; %g, %g) fails its own check: %s", c.T, c.DF, c.Delta, c.MpCheck)
+		}
+		lo, _ := strconv.ParseFloat(c.MpCDF, 64)
+		up, _ := strconv.ParseFloat(c.MpSF, 64)
+		gotLo := NoncentralTCDF(c.T, c.DF, c.Delta)
+		gotUp := NoncentralTSurvival(c.T, c.DF, c.Delta)
+		if lo > 1e-280 && tbRel(gotLo, lo) > 1e-11 {
+			t.Errorf("CDF(%g; %g, %g) = %.15g, mpmath %.15g", c.T, c.DF, c.Delta, gotLo, lo)
+		}
+		if up > 1e-280 && tbRel(gotUp, up) > 1e-11 {
+			t.Errorf("SF(%g; %g, %g) = %.15g, mpmath %.15g", c.T, c.DF, c.Delta, gotUp, up)
+		}
+		if lo <= 1e-280 && gotLo > 1e-270 || up <= 1e-280 && gotUp > 1e-270 {
+			t.Errorf("(%g; %g, %g): tails %g %g, mpmath %g %g", c.T, c.DF, c.Delta, gotLo, gotUp, lo, up)
+		}
+	}
+}
