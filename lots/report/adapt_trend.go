@@ -117,19 +117,11 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 		return nil, nil
 	}
 	name := s.Group + ", " + s.Property
-	labels := make([]string, len(s.Points))
-	means := make([]float64, 0, len(s.Points))
-	var ewma, lo, hi []float64
+	sig := map[string]map[int]bool{"ind": {}, "ewma": {}}
 	index := map[string]int{}
 	for i, p := range s.Points {
-		labels[i] = p.Lot
 		index[p.Lot] = i
-		means = append(means, float64(p.Mean))
-		ewma = append(ewma, float64(p.EWMA))
-		lo = append(lo, float64(p.EWMALow))
-		hi = append(hi, float64(p.EWMAHigh))
 	}
-	var indSig, ewmaSig []int
 	for _, sg := range r.Signals {
 		if sg.Group != s.Group || sg.Property != s.Property || sg.Material != s.Material || sg.Lot == "" {
 			continue
@@ -140,13 +132,35 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 		}
 		switch {
 		case strings.HasPrefix(sg.Rule, "we"):
-			indSig = appendUnique(indSig, i)
+			sig["ind"][i] = true
 		case sg.Rule == "ewma":
-			ewmaSig = appendUnique(ewmaSig, i)
+			sig["ewma"][i] = true
 		}
 	}
+	// chart gathers the points with a finite value (a lot left out of a
+	// chart, such as a rejected lot on the EWMA, has none).
+	chart := func(kind string, value func(trend.Point) float64, lo, hi func(trend.Point) float64) (labels []string, vals, lower, upper []float64, signals []int, left int) {
+		for i, p := range s.Points {
+			v := value(p)
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				left++
+				continue
+			}
+			if sig[kind][i] {
+				signals = append(signals, len(vals))
+			}
+			labels = append(labels, p.Lot)
+			vals = append(vals, v)
+			if lo != nil {
+				lower = append(lower, lo(p))
+				upper = append(upper, hi(p))
+			}
+		}
+		return
+	}
 	var out []Block
-	if finiteAll(means) && !math.IsNaN(float64(s.Center)) {
+	if !math.IsNaN(float64(s.Center)) {
+		labels, vals, _, _, signals, left := chart("ind", func(p trend.Point) float64 { return float64(p.Mean) }, nil, nil)
 		var lower, upper []float64
 		if !math.IsNaN(float64(s.Lower)) {
 			lower = []float64{float64(s.Lower)}
@@ -154,25 +168,40 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 		if !math.IsNaN(float64(s.Upper)) {
 			upper = []float64{float64(s.Upper)}
 		}
-		svg, err := ControlChart(ChartData{Title: "Lot means: " + name, XLabel: "lot, in test order", Quantity: "lot mean " + s.Property, Unit: s.Unit,
-			Labels: labels, Values: means, Centre: float64(s.Center), Lower: lower, Upper: upper, Signals: indSig, Name: "lot mean"})
-		if err != nil {
-			return nil, err
+		if len(vals) > 0 {
+			svg, err := ControlChart(ChartData{Title: "Lot means: " + name, XLabel: "lot, in test order", Quantity: "lot mean " + s.Property, Unit: s.Unit,
+				Labels: labels, Values: vals, Centre: float64(s.Center), Lower: lower, Upper: upper, Signals: signals, Name: "lot mean"})
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
+				Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.%s",
+					s.BaselineFrom, s.BaselineTo, s.BaselineLots, num(float64(s.Center), 4), num(float64(s.Lower), 4), num(float64(s.Upper), 4), s.Unit, leftText(left))})
 		}
-		out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
-			Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.",
-				s.BaselineFrom, s.BaselineTo, s.BaselineLots, num(float64(s.Center), 4), num(float64(s.Lower), 4), num(float64(s.Upper), 4), s.Unit)})
-	}
-	if finiteAll(ewma) && !math.IsNaN(float64(s.Center)) {
-		svg, err := ControlChart(ChartData{Title: "EWMA: " + name, XLabel: "lot, in test order", Quantity: "EWMA of lot means", Unit: s.Unit,
-			Labels: labels, Values: ewma, Centre: float64(s.Center), Lower: lo, Upper: hi, Signals: ewmaSig, Name: "EWMA"})
-		if err != nil {
-			return nil, err
+		labels, vals, lo, hi, signals, left := chart("ewma", func(p trend.Point) float64 { return float64(p.EWMA) },
+			func(p trend.Point) float64 { return float64(p.EWMALow) }, func(p trend.Point) float64 { return float64(p.EWMAHigh) })
+		if len(vals) > 0 {
+			svg, err := ControlChart(ChartData{Title: "EWMA: " + name, XLabel: "lot, in test order", Quantity: "EWMA of lot means", Unit: s.Unit,
+				Labels: labels, Values: vals, Centre: float64(s.Center), Lower: lo, Upper: hi, Signals: signals, Name: "EWMA"})
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, &Figure{Title: "EWMA chart of lot means, " + name, SVG: svg,
+				Caption: "Limits widen to their asymptote over the first lots. Circled: lots where the EWMA left its limits." + leftText(left)})
 		}
-		out = append(out, &Figure{Title: "EWMA chart of lot means, " + name, SVG: svg,
-			Caption: "Limits widen to their asymptote over the first lots. Circled: lots where the EWMA left its limits."})
 	}
 	return out, nil
+}
+
+// leftText says how many lots a chart leaves out.
+func leftText(n int) string {
+	switch n {
+	case 0:
+		return ""
+	case 1:
+		return " One lot without a value on this chart is left out (for example a lot rejected at receiving, which the EWMA skips)."
+	}
+	return fmt.Sprintf(" %d lots without a value on this chart are left out (for example lots rejected at receiving, which the EWMA skips).", n)
 }
 
 // periodPlots draws, for every property (and material), the period means
@@ -271,24 +300,6 @@ func allNaN(xs []float64) bool {
 		}
 	}
 	return true
-}
-
-func finiteAll(xs []float64) bool {
-	for _, x := range xs {
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return false
-		}
-	}
-	return len(xs) > 0
-}
-
-func appendUnique(xs []int, x int) []int {
-	for _, v := range xs {
-		if v == x {
-			return xs
-		}
-	}
-	return append(xs, x)
 }
 
 // num formats a number with sig significant digits; "-" for a missing value.

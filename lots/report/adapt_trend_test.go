@@ -68,6 +68,23 @@ func TestTrendSection(t *testing.T) {
 			}
 		}
 	}
+	nanEWMA := 0
+	for _, s := range r.Series {
+		for _, p := range s.Points {
+			if math.IsNaN(float64(p.EWMA)) {
+				nanEWMA++
+			}
+		}
+	}
+	leftOut := 0
+	for _, b := range sec.Blocks {
+		if f, ok := b.(*Figure); ok && strings.Contains(f.Caption, "left out") {
+			leftOut++
+		}
+	}
+	if (nanEWMA > 0) != (leftOut > 0) {
+		t.Errorf("%d points without an EWMA value, %d captions saying lots are left out", nanEWMA, leftOut)
+	}
 	if want := 2*len(r.Series) + 2; figs != want {
 		t.Errorf("%d figures, want %d (2 per series + mean and Ppk trend)", figs, want)
 	}
