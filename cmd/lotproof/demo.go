@@ -259,7 +259,7 @@ func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date string)
 			return nil, err
 		}
 	}
-	return trend.Compute(ctx, s, trend.Options{Baseline: "2025-Q1..2025-Q4"})
+	return trend.Compute(ctx, s, trend.Options{Baseline: demoBaseline})
 }
 
 func demoReducedRows(d *lots.Dataset, out output) []demoReduced {
@@ -355,3 +355,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	out = append(out, sig)
 	return out
 }
+
+// demoBaseline is the period the demo's control limits come from: the five
+// quarters before Coldmere Forge's drift begins.
+const demoBaseline = "2025-Q1..2026-Q1"

@@ -111,6 +111,11 @@ func TestDemo(t *testing.T) {
 				B                           *float64 `json:"b_basis"`
 			} `json:"results"`
 		} `json:"allowables"`
+		Trend struct {
+			Signals []struct {
+				Rule, Group, Property, Period, Lot string
+			} `json:"signals"`
+		} `json:"trend"`
 		Report string `json:"report"`
 	}
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
@@ -147,6 +152,30 @@ func TestDemo(t *testing.T) {
 	for _, r := range res.Allowables.Results {
 		if r.B == nil {
 			t.Errorf("%s at %s: no B-basis value", r.Property, r.Condition)
+		}
+	}
+	// The drifting mill is flagged in tensile and proof strength in the
+	// quarter its drift starts and not before; the other mills' strength
+	// levels are flagged only at the planted bad lot and outlier lot (the
+	// S chart, a test of spread, is left out of this check).
+	first := map[string]string{}
+	for _, s := range res.Trend.Signals {
+		if s.Property != "tensile" && s.Property != "proof" {
+			continue
+		}
+		if s.Group == "Coldmere Forge" {
+			if first[s.Property] == "" || s.Period < first[s.Property] {
+				first[s.Property] = s.Period
+			}
+			continue
+		}
+		if s.Rule != "s_chart" && s.Lot != "SR-2503-2" && s.Lot != "BW-2504-1" {
+			t.Errorf("unexpected %s signal: %s %s %s lot %q", s.Rule, s.Group, s.Property, s.Period, s.Lot)
+		}
+	}
+	for _, p := range []string{"tensile", "proof"} {
+		if first[p] != "2026-Q2" {
+			t.Errorf("Coldmere Forge %s first flagged in %q, want 2026-Q2", p, first[p])
 		}
 	}
 	if res.Report != page {

@@ -516,7 +516,45 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		sr.Points = append(sr.Points, Point{Lot: l.v.Lot, Period: l.period, Tested: l.v.Tested, N: len(l.v.Values), Mean: lots.Float(l.mean), SD: lots.Float(l.sd),
 			SLower: lots.NaN, SUpper: lots.NaN, EWMA: lots.NaN, EWMALow: lots.NaN, EWMAHigh: lots.NaN, Verdict: l.verdict, Baseline: base[i]})
 	}
+	// The S chart centre from the baseline lots (used below for the floor
+	// of the lot-mean sigma as well).
+	var sbar float64
+	var sbarErr error
+	if len(baseSD) >= 2 {
+		equal := true
+		for _, n := range baseN {
+			equal = equal && n == baseN[0]
+		}
+		if equal {
+			sbar, sbarErr = stats.MeanSBar(baseSD)
+		} else {
+			sbar, sbarErr = stats.PooledSBar(baseSD, baseN)
+		}
+	} else {
+		sbarErr = fmt.Errorf("needs two baseline lots with two or more specimens")
+	}
 	lim, mr, err := stats.IndividualsLimits(baseMeans)
+	if err == nil && sbarErr == nil && sbar > 0 {
+		// A lot mean varies at least as much as the within-lot scatter
+		// allows: Var(lot mean) = sigma_b^2 + sigma_w^2/n >= sigma_w^2/n
+		// (one-way random-effects model; Montgomery, Design and Analysis
+		// of Experiments, section 3.9). With a handful of baseline lots the
+		// moving range can fall well below that by chance, which draws
+		// limits too tight; the sigma of the lot means is then raised to
+		// the within-lot floor sbar/(c4 sqrt(n)).
+		nbar := 0
+		for _, n := range baseN {
+			nbar += n
+		}
+		nbar = int(math.Round(float64(nbar) / float64(len(baseN))))
+		if c4, cerr := stats.C4(nbar); cerr == nil {
+			if floor := sbar / c4 / math.Sqrt(float64(nbar)); lim.Sigma < floor {
+				sr.Notes = append(sr.Notes, fmt.Sprintf("the moving-range sigma of the lot means (%.4g) is below the within-lot floor sbar/(c4 sqrt n) = %.4g; the floor is used", lim.Sigma, floor))
+				lim.Sigma = floor
+				lim.Lower, lim.Upper = lim.Center-3*floor, lim.Center+3*floor
+			}
+		}
+	}
 	if err != nil {
 		sr.Notes = append(sr.Notes, fmt.Sprintf("no chart of lot means: the baseline (%s..%s) has %d lots; %v", sr.BaselineFrom, sr.BaselineTo, len(baseMeans), err))
 	} else {
@@ -541,9 +579,25 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 			}
 			signal(fmt.Sprintf("we%d", r.Rule), l.period, l.v.Lot, l.mean, limit, detail+" ("+side+")")
 		}
-		ew, err := stats.EWMA(means, lim.Center, lim.Sigma, o.Lambda, o.L)
+		// The EWMA runs over the lots not rejected at receiving: a rejected
+		// lot is a known, dispositioned cause (it is still plotted and
+		// judged by rule 1), and left in it would hold the average away
+		// from the centre for several good lots after it.
+		var accepted []int
+		var accMeans []float64
+		for i, l := range ls {
+			if l.verdict != "nonconforming" {
+				accepted = append(accepted, i)
+				accMeans = append(accMeans, means[i])
+			}
+		}
+		if len(accepted) < len(ls) {
+			sr.Notes = append(sr.Notes, "the EWMA leaves out lots rejected at receiving")
+		}
+		ew, err := stats.EWMA(accMeans, lim.Center, lim.Sigma, o.Lambda, o.L)
 		if err == nil {
-			for i, p := range ew {
+			for j, p := range ew {
+				i := accepted[j]
 				sr.Points[i].EWMA, sr.Points[i].EWMALow, sr.Points[i].EWMAHigh = lots.Float(p.Z), lots.Float(p.Lower), lots.Float(p.Upper)
 				if p.Z < p.Lower {
 					signal("ewma", ls[i].period, ls[i].v.Lot, p.Z, p.Lower, "EWMA of lot means below its lower limit")
@@ -554,21 +608,7 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		}
 	}
 	// S chart.
-	var sbar float64
-	if len(baseSD) >= 2 {
-		equal := true
-		for _, n := range baseN {
-			equal = equal && n == baseN[0]
-		}
-		if equal {
-			sbar, err = stats.MeanSBar(baseSD)
-		} else {
-			sbar, err = stats.PooledSBar(baseSD, baseN)
-		}
-	} else {
-		err = fmt.Errorf("needs two baseline lots with two or more specimens")
-	}
-	if err == nil && sbar > 0 {
+	if sbarErr == nil && sbar > 0 {
 		sr.SBar = lots.Float(sbar)
 		for i, l := range ls {
 			if math.IsNaN(l.sd) {
@@ -587,8 +627,8 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		}
 	} else {
 		msg := "no S chart"
-		if err != nil {
-			msg += ": " + err.Error()
+		if sbarErr != nil {
+			msg += ": " + sbarErr.Error()
 		}
 		sr.Notes = append(sr.Notes, msg)
 	}

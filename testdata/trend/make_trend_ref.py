@@ -86,6 +86,10 @@ for sup in ["Alder Works", "Birch Foundry"]:
         c, sig = bm.mean(), mr / d2
         bs, bn = sds[base], ns[base]
         sbar = bs.mean() if len(set(bn)) == 1 else math.sqrt(((bn - 1) * bs ** 2).sum() / (bn - 1).sum())
+        # floor of the lot-mean sigma: within-lot sigma / sqrt(n)
+        nbar = int(round(bn.mean()))
+        floor = sbar / c4(nbar) / math.sqrt(nbar)
+        sig = max(sig, floor)
         z = c; ew = []
         for i, x in enumerate(means, start=1):
             z = lam * x + (1 - lam) * z
