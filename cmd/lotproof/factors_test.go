@@ -1,0 +1,142 @@
+package main
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"strings"
+	"testing"
+)
+
+// TestFactorsJSON checks the rows against outside references:
+// normal k against scipy.stats.nct.ppf values in
+// testdata/tolerance/normal_k.json and Natrella 1963 Table A-7 (from memory,
+// 3 decimals); Hanson-Koopmans k(2) = 35.177 (CMH-17-1G Table 8.5.14, from
+// memory); order-statistic minimum n 29 / 299 (CMH-17-1G 8.3.4.5.1); the
+// handbook Weibull approximation V_B(30) = 5.0377 by hand from its formula.
+func TestFactorsJSON(t *testing.T) {
+	code, out, errs := run(t, "", "factors", "--n", "2,10,28-30,298-299", "--method", "normal,weibull-approx,nonparametric", "--format", "json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var raw struct {
+		Rows     []map[string]any `json:"rows"`
+		Cautions []string         `json:"cautions"`
+	}
+	if err := json.Unmarshal([]byte(out), &raw); err != nil {
+		t.Fatal(err)
+	}
+	if len(raw.Cautions) == 0 {
+		t.Error("no cautions")
+	}
+	for _, r := range raw.Rows {
+		for _, k := range []string{"n", "content", "confidence", "method", "factor"} {
+			if _, ok := r[k]; !ok {
+				t.Fatalf("row %v lacks %q", r, k)
+			}
+		}
+	}
+	var res factorsResult
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	get := func(method string, n int, p float64) (factorRow, bool) {
+		for _, r := range res.Rows {
+			if r.Method == method && r.N == n && r.Content == p && r.Confidence == 0.95 {
+				return r, true
+			}
+		}
+		return factorRow{}, false
+	}
+	// scipy reference rows.
+	b, err := os.ReadFile("../../testdata/tolerance/normal_k.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		K []struct {
+			N        int
+			P, Gamma float64
+			Scipy    *float64
+		}
+	}
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, c := range ref.K {
+		if c.Scipy == nil || c.Gamma != 0.95 {
+			continue
+		}
+		if r, ok := get("normal", c.N, c.P); ok {
+			checked++
+			if math.Abs(r.Factor-*c.Scipy) > 1e-9**c.Scipy {
+				t.Errorf("normal k(%d, %g) = %.12g, scipy %.12g", c.N, c.P, r.Factor, *c.Scipy)
+			}
+		}
+	}
+	if checked < 6 {
+		t.Errorf("only %d normal rows matched the scipy reference", checked)
+	}
+	if r, _ := get("normal", 2, 0.90); math.Abs(r.Factor-20.581) > 0.0005 {
+		t.Errorf("normal k(2, 0.90) = %g, Natrella 20.581", r.Factor)
+	}
+	if r, _ := get("hanson-koopmans", 2, 0.90); math.Abs(r.Factor-35.177) > 0.0005 || r.Rank != 2 {
+		t.Errorf("HK k(2) = %+v, CMH-17-1G 35.177", r)
+	}
+	if _, ok := get("hanson-koopmans", 28, 0.90); !ok {
+		t.Error("n = 28 B-basis should use Hanson-Koopmans")
+	}
+	if r, ok := get("order-statistic", 29, 0.90); !ok || r.Factor != 1 || r.Rank != 1 {
+		t.Errorf("n = 29 B-basis: %+v", r)
+	}
+	if _, ok := get("hanson-koopmans", 298, 0.99); !ok {
+		t.Error("n = 298 A-basis should use Hanson-Koopmans")
+	}
+	if r, ok := get("order-statistic", 299, 0.99); !ok || r.Rank != 1 {
+		t.Errorf("n = 299 A-basis: %+v", r)
+	}
+	if r, _ := get("weibull-approx", 30, 0.90); math.Abs(r.Factor-5.0377) > 1e-4 {
+		t.Errorf("V_B(30) = %g, hand value 5.0377", r.Factor)
+	}
+}
+
+// TestFactorsDeterministicMC: same seed, byte-identical output.
+func TestFactorsDeterministicMC(t *testing.T) {
+	args := []string{"factors", "--n", "5,12", "--content", "90%", "--method", "weibull-mc", "--sims", "1000", "--seed", "9", "--format", "csv"}
+	c1, o1, _ := run(t, "", args...)
+	c2, o2, _ := run(t, "", args...)
+	if c1 != exitOK || c2 != exitOK || o1 != o2 || len(strings.Split(strings.TrimSpace(o1), "\n")) != 3 {
+		t.Errorf("exit %d, outputs differ or wrong length:\n%s\n%s", c1, o1, o2)
+	}
+	if !strings.HasPrefix(o1, "n,content,confidence,method,factor") {
+		t.Errorf("CSV header: %q", strings.SplitN(o1, "\n", 2)[0])
+	}
+}
+
+func TestFactorsTable(t *testing.T) {
+	code, out, _ := run(t, "", "factors", "--n", "10", "--format", "table")
+	if code != exitOK || !strings.Contains(out, "One-sided lower tolerance factors") || !strings.Contains(out, "never replaces") {
+		t.Errorf("exit %d:\n%s", code, out)
+	}
+}
+
+func TestFactorsBadInput(t *testing.T) {
+	for _, args := range [][]string{
+		{"factors", "--n", "1"},
+		{"factors", "--n", "5-3"},
+		{"factors", "--n", "x"},
+		{"factors", "--n", "2-200000"},
+		{"factors", "--content", "1.5"},
+		{"factors", "--confidence", "0"},
+		{"factors", "--method", "gamma"},
+		{"factors", "--method", "weibull-mc", "--sims", "10"},
+		{"factors", "--method", "weibull-mc", "--n", "2-2000"},
+		{"factors", "extra"},
+	} {
+		code, out, errs := run(t, "", args...)
+		if code != exitInput || out != "" || !strings.Contains(errs, "lotproof:") {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q", args, code, out, errs)
+		}
+	}
+}
