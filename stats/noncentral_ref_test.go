@@ -79,13 +79,13 @@ func TestNormalKAgainstMpmath(t *testing.T) {
 }
 
 // TestNormalKAgainstScipy: source scipy.stats.nct.ppf (Boost.Math) under
-// Debian python3-scipy. Boost's series loses accuracy or fails to converge
-// at large noncentrality, so rows it could not compute are null in the file
-// and the tolerance is 1e-9 relative only up to n = 10,000 (see the mpmath
-// test for larger n); above that scipy is checked to 1e-7.
+// Debian python3-scipy, n = 2 to 100,000 at 1e-9 relative. Rows Boost could
+// not compute (its series can fail to converge at large noncentrality) would
+// be null in the file and are skipped; the mpmath test covers every n.
 func TestNormalKAgainstScipy(t *testing.T) {
 	r := tbLoadNormalK(t)
 	count := 0
+	worst := 0.0
 	for _, c := range r.K {
 		if c.Scipy == nil {
 			continue
@@ -94,11 +94,9 @@ func TestNormalKAgainstScipy(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		tol := 1e-9
-		if c.N > 10000 {
-			tol = 1e-7
-		}
-		if e := tbRel(k, *c.Scipy); e > tol {
+		e := tbRel(k, *c.Scipy)
+		worst = math.Max(worst, e)
+		if e > 1e-9 {
 			t.Errorf("k(n=%d, p=%g, gamma=%g) = %.15g, scipy %.15g, rel err %.2g", c.N, c.P, c.Gamma, k, *c.Scipy, e)
 		}
 		count++
@@ -106,6 +104,7 @@ func TestNormalKAgainstScipy(t *testing.T) {
 	if count < 60 {
 		t.Fatalf("only %d scipy rows", count)
 	}
+	t.Logf("scipy: %d factors, worst relative error %.2g", count, worst)
 }
 
 // TestNoncentralTCDFAgainstMpmath: both tails against mpmath integration
@@ -142,4 +141,47 @@ func TestNoncentralTCDFAgainstMpmath(t *testing.T) {
 			t.Errorf("(%g; %g, %g): tails %g %g, mpmath %g %g", c.T, c.DF, c.Delta, gotLo, gotUp, lo, up)
 		}
 	}
+}
+
+// TestNormalKDenseAgainstScipy: every n from 2 to 200 and every 997th n up
+// to 100,000 at the A- and B-basis levels, against scipy.stats.nct.ppf
+// (testdata/tolerance/gen_normal_k_dense.py), 1e-9 relative.
+func TestNormalKDenseAgainstScipy(t *testing.T) {
+	b, err := os.ReadFile("../testdata/tolerance/normal_k_dense.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		N []int
+		K map[string][]*float64
+	}
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
+	worst, count := 0.0, 0
+	for ps, ks := range ref.K {
+		p, _ := strconv.ParseFloat(ps, 64)
+		if len(ks) != len(ref.N) || len(ks) < 290 {
+			t.Fatalf("bad reference lengths %d %d", len(ks), len(ref.N))
+		}
+		for i, n := range ref.N {
+			if ks[i] == nil {
+				continue
+			}
+			k, err := NormalK(n, p, 0.95)
+			if err != nil {
+				t.Fatal(err)
+			}
+			e := tbRel(k, *ks[i])
+			worst = math.Max(worst, e)
+			count++
+			if e > 1e-9 {
+				t.Errorf("k(n=%d, p=%g) = %.15g, scipy %.15g", n, p, k, *ks[i])
+			}
+		}
+	}
+	if count < 580 {
+		t.Fatalf("only %d rows", count)
+	}
+	t.Logf("dense scipy grid: %d factors, worst relative error %.2g", count, worst)
 }
