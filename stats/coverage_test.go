@@ -179,7 +179,7 @@ func covCases(t testing.TB) []covCase {
 	for _, c := range []struct {
 		lots, per int
 		sb, sw    float64
-	}{{5, 6, 2, 2}, {8, 4, 1, 3}} {
+	}{{5, 6, 2, 2}, {8, 4, 1, 3}, {5, 6, 4, 1}} {
 		mu := 200.0
 		tq := mu + math.Sqrt(c.sb*c.sb+c.sw*c.sw)*normQuantile(0.10)
 		cases = append(cases, covCase{
@@ -265,6 +265,6 @@ func BenchmarkCoverage(b *testing.B) {
 			}
 			res = append(res, r)
 		}
-		b.Log("\n" + covTable(res))
+		fmt.Print("\n" + covTable(res))
 	}
 }
