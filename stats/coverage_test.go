@@ -152,14 +152,18 @@ func covCases(t testing.TB) []covCase {
 			bound:   func(_ [][]float64, x []float64) (float64, error) { return slicesMin(x), nil },
 			comment: "achieved confidence 1-0.9^29 = 0.9529",
 		})
-		for _, pop := range []string{"uniform", "normal"} {
+		for _, pop := range []string{"uniform", "normal", "weibull"} {
 			nn := 10
 			kHK := must(HansonKoopmansK(nn, nn, 0.90, 0.95))
 			tq := 0.10
 			gen := func(r *rand.Rand) float64 { return r.Float64() }
-			if pop == "normal" {
+			switch pop {
+			case "normal":
 				tq = 50 + 3*normQuantile(0.10)
 				gen = func(r *rand.Rand) float64 { return 50 + 3*r.NormFloat64() }
+			case "weibull":
+				tq = 300 * math.Pow(-math.Log(0.90), 1/12.0)
+				gen = func(r *rand.Rand) float64 { return 300 * math.Pow(r.ExpFloat64(), 1/12.0) }
 			}
 			cases = append(cases, covCase{
 				name: "Hanson-Koopmans n=10 p=0.9 (" + pop + " pop.)", exact: pop == "uniform", p: 0.90, g: 0.95, trueQ: tq,
@@ -170,7 +174,7 @@ func covCases(t testing.TB) []covCase {
 					lo, hi := slicesMin(x), slicesMax(x)
 					return hi * math.Pow(lo/hi, kHK), nil
 				},
-				comment: map[string]string{"uniform": "least favourable case: exact", "normal": "conservative"}[pop],
+				comment: map[string]string{"uniform": "least favourable case: exact", "normal": "conservative", "weibull": "conservative"}[pop],
 			})
 		}
 	}
