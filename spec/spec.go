@@ -86,6 +86,26 @@ func ReadFile(name string) (*Spec, error) {
 	return Parse(name, b)
 }
 
+// ReadFiles reads and validates several specification files and checks
+// that they can be used together (CheckSet: one specification per
+// material).
+func ReadFiles(names []string) ([]*Spec, error) {
+	var specs []*Spec
+	for _, n := range names {
+		s, err := ReadFile(n)
+		if err != nil {
+			return nil, err
+		}
+		specs = append(specs, s)
+	}
+	if len(specs) > 1 {
+		if err := CheckSet(specs); err != nil {
+			return nil, err
+		}
+	}
+	return specs, nil
+}
+
 type parser struct {
 	file string
 	ps   []lots.Problem

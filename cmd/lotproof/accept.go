@@ -69,20 +69,12 @@ nonconforming, undecided or not judged, 2 on bad input.`,
 
 func init() { register(newAcceptCmd) }
 
-// readSpecs reads every specification file.
+// readSpecs reads the specification files a judgement needs (at least one).
 func readSpecs(names []string) ([]*spec.Spec, error) {
 	if len(names) == 0 {
 		return nil, usageError{fmt.Errorf("give at least one --spec file")}
 	}
-	var out []*spec.Spec
-	for _, n := range names {
-		s, err := spec.ReadFile(n)
-		if err != nil {
-			return nil, err
-		}
-		out = append(out, s)
-	}
-	return out, nil
+	return spec.ReadFiles(names)
 }
 
 func runAccept(o acceptOptions, st streams) error {

@@ -191,7 +191,7 @@ func runDemo(o demoOptions, st streams) error {
 			res.Report = o.Report
 		}
 	} else {
-		displayTrend(tr, o.Out.System)
+		tr.Display(o.Out.System)
 	}
 	res.Trend = tr
 	bar.Add(1)
@@ -255,7 +255,7 @@ func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date string)
 		if err != nil {
 			return nil, err
 		}
-		if _, err := s.Record(ctx, d, verdicts, specLimits(specs), store.Meta{Time: when, User: "demo", Version: lots.Version}); err != nil {
+		if _, err := s.Record(ctx, d, verdicts, store.LimitsOf(specs), store.Meta{Time: when, User: "demo", Version: lots.Version}); err != nil {
 			return nil, err
 		}
 	}

@@ -50,12 +50,7 @@ With --n the limits for that lot size are printed. With a results file DATA
 and --property, every lot is tested with the factors for its own size.
 Baseline values are in --unit (default: the data column's unit, else MPa).
 Exit status 1 when any lot fails.`,
-		Args: func(cmd *cobra.Command, args []string) error {
-			if len(args) > 1 {
-				return usageError{fmt.Errorf("equivalence takes at most one results file (got %d arguments)", len(args))}
-			}
-			return nil
-		},
+		Args: maxArgs(1, "one results file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			var err error
 			if o.Out, err = g.resolve(st); err != nil {

@@ -87,36 +87,6 @@ func currentUser() string {
 	return "unknown"
 }
 
-// readSpecFiles reads specification files; a bad one is an input error.
-func readSpecFiles(names []string) ([]*spec.Spec, error) {
-	var specs []*spec.Spec
-	for _, n := range names {
-		s, err := spec.ReadFile(n)
-		if err != nil {
-			return nil, err
-		}
-		specs = append(specs, s)
-	}
-	if len(specs) > 1 {
-		if err := spec.CheckSet(specs); err != nil {
-			return nil, err
-		}
-	}
-	return specs, nil
-}
-
-// specLimits lists the limits of the specifications in the store's form.
-func specLimits(specs []*spec.Spec) []store.SpecLimit {
-	var out []store.SpecLimit
-	for _, s := range specs {
-		for _, l := range s.Limits {
-			out = append(out, store.SpecLimit{Spec: s.Label(), Material: s.Material, Property: l.Property,
-				Minimum: l.Min, Maximum: l.Max, Unit: internalSymbol(l)})
-		}
-	}
-	return out
-}
-
 func runRecord(o recordOptions, st streams) error {
 	d, by, err := readData(o.Data, o.Input, st)
 	if err != nil {
@@ -125,7 +95,7 @@ func runRecord(o recordOptions, st streams) error {
 	if len(d.Specimens) == 0 {
 		return lots.Inputf(d.Source, "give a file with at least one specimen row", "no specimens to record")
 	}
-	specs, err := readSpecFiles(o.Specs)
+	specs, err := spec.ReadFiles(o.Specs)
 	if err != nil {
 		return err
 	}
@@ -147,7 +117,7 @@ func runRecord(o recordOptions, st streams) error {
 		return usageError{err}
 	}
 	defer s.Close()
-	r, err := s.Record(ctx, d, verdicts, specLimits(specs), store.Meta{Time: now(), User: who, Version: lots.Version})
+	r, err := s.Record(ctx, d, verdicts, store.LimitsOf(specs), store.Meta{Time: now(), User: who, Version: lots.Version})
 	if err != nil {
 		var ce *store.ConflictError
 		if errors.As(err, &ce) {
@@ -210,10 +180,6 @@ func recordTable(r recordResult) *render.Table {
 	}
 	return t
 }
-
-// internalSymbol is the internal unit of a limit's quantity (limits are
-// held in it).
-func internalSymbol(l spec.Limit) string { return store.StoredUnit(l.Unit) }
 
 // judgeLots computes each lot's verdict against its specification with
 // package acceptance. Verdicts are stored per lot, so a file judged by

@@ -166,7 +166,7 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 		}
 	}
 	if in.Trend != nil && len(in.Trend.Periods) > 0 {
-		displayTrend(in.Trend, in.System)
+		in.Trend.Display(in.System)
 		b.Trend = in.Trend
 		b.Cautions = append(b.Cautions, in.Trend.Caution)
 		if in.TrendFrom != "" {
@@ -241,7 +241,7 @@ func runReport(o reportOptions, st streams) error {
 		if err != nil {
 			return usageError{err}
 		}
-		tr, err := trend.Compute(ctx, s, trend.Options{Limits: specLimits(specs)})
+		tr, err := trend.Compute(ctx, s, trend.Options{Limits: store.LimitsOf(specs)})
 		in.TrendFrom = s.Where()
 		s.Close()
 		if err != nil {

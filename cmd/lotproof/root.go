@@ -149,3 +149,13 @@ func exactArgs(n int, what string) cobra.PositionalArgs {
 		return nil
 	}
 }
+
+// maxArgs accepts at most n positional arguments (a usage error otherwise).
+func maxArgs(n int, what string) cobra.PositionalArgs {
+	return func(cmd *cobra.Command, args []string) error {
+		if len(args) > n {
+			return usageError{fmt.Errorf("%s takes at most %s (got %d arguments)", cmd.Name(), what, len(args))}
+		}
+		return nil
+	}
+}

@@ -53,12 +53,7 @@ override them. When the specification gives a minimum and a maximum, the
 limit nearer the mean (in SDs) is used. The probability counts the
 tolerance-bound criterion only; a specification that also rejects on
 individual values lowers it slightly.`,
-		Args: func(cmd *cobra.Command, args []string) error {
-			if len(args) > 1 {
-				return usageError{fmt.Errorf("specimens takes at most one results file (got %d arguments)", len(args))}
-			}
-			return nil
-		},
+		Args: maxArgs(1, "one results file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			var err error
 			if o.Out, err = g.resolve(st); err != nil {

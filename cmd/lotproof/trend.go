@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 
 	"github.com/spf13/cobra"
@@ -13,7 +12,7 @@ import (
 	"lotproof/lots/render"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
-	"lotproof/lots/units"
+	"lotproof/spec"
 )
 
 type trendOptions struct {
@@ -68,11 +67,11 @@ regulations, local codes and licensed engineering judgement.`,
 func init() { register(newTrendCmd) }
 
 func runTrend(o trendOptions, st streams) error {
-	specs, err := readSpecFiles(o.Specs)
+	specs, err := spec.ReadFiles(o.Specs)
 	if err != nil {
 		return err
 	}
-	o.Trend.Limits = specLimits(specs)
+	o.Trend.Limits = store.LimitsOf(specs)
 	ctx := context.Background()
 	url := store.ResolveURL(o.DB)
 	s, err := store.Open(ctx, url)
@@ -87,73 +86,13 @@ func runTrend(o trendOptions, st streams) error {
 	if len(res.Periods) == 0 {
 		fmt.Fprintf(st.Err, "lotproof: %s holds no dated lots to trend (record results files first)\n", s.Where())
 	}
-	displayTrend(res, o.Out.System)
+	res.Display(o.Out.System)
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
 		return writeTables(w, o.Out.Format, trendTables(res)...)
 	})
-}
-
-// displayTrend converts values from the stored (internal) units into the
-// display units of the chosen system, in place.
-func displayTrend(r *trend.Result, sys units.System) {
-	type conv struct {
-		sym string
-		f   func(float64) float64
-	}
-	cache := map[string]conv{}
-	get := func(stored string) conv {
-		if c, ok := cache[stored]; ok {
-			return c
-		}
-		c := conv{sym: stored, f: func(v float64) float64 { return v }}
-		if u, err := units.Parse(stored); err == nil {
-			d := u.Display(sys)
-			c = conv{sym: d.Symbol, f: func(v float64) float64 { return d.FromInternal(u.ToInternal(v)) }}
-		}
-		cache[stored] = c
-		return c
-	}
-	f := func(c conv, v *lots.Float) {
-		if !math.IsNaN(float64(*v)) {
-			*v = lots.Float(c.f(float64(*v)))
-		}
-	}
-	unitOf := map[[3]string]string{}
-	for i := range r.Periods {
-		p := &r.Periods[i]
-		unitOf[[3]string{p.Group, p.Material, p.Property}] = p.Unit
-		c := get(p.Unit)
-		p.Unit = c.sym
-		f(c, &p.Mean)
-		f(c, &p.SD)
-		f(c, &p.Minimum)
-	}
-	for i := range r.Series {
-		s := &r.Series[i]
-		c := get(s.Unit)
-		s.Unit = c.sym
-		for _, v := range []*lots.Float{&s.Center, &s.MRBar, &s.Sigma, &s.Lower, &s.Upper, &s.SBar} {
-			f(c, v)
-		}
-		for j := range s.Points {
-			p := &s.Points[j]
-			for _, v := range []*lots.Float{&p.Mean, &p.SD, &p.SLower, &p.SUpper, &p.EWMA, &p.EWMALow, &p.EWMAHigh} {
-				f(c, v)
-			}
-		}
-	}
-	for i := range r.Signals {
-		s := &r.Signals[i]
-		if s.Rule == "shift_welch" {
-			continue // p-value against α
-		}
-		c := get(unitOf[[3]string{s.Group, s.Material, s.Property}])
-		f(c, &s.Value)
-		f(c, &s.Limit)
-	}
 }
 
 func trendTables(r *trend.Result) []*render.Table {

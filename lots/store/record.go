@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"fmt"
+	"lotproof/spec"
 	"math"
 	"strconv"
 	"strings"
@@ -101,6 +102,19 @@ func (e *ConflictError) add(c Conflict) {
 	} else {
 		e.More++
 	}
+}
+
+// LimitsOf lists the limits of the specifications in the store's form
+// (internal units).
+func LimitsOf(specs []*spec.Spec) []SpecLimit {
+	var out []SpecLimit
+	for _, s := range specs {
+		for _, l := range s.Limits {
+			out = append(out, SpecLimit{Spec: s.Label(), Material: s.Material, Property: l.Property,
+				Minimum: l.Min, Maximum: l.Max, Unit: StoredUnit(l.Unit)})
+		}
+	}
+	return out
 }
 
 // batchRows is the number of rows per multi-row INSERT (at most 6 values
