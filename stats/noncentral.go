@@ -329,12 +329,15 @@ func (p *ntProblem) runCut(lo, hi float64) (c, d float64) {
 	pw := (b - a) / float64(ntPanels)
 	for i := range ntPanels {
 		pa := a + float64(i)*pw
+		if p.rough { // 16-point rule only
+			ci, di := p.fixed(pa, pa+pw, ntGLax, ntGLaw)
+			c += ci
+			d += di
+			continue
+		}
 		ci, di := p.fixed(pa, pa+pw, ntGLbx, ntGLbw)
 		c += ci
 		d += di
-		if p.rough {
-			continue
-		}
 		ci, di = p.fixed(pa, pa+pw, ntGLax, ntGLaw)
 		cChk += ci
 		dChk += di
@@ -497,6 +500,7 @@ func NoncentralTQuantile(p, df, delta float64) (float64, error) {
 	// the step is below 1e-7 relative. The precise phase below then starts
 	// from this point with a fresh bracket, so rough errors cannot persist.
 	x := t0
+	dRough := math.NaN()
 	if df >= 30 {
 		for range 30 {
 			lower, upper, d := ntCDFPDFMode(x, df, delta, true, true)
@@ -515,8 +519,23 @@ func NoncentralTQuantile(p, df, delta float64) (float64, error) {
 			}
 			x -= step
 			if math.Abs(step) <= 1e-7*math.Abs(x) {
+				dRough = d
 				break
 			}
+		}
+	}
+	// Shortcut after a converged rough phase: one precise CDF evaluation
+	// (no density needed) and a Newton step with the rough density, which
+	// is accurate to far better than the 1e-3 that a step below 1e-10
+	// relative requires.
+	if dRough > 0 {
+		lower, upper, _ := ntCDFPDF(x, df, delta, false)
+		fx := lower - p
+		if p > 0.5 {
+			fx = (1 - p) - upper
+		}
+		if step := fx / dRough; math.Abs(step) <= 1e-10*math.Abs(x) {
+			return x - step, nil
 		}
 	}
 	// F(t) - p using the smaller tail for accuracy.
