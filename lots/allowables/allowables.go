@@ -207,7 +207,7 @@ type Settings struct {
 
 // Cautions accompany every set of design values.
 var Cautions = []string{
-	"Statistically based design values support, and never replace, the governing specification, regulations, local codes and licensed engineering judgement.",
+	lots.Caution,
 	"A- and B-basis values describe the population the tested lots represent; they do not cover processing, environments or lots outside it.",
 }
 

@@ -13,7 +13,7 @@ import (
 )
 
 // Caution is shown at the top of every report built by Build.
-const Caution = "Statistical values support, and never replace, the governing specification, regulations, local codes and licensed engineering judgement."
+const Caution = lots.Caution
 
 // Inputs are what Build puts in a report; a nil or empty part is left out.
 type Inputs struct {
