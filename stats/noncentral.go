@@ -81,24 +81,31 @@ func ntWindow(f, L float64) (lo, hi float64) {
 	// Solve (2w - expm1(2w))/2 = -L/f on each side by Newton; the function
 	// is concave with maximum 0 at w = 0.
 	target := -L / f
-	g := func(w float64) float64 { return 0.5*(2*w-math.Expm1(2*w)) - target }
-	dg := func(w float64) float64 { return 1 - math.Exp(2*w) }
+	g := func(w float64) float64 { return 0.5*ntTwoWMinusExpm1(2*w, math.Expm1(2*w)) - target }
+	dg := func(w float64) float64 { return -math.Expm1(2 * w) }
 	// Right side: start where the exponential dominates.
 	// Either bound is right of the root: w^2 <= (expm1(2w) - 2w)/2 gives
 	// sqrt(L/f); exp(2w) = 1 + 2w + 2L/f gives the logarithmic one.
-	hi = math.Min(math.Sqrt(2*L/f), 0.5*math.Log(4*L/f+4)+1) + 0.1
-	for range 60 {
+	// Newton from the outside converges monotonically (g is concave).
+	hi = math.Min(math.Sqrt(2*L/f), 0.5*math.Log(4*L/f+4)+1)
+	for range 100 {
 		d := g(hi) / dg(hi)
 		hi -= d
-		if math.Abs(d) < 1e-12 {
+		if math.Abs(d) <= 1e-12*math.Abs(hi) {
 			break
 		}
 	}
-	lo = target - 0.6 // left of the root, since (expm1(2w) - 2w)/2 >= -w - 1/2
-	for range 60 {
+	// Left start: (expm1(2w) - 2w)/2 >= -w - 1/2 always, and
+	// >= w^2 (1 + 2w/3) for w < 0 (Taylor with a non-negative remainder), so
+	// both starts below are left of the root.
+	lo = target - 0.6
+	if r := 2 * math.Sqrt(L/f); r <= 0.3 {
+		lo = -r
+	}
+	for range 100 {
 		d := g(lo) / dg(lo)
 		lo -= d
-		if math.Abs(d) < 1e-12 {
+		if math.Abs(d) <= 1e-12*math.Abs(lo) {
 			break
 		}
 	}

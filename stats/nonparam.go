@@ -50,19 +50,17 @@ func OrderStatisticRank(n int, p, gamma float64) (r int, achieved float64, err e
 		return 0, 0, fmt.Errorf("order statistic bound at content %g, confidence %g needs n >= %d, have %d: %w",
 			p, gamma, OrderStatisticMinN(p, gamma), n, ErrTooFew)
 	}
-	// The tail decreases in r: step up from r = 1 (r never exceeds about
-	// n(1-p) + a few standard deviations, so this is short).
-	r = 1
-	achieved = BinomialUpperTail(n, 1, q)
-	for r < n {
-		next := BinomialUpperTail(n, r+1, q)
-		if next < gamma {
-			break
+	// The tail decreases in r: bisect for the largest r with tail >= gamma.
+	lo, hi := 1, n // tail(lo) >= gamma; tail(hi+1) < gamma (tail(n+1) = 0)
+	for lo < hi {
+		mid := lo + (hi-lo+1)/2
+		if BinomialUpperTail(n, mid, q) >= gamma {
+			lo = mid
+		} else {
+			hi = mid - 1
 		}
-		r++
-		achieved = next
 	}
-	return r, achieved, nil
+	return lo, BinomialUpperTail(n, lo, q), nil
 }
 
 // OrderStatisticMinN returns the smallest n for which the smallest
@@ -106,7 +104,24 @@ func hkMiss(n, r int, q, u float64) float64 {
 		}
 		return math.Exp(lc + float64(r-1)*(lv+math.Log(w)) + float64(n-r)*math.Log1p(-v))
 	}
-	return adaptiveGK15(f, q, 1, 1e-15, 0)
+	// The Beta(r, n-r+1) factor is concentrated near its mean with standard
+	// deviation about sqrt(r (n-r+1))/n^1.5; break the range there so that
+	// the adaptive rule cannot step over the peak when n is large.
+	fn := float64(n)
+	mean := float64(r) / (fn + 1)
+	sd := math.Sqrt(float64(r)*float64(n-r+1)/((fn+1)*(fn+1)*(fn+2))) + 1e-300
+	pts := []float64{q}
+	for j := -12; j <= 12; j++ {
+		if v := mean + float64(j)*sd; v > pts[len(pts)-1] && v < 1 {
+			pts = append(pts, v)
+		}
+	}
+	pts = append(pts, 1)
+	var sum float64
+	for i := 1; i < len(pts); i++ {
+		sum += adaptiveGK15(f, pts[i-1], pts[i], 1e-16, 0)
+	}
+	return sum
 }
 
 // HansonKoopmansK returns the factor k of the Hanson-Koopmans (1964) lower
