@@ -101,3 +101,20 @@ func TestNoncentralTErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestNoncentralTExtremeDF: as df grows T tends to N(delta, 1), so
+// P(T <= 1; df = 1e300, delta = 5) = Phi(-4) = 3.16712418331e-5
+// (Abramowitz & Stegun Table 26.1); and a very large n gives k -> z_p
+// (z_0.90 = 1.2815515655, A&S 26.2.23 table value).
+func TestNoncentralTExtremeDF(t *testing.T) {
+	if c := NoncentralTCDF(1, 1e300, 5); math.Abs(c-3.16712418331e-5) > 1e-15 {
+		t.Errorf("CDF(1; 1e300, 5) = %.12g, want Phi(-4) = 3.16712418331e-5", c)
+	}
+	k, err := NormalK(1000000000, 0.90, 0.95)
+	if err != nil || math.Abs(k-1.2815515655) > 1e-4 {
+		t.Errorf("k(1e9, 0.90, 0.95) = %.10g (%v), want about z_0.90 = 1.28155", k, err)
+	}
+	if r, a, err := OrderStatisticRank(1000000000, 0.90, 0.95); err != nil || a < 0.95 || math.Abs(float64(r)-1e8) > 2e4 {
+		t.Errorf("rank for n = 1e9: %d %g %v", r, a, err)
+	}
+}
