@@ -195,7 +195,7 @@ func runDemo(o demoOptions, st streams) error {
 	}
 	res.Trend = tr
 	bar.Add(1)
-	res.Cautions = dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))
+	res.Cautions = append([]string{lots.Caution}, dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))...)
 	bar.Finish()
 	if res.Report != "" {
 		fmt.Fprintf(st.Err, "lotproof: report written to %s\n", res.Report)
@@ -339,12 +339,43 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	}
 	out = append(out, al)
 
-	sig := render.NewTable("", "supplier", "property", "period", "lot", "rule", ">value", ">limit")
+	// One row per supplier and property: where the first signal fired,
+	// and how many followed (the JSON and lotproof trend list them all).
+	type key struct{ group, property string }
+	first := map[key]trend.Signal{}
+	count := map[key]int{}
+	rules := map[key]map[string]bool{}
+	var keys []key
 	for _, s := range res.Trend.Signals {
-		sig.Add(s.Group, s.Property, s.Period, s.Lot, s.Rule, render.Num(float64(s.Value), 4), render.Num(float64(s.Limit), 4))
+		k := key{s.Group, s.Property}
+		if _, ok := first[k]; !ok {
+			keys = append(keys, k)
+			first[k] = s
+			rules[k] = map[string]bool{}
+		} else if s.Period < first[k].Period {
+			first[k] = s
+		}
+		count[k]++
+		rules[k][s.Rule] = true
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		if keys[i].group != keys[j].group {
+			return keys[i].group < keys[j].group
+		}
+		return keys[i].property < keys[j].property
+	})
+	sig := render.NewTable("", "supplier", "property", "first flagged", "lot", "rule", ">signals", "rules fired")
+	for _, k := range keys {
+		f := first[k]
+		var rs []string
+		for r := range rules[k] {
+			rs = append(rs, r)
+		}
+		sort.Strings(rs)
+		sig.Add(k.group, k.property, f.Period, f.Lot, f.Rule, fmt.Sprint(count[k]), strings.Join(rs, " "))
 	}
 	if text {
-		sig.Title = fmt.Sprintf("4. Supplier trend by quarter (control limits from %s): %d signals", res.Trend.Baseline, len(res.Trend.Signals))
+		sig.Title = fmt.Sprintf("4. Supplier trend by quarter (control limits from %s): %d signals; the first per supplier and property (lotproof trend lists them all)", res.Trend.Baseline, len(res.Trend.Signals))
 		if res.Report != "" {
 			sig.Note("\n5. Report: %s", res.Report)
 		}
