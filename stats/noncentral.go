@@ -409,11 +409,14 @@ func ntCDFPDFMode(t, f, delta float64, wantPDF, rough bool) (lower, upper, pdf f
 //	P(T <= t) = integral_0^inf Phi(t s - delta) g_df(s) ds,
 //
 // g_df the density of sqrt(chi2_df/df) (Owen 1968, Technometrics 10:445,
-// eq. 2.4), integrated over ln s by adaptive Gauss-Kronrod quadrature
-// (Piessens et al. 1983, QUADPACK QK15). The smaller tail is integrated
-// directly, so both tails keep relative accuracy of about 1e-13 where they
-// are above 1e-290. Checked against scipy (Boost) and mpmath; see
-// testdata/tolerance/README.md. Returns NaN for NaN input or df <= 0.
+// eq. 2.4), integrated over ln s (Gauss-Legendre pair checked to 1e-13,
+// else adaptive Gauss-Kronrod, Piessens et al. 1983, QUADPACK QK15; see the
+// file comment). The smaller tail is integrated directly, so both tails keep
+// their relative accuracy: within 1e-11 of mpmath (40 digits) at every
+// reference point, tails down to 8e-61 (testdata/tolerance/nct_cdf.json).
+// The adaptive stage is capped at 2,000 panels, so extreme arguments cost at
+// most about 30,000 integrand evaluations. Returns NaN for NaN input, df <= 0
+// or infinite delta.
 func NoncentralTCDF(t, df, delta float64) float64 {
 	if math.IsNaN(t) || math.IsNaN(df) || math.IsNaN(delta) || df <= 0 || math.IsInf(delta, 0) {
 		return math.NaN()
@@ -476,9 +479,14 @@ var ErrDomain = errors.New("stats: argument out of domain")
 // vol. 2, 31.7) supplies a start; a bracket [a, b] with F(a) < p < F(b) is
 // then established and Newton steps on F(t) - p (F' = density, from the same
 // quadrature pass) are taken inside it, falling back to bisection whenever a
-// step leaves the bracket or fails to halve it. Iteration stops when the step
-// is below 4e-15 relative to t (so the result is limited by the CDF
-// accuracy, about 1e-13 relative in the smaller tail).
+// step leaves the bracket. For df >= 30 a first phase iterates on the
+// unchecked 16-point rule until the step is below 1e-7 relative. Iteration
+// stops when the Newton step is below 1e-10 relative (leaving an error of
+// order its square) or the bracket is below 4e-15 relative, so the result
+// is limited by the CDF accuracy. Measured: NormalK within 5e-13 of mpmath
+// and 1e-14 of scipy for n = 2 to 100,000. An error is returned for p
+// outside (0, 1), df <= 0, infinite delta, or no convergence (e.g. p =
+// 1e-300 with df = 5).
 func NoncentralTQuantile(p, df, delta float64) (float64, error) {
 	if math.IsNaN(p) || math.IsNaN(df) || math.IsNaN(delta) {
 		return math.NaN(), fmt.Errorf("%w: NaN argument", ErrDomain)
