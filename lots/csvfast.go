@@ -138,9 +138,15 @@ func (rr *recordReader) quoted(chunk []byte, lineNo int) ([]string, error) {
 }
 
 // at locates field i of the current record as file:line:column.
-func (rr *recordReader) at(i int) string {
+func (rr *recordReader) at(i int) string { return rr.place(rr.pos(i)) }
+
+func (rr *recordReader) pos(i int) (int, int) {
 	if i >= len(rr.cols) {
-		return fmt.Sprintf("%s:%d:1", rr.name, rr.line)
+		return rr.line, 1
 	}
-	return fmt.Sprintf("%s:%d:%d", rr.name, rr.lines[i], rr.cols[i])
+	return rr.lines[i], rr.cols[i]
+}
+
+func (rr *recordReader) place(line, col int) string {
+	return fmt.Sprintf("%s:%d:%d", rr.name, line, col)
 }

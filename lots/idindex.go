@@ -1,49 +1,229 @@
 package lots
 
-// idIndex remembers the specimen ids seen so far as 64-bit hashes with the
-// line each was first seen on: an open-addressing table with linear
-// probing (Knuth, TAOCP vol. 3, 6.4, algorithm L), 12 bytes a slot, kept at
-// most three-quarters full, so about 16 bytes per specimen. Two different
-// ids share a hash with probability about n^2/2^65 (below 1e-5 for 20
-// million specimens); the message then names both lines, so the user can
-// see it.
+import (
+	"bufio"
+	"cmp"
+	"container/heap"
+	"encoding/binary"
+	"errors"
+	"io"
+	"os"
+	"slices"
+)
+
+// idIndex finds duplicate specimen ids in a stream with bounded memory.
+//
+// Up to memCap ids are held in memory, as 64-bit hashes with their places
+// in an open-addressing table with linear probing (Knuth, TAOCP vol. 3,
+// 6.4, algorithm L); a repeat among them is found at once. When memCap is reached the entries are written to a temporary
+// file sorted by hash (a run) and memory starts afresh; at the end the runs
+// are merged (external sort-merge, Knuth, TAOCP vol. 3, 5.4.1) and a hash
+// met in two runs is a duplicate found late (its message cannot quote the
+// id, which is not kept, but names both places). Memory therefore stays
+// below about 64 MB whatever the size of the input; disk takes 16 bytes per
+// specimen, only for inputs of more than memCap specimens.
+//
+// Two different ids share a 64-bit hash with probability about n^2/2^65
+// (below 1e-5 for 20 million specimens); the message names both places, so
+// the user can see it.
 type idIndex struct {
-	keys  []uint64 // 0 marks an empty slot
-	lines []uint32
-	n     int
+	hashes []uint64 // open-addressing table; 0 marks an empty slot
+	lines  []uint32 // per slot: where the id was seen
+	cols   []uint32
+	n      int
+	memCap int
+	runs   []*os.File
+	err    error
 }
 
-// seen returns the line on which hash h was first seen, or records line
-// for it and returns 0.
-func (x *idIndex) seen(h uint64, line int) int {
+// idMemCap is how many ids are kept in memory before they are spilled:
+// 2^21 ids take a table of 2^22 slots of 16 bytes, 64 MB. Tests lower it.
+var idMemCap = 1 << 21
+
+// seen records an id's hash at a place and returns the line on which the
+// same id was seen before, or 0 (repeats across spilled runs are found by
+// finish).
+func (x *idIndex) seen(h uint64, line, col int) int {
 	h |= 1 // 0 marks an empty slot
-	if 4*(x.n+1) > 3*len(x.keys) {
+	if x.hashes == nil {
+		if x.memCap == 0 {
+			x.memCap = idMemCap
+		}
 		x.grow()
 	}
-	mask := uint64(len(x.keys) - 1)
+	i, ok := x.find(h)
+	if ok {
+		return int(x.lines[i])
+	}
+	if x.n >= x.memCap {
+		if x.err == nil {
+			x.err = x.spill()
+		}
+		clear(x.hashes)
+		x.n = 0
+		i, _ = x.find(h)
+	} else if 4*(x.n+1) > 3*len(x.hashes) {
+		x.grow()
+		i, _ = x.find(h)
+	}
+	x.hashes[i], x.lines[i], x.cols[i] = h, uint32(line), uint32(col)
+	x.n++
+	return 0
+}
+
+// find returns the slot holding h, or the empty slot where it goes.
+func (x *idIndex) find(h uint64) (int, bool) {
+	mask := uint64(len(x.hashes) - 1)
 	for i := h & mask; ; i = (i + 1) & mask {
-		switch x.keys[i] {
+		switch x.hashes[i] {
 		case 0:
-			x.keys[i] = h
-			x.lines[i] = uint32(line)
-			x.n++
-			return 0
+			return int(i), false
 		case h:
-			return int(x.lines[i])
+			return int(i), true
 		}
 	}
 }
 
 func (x *idIndex) grow() {
-	size := 2 * len(x.keys)
+	size := 2 * len(x.hashes)
 	if size == 0 {
 		size = 1024
 	}
-	old, oldLines := x.keys, x.lines
-	x.keys, x.lines, x.n = make([]uint64, size), make([]uint32, size), 0
-	for i, k := range old {
-		if k != 0 {
-			x.seen(k, int(oldLines[i]))
+	oh, ol, oc := x.hashes, x.lines, x.cols
+	x.hashes, x.lines, x.cols = make([]uint64, size), make([]uint32, size), make([]uint32, size)
+	for j, h := range oh {
+		if h != 0 {
+			i, _ := x.find(h)
+			x.hashes[i], x.lines[i], x.cols[i] = h, ol[j], oc[j]
 		}
 	}
+}
+
+// spill writes the in-memory entries to a temporary run sorted by hash,
+// 16 bytes each: hash, line, column (little-endian).
+func (x *idIndex) spill() error {
+	f, err := os.CreateTemp("", "lotproof-ids-*")
+	if err != nil {
+		return err
+	}
+	os.Remove(f.Name()) // unlinked: the space is freed when the file is closed
+	x.runs = append(x.runs, f)
+	type rec struct {
+		h         uint64
+		line, col uint32
+	}
+	used := make([]rec, 0, x.n)
+	for i, h := range x.hashes {
+		if h != 0 {
+			used = append(used, rec{h, x.lines[i], x.cols[i]})
+		}
+	}
+	slices.SortFunc(used, func(a, b rec) int { return cmp.Compare(a.h, b.h) })
+	w := bufio.NewWriterSize(f, 1<<16)
+	var b [16]byte
+	for _, r := range used {
+		binary.LittleEndian.PutUint64(b[0:], r.h)
+		binary.LittleEndian.PutUint32(b[8:], r.line)
+		binary.LittleEndian.PutUint32(b[12:], r.col)
+		w.Write(b[:])
+	}
+	if err := w.Flush(); err != nil {
+		return err
+	}
+	_, err = f.Seek(0, io.SeekStart)
+	return err
+}
+
+// finish merges the runs (when memory was spilled) and calls dup for every
+// id met in two runs, with the place of the later one and the line of the
+// first. It releases the temporary files.
+func (x *idIndex) finish(dup func(line, col, first int)) error {
+	defer x.close()
+	if x.err != nil {
+		return x.err
+	}
+	if len(x.runs) == 0 {
+		return nil
+	}
+	if err := x.spill(); err != nil {
+		return err
+	}
+	x.hashes, x.lines, x.cols = nil, nil, nil
+	h := &runHeap{}
+	for _, f := range x.runs {
+		r := &runReader{r: bufio.NewReaderSize(f, 1<<16)}
+		if ok, err := r.next(); err != nil {
+			return err
+		} else if ok {
+			heap.Push(h, r)
+		}
+	}
+	var last uint64
+	var first uint32
+	have := false
+	for h.Len() > 0 {
+		r := (*h)[0]
+		if have && r.key == last {
+			// The same hash in a later run: the heap yields the first
+			// line of a hash first, so this one is the repeat.
+			dup(int(r.line), int(r.col), int(first))
+		} else {
+			last, first, have = r.key, r.line, true
+		}
+		ok, err := r.next()
+		if err != nil {
+			return err
+		}
+		if ok {
+			heap.Fix(h, 0)
+		} else {
+			heap.Pop(h)
+		}
+	}
+	return nil
+}
+
+func (x *idIndex) close() {
+	for _, f := range x.runs {
+		f.Close()
+	}
+	x.runs = nil
+}
+
+type runReader struct {
+	r         *bufio.Reader
+	key       uint64
+	line, col uint32
+}
+
+func (r *runReader) next() (bool, error) {
+	var b [16]byte
+	if _, err := io.ReadFull(r.r, b[:]); err != nil {
+		if errors.Is(err, io.EOF) {
+			return false, nil
+		}
+		return false, err
+	}
+	r.key = binary.LittleEndian.Uint64(b[0:])
+	r.line = binary.LittleEndian.Uint32(b[8:])
+	r.col = binary.LittleEndian.Uint32(b[12:])
+	return true, nil
+}
+
+type runHeap []*runReader
+
+func (h runHeap) Len() int { return len(h) }
+func (h runHeap) Less(i, j int) bool {
+	if h[i].key != h[j].key {
+		return h[i].key < h[j].key
+	}
+	return h[i].line < h[j].line
+}
+func (h runHeap) Swap(i, j int) { h[i], h[j] = h[j], h[i] }
+func (h *runHeap) Push(v any)   { *h = append(*h, v.(*runReader)) }
+func (h *runHeap) Pop() any {
+	old := *h
+	v := old[len(old)-1]
+	*h = old[:len(old)-1]
+	return v
 }

@@ -13,6 +13,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -38,7 +39,9 @@ var identityColumns = []string{"specimen", "lot", "heat", "supplier", "material"
 
 // locator names the place of a field in the input, for error messages.
 type locator interface {
-	at(field int) string
+	at(field int) string           // "file:line:column" or "file:sheet!cell"
+	pos(field int) (line, col int) // the numbers behind it
+	place(line, col int) string    // at, from the numbers
 }
 
 // table turns rows of strings into validated specimens. It is shared by the
@@ -183,7 +186,8 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 		t.problems.add(loc.at(h.idCol), "specimen id is empty", "give every specimen a unique id")
 		ok = false
 	} else {
-		if first := t.seen.seen(maphash.String(t.seed, s.ID), line); first > 0 {
+		l, c := loc.pos(h.idCol)
+		if first := t.seen.seen(maphash.String(t.seed, s.ID), l, c); first > 0 {
 			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %q (first on line %d)", s.ID, first),
 				"specimen ids must be unique; rename or remove one of them")
 			ok = false
@@ -227,6 +231,25 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	return ok
 }
 
+// finishIDs completes the duplicate-id check (repeats across spilled runs
+// of a very large input).
+func (t *table) finishIDs(loc locator) {
+	type late struct{ line, col, first int }
+	var found []late
+	err := t.seen.finish(func(line, col, first int) {
+		found = append(found, late{line, col, first})
+	})
+	// The merge meets them in hash order; report them in file order.
+	sort.Slice(found, func(i, j int) bool { return found[i].line < found[j].line })
+	for _, f := range found {
+		t.problems.add(loc.place(f.line, f.col), fmt.Sprintf("duplicate specimen id (the same id as on line %d)", f.first),
+			"specimen ids must be unique; rename or remove one of them")
+	}
+	if err != nil {
+		t.problems.add(t.name, "cannot complete the duplicate-id check: "+err.Error(), "make room in the temporary folder ($TMPDIR) and try again")
+	}
+}
+
 // ScanCSV reads a specimen results CSV from r as a stream, calling fn with
 // every valid specimen in file order; the specimen and its Values are
 // reused after fn returns, so fn copies what it keeps. Memory use does not
@@ -236,6 +259,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 // *InputError: a caller that wrote anything from fn must discard it.
 func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Header, error) {
 	t := newTable(name)
+	defer t.seen.close()
 	rr := newRecordReader(r, name)
 	// A UTF-8 byte order mark is not part of the first heading.
 	if b, err := rr.br.Peek(3); err == nil && bytes.Equal(b, []byte("\xEF\xBB\xBF")) {
@@ -278,6 +302,7 @@ func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Head
 			}
 		}
 	}
+	t.finishIDs(rr)
 	if t.rows == 0 && !t.problems.any() {
 		return nil, Inputf(fmt.Sprintf("%s:%d:1", name, rr.next), "add one row per specimen below the header", "the file has a header but no specimen rows")
 	}

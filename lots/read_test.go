@@ -2,6 +2,7 @@ package lots
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -180,5 +181,28 @@ func TestReadCSVMultilineQuotedField(t *testing.T) {
 	_, err = ReadCSV(strings.NewReader("specimen,lot,tensile [MPa]\nA,\"L1,1000\n"), "u.csv")
 	if err == nil || !strings.HasPrefix(err.Error(), `u.csv:2:`) || !strings.Contains(err.Error(), "extraneous or missing \" in quoted-field") {
 		t.Errorf("unterminated quote: %v", err)
+	}
+}
+
+// With the id index spilled to disk every 4 ids, repeats in different runs
+// are still found, located and reported with the first line.
+func TestDuplicateIDsAcrossSpilledRuns(t *testing.T) {
+	defer func(c int) { idMemCap = c }(idMemCap)
+	idMemCap = 4
+	var b strings.Builder
+	b.WriteString("specimen,lot,tensile [MPa]\n")
+	for i := 0; i < 20; i++ {
+		fmt.Fprintf(&b, "S%d,L1,%d\n", i, 900+i)
+	}
+	b.WriteString("S3,L1,950\nS17,L1,951\nS21,L1,952\n") // lines 22, 23, 24
+	_, err := ReadCSV(strings.NewReader(b.String()), "r.csv")
+	want := "r.csv:22:1: duplicate specimen id (the same id as on line 5); specimen ids must be unique; rename or remove one of them\n" +
+		"r.csv:23:1: duplicate specimen id (the same id as on line 19); specimen ids must be unique; rename or remove one of them"
+	if err == nil || err.Error() != want {
+		t.Fatalf("got\n%v\nwant\n%s", err, want)
+	}
+	d, err := ReadCSV(strings.NewReader(strings.SplitN(b.String(), "S3,L1,950", 2)[0]), "r.csv")
+	if err != nil || len(d.Specimens) != 20 {
+		t.Fatalf("no duplicates: %v", err)
 	}
 }

@@ -52,8 +52,8 @@ func (r *rowsReader) Read(p []byte) (int, error) {
 	return n, nil
 }
 
-// A 1 GB results stream is read without holding it: the heap stays far
-// below the size of the input (it grows only by the duplicate-id index).
+// A 1 GB results stream (12.6 million specimens) is read without holding
+// it: the heap stays below a bound that does not depend on the input size.
 func TestScanCSVStreamsOneGigabyte(t *testing.T) {
 	if testing.Short() {
 		t.Skip("1 GB stream: skipped with -short")
@@ -79,12 +79,12 @@ func TestScanCSVStreamsOneGigabyte(t *testing.T) {
 	if n != src.row {
 		t.Fatalf("read %d specimens, the stream had %d", n, src.row)
 	}
-	perRow := float64(peak) / float64(n)
-	t.Logf("%d specimens from %d bytes; peak heap %.1f MB (%.1f bytes per specimen)", n, src.done, float64(peak)/1e6, perRow)
-	// 16 bytes per specimen for the id index at three-quarters load, doubled
-	// while the table grows, plus fixed buffers.
-	if limit := uint64(n)*48 + 64<<20; peak > limit {
-		t.Errorf("peak heap %d bytes exceeds %d: the reader is holding the input", peak, limit)
+	t.Logf("%d specimens from %d bytes; peak heap %.1f MB", n, src.done, float64(peak)/1e6)
+	// The duplicate-id index holds at most 2^21 ids (64 MB) and spills the
+	// rest to disk; with the garbage collector's headroom (GOGC 100) the
+	// heap stays below 256 MB whatever the size of the input.
+	if peak > 256<<20 {
+		t.Errorf("peak heap %d bytes exceeds 256 MB: memory grows with the input", peak)
 	}
 }
 

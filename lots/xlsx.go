@@ -15,10 +15,14 @@ type xlsxLocator struct {
 	row         int // 1-based
 }
 
-func (l xlsxLocator) at(field int) string {
-	cell, err := excelize.CoordinatesToCellName(field+1, l.row)
+func (l xlsxLocator) at(field int) string { return l.place(l.pos(field)) }
+
+func (l xlsxLocator) pos(field int) (int, int) { return l.row, field + 1 }
+
+func (l xlsxLocator) place(row, col int) string {
+	cell, err := excelize.CoordinatesToCellName(col, row)
 	if err != nil {
-		cell = fmt.Sprintf("R%dC%d", l.row, field+1)
+		cell = fmt.Sprintf("R%dC%d", row, col)
 	}
 	return fmt.Sprintf("%s:%s!%s", l.name, l.sheet, cell)
 }
@@ -99,6 +103,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 	if h == nil {
 		return nil, Inputf(fmt.Sprintf("%s:%s!A1", name, sheet), "write a header row such as specimen, lot, tensile [MPa] and one row per specimen", "the sheet is empty")
 	}
+	t.finishIDs(xlsxLocator{name: name, sheet: sheet})
 	if err := t.problems.err(); err != nil {
 		return nil, err
 	}
