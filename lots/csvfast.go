@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"unsafe"
 )
 
 // recordReader reads CSV records (RFC 4180, as encoding/csv reads them)
@@ -59,8 +60,8 @@ func trimEOL(b []byte) []byte {
 	return bytes.TrimSuffix(b, []byte("\r"))
 }
 
-// Read returns the next record. Errors are *csv.ParseError with absolute
-// line numbers.
+// Read returns the next record, valid until the next call (see split).
+// Errors are *csv.ParseError with absolute line numbers.
 func (rr *recordReader) Read() ([]string, error) {
 	for {
 		start := rr.next
@@ -96,9 +97,11 @@ func (rr *recordReader) Read() ([]string, error) {
 	}
 }
 
-// split splits an unquoted line on commas.
+// split splits an unquoted line on commas. The fields share the reader's
+// buffer (no copy): they are valid until the next Read, and a caller that
+// keeps one copies it (strings.Clone).
 func (rr *recordReader) split(line []byte, lineNo int) {
-	s := string(line)
+	s := unsafe.String(unsafe.SliceData(line), len(line))
 	rr.line = lineNo
 	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
 	from := 0

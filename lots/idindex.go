@@ -27,13 +27,18 @@ import (
 // (below 1e-5 for 20 million specimens); the message names both places, so
 // the user can see it.
 type idIndex struct {
-	hashes []uint64 // open-addressing table; 0 marks an empty slot
-	lines  []uint32 // per slot: where the id was seen
-	cols   []uint32
+	slots  []idSlot // open-addressing table
 	n      int
 	memCap int
 	runs   []*os.File
 	err    error
+}
+
+// idSlot is one slot: the hash (0: empty) and where the id was seen, in
+// one 16-byte cell so that a probe touches one cache line.
+type idSlot struct {
+	hash      uint64
+	line, col uint32
 }
 
 // idMemCap is how many ids are kept in memory before they are spilled:
@@ -45,7 +50,7 @@ var idMemCap = 1 << 21
 // finish).
 func (x *idIndex) seen(h uint64, line, col int) int {
 	h |= 1 // 0 marks an empty slot
-	if x.hashes == nil {
+	if x.slots == nil {
 		if x.memCap == 0 {
 			x.memCap = idMemCap
 		}
@@ -53,29 +58,29 @@ func (x *idIndex) seen(h uint64, line, col int) int {
 	}
 	i, ok := x.find(h)
 	if ok {
-		return int(x.lines[i])
+		return int(x.slots[i].line)
 	}
 	if x.n >= x.memCap {
 		if x.err == nil {
 			x.err = x.spill()
 		}
-		clear(x.hashes)
+		clear(x.slots)
 		x.n = 0
 		i, _ = x.find(h)
-	} else if 4*(x.n+1) > 3*len(x.hashes) {
+	} else if 4*(x.n+1) > 3*len(x.slots) {
 		x.grow()
 		i, _ = x.find(h)
 	}
-	x.hashes[i], x.lines[i], x.cols[i] = h, uint32(line), uint32(col)
+	x.slots[i] = idSlot{h, uint32(line), uint32(col)}
 	x.n++
 	return 0
 }
 
 // find returns the slot holding h, or the empty slot where it goes.
 func (x *idIndex) find(h uint64) (int, bool) {
-	mask := uint64(len(x.hashes) - 1)
+	mask := uint64(len(x.slots) - 1)
 	for i := h & mask; ; i = (i + 1) & mask {
-		switch x.hashes[i] {
+		switch x.slots[i].hash {
 		case 0:
 			return int(i), false
 		case h:
@@ -85,16 +90,16 @@ func (x *idIndex) find(h uint64) (int, bool) {
 }
 
 func (x *idIndex) grow() {
-	size := 2 * len(x.hashes)
+	size := 2 * len(x.slots)
 	if size == 0 {
 		size = 1024
 	}
-	oh, ol, oc := x.hashes, x.lines, x.cols
-	x.hashes, x.lines, x.cols = make([]uint64, size), make([]uint32, size), make([]uint32, size)
-	for j, h := range oh {
-		if h != 0 {
-			i, _ := x.find(h)
-			x.hashes[i], x.lines[i], x.cols[i] = h, ol[j], oc[j]
+	old := x.slots
+	x.slots = make([]idSlot, size)
+	for _, e := range old {
+		if e.hash != 0 {
+			i, _ := x.find(e.hash)
+			x.slots[i] = e
 		}
 	}
 }
@@ -108,21 +113,17 @@ func (x *idIndex) spill() error {
 	}
 	os.Remove(f.Name()) // unlinked: the space is freed when the file is closed
 	x.runs = append(x.runs, f)
-	type rec struct {
-		h         uint64
-		line, col uint32
-	}
-	used := make([]rec, 0, x.n)
-	for i, h := range x.hashes {
-		if h != 0 {
-			used = append(used, rec{h, x.lines[i], x.cols[i]})
+	used := make([]idSlot, 0, x.n)
+	for _, e := range x.slots {
+		if e.hash != 0 {
+			used = append(used, e)
 		}
 	}
-	slices.SortFunc(used, func(a, b rec) int { return cmp.Compare(a.h, b.h) })
+	slices.SortFunc(used, func(a, b idSlot) int { return cmp.Compare(a.hash, b.hash) })
 	w := bufio.NewWriterSize(f, 1<<16)
 	var b [16]byte
 	for _, r := range used {
-		binary.LittleEndian.PutUint64(b[0:], r.h)
+		binary.LittleEndian.PutUint64(b[0:], r.hash)
 		binary.LittleEndian.PutUint32(b[8:], r.line)
 		binary.LittleEndian.PutUint32(b[12:], r.col)
 		w.Write(b[:])
@@ -148,7 +149,7 @@ func (x *idIndex) finish(dup func(line, col, first int)) error {
 	if err := x.spill(); err != nil {
 		return err
 	}
-	x.hashes, x.lines, x.cols = nil, nil, nil
+	x.slots = nil
 	h := &runHeap{}
 	for _, f := range x.runs {
 		r := &runReader{r: bufio.NewReaderSize(f, 1<<16)}

@@ -115,7 +115,7 @@ func (t *table) parseHeader(fields []string, loc locator) bool {
 			ok = false
 			continue
 		}
-		h.Properties = append(h.Properties, Property{Name: name, Unit: u})
+		h.Properties = append(h.Properties, Property{Name: strings.Clone(name), Unit: u})
 		h.propCols = append(h.propCols, i)
 	}
 	if h.idCol < 0 {
@@ -251,8 +251,9 @@ func (t *table) finishIDs(loc locator) {
 }
 
 // ScanCSV reads a specimen results CSV from r as a stream, calling fn with
-// every valid specimen in file order; the specimen and its Values are
-// reused after fn returns, so fn copies what it keeps. Memory use does not
+// every valid specimen in file order; the specimen, its strings and its
+// Values are reused after fn returns, so fn copies what it keeps
+// (strings.Clone for the strings). Memory use does not
 // grow with the file except for the duplicate-id index (about 16 bytes per
 // specimen, see idIndex). When any row is bad, ScanCSV still reads to
 // the end to report every problem (up to MaxProblems) and returns an
@@ -340,12 +341,26 @@ func ReadCSV(r io.Reader, name string) (*Dataset, error) {
 	cnt := &countingReader{r: io.TeeReader(r, sum)}
 	d := &Dataset{Source: name}
 	var backing []float64
+	// Identity strings other than the id repeat from row to row: one copy
+	// of each is kept.
+	names := map[string]string{}
+	keep := func(v string) string {
+		if k, ok := names[v]; ok {
+			return k
+		}
+		k := strings.Clone(v)
+		names[k] = k
+		return k
+	}
 	h, err := ScanCSV(cnt, name, func(h *Header, s *Specimen) error {
 		np := len(h.Properties)
 		if len(backing) < np {
 			backing = make([]float64, np*1024)
 		}
 		c := *s
+		c.ID = strings.Clone(s.ID)
+		c.Lot, c.Heat, c.Supplier, c.Material = keep(s.Lot), keep(s.Heat), keep(s.Supplier), keep(s.Material)
+		c.Tested, c.Condition = keep(s.Tested), keep(s.Condition)
 		c.Values, backing = backing[:np:np], backing[np:]
 		copy(c.Values, s.Values)
 		d.Specimens = append(d.Specimens, c)
