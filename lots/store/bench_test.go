@@ -2,29 +2,11 @@ package store
 
 import (
 	"context"
-	"os"
+	"lotproof/lots/internal/rss"
 	"path/filepath"
 	"runtime"
-	"strconv"
-	"strings"
 	"testing"
 )
-
-// peakRSSMB reads the process's peak resident set size (VmHWM, Linux).
-func peakRSSMB() float64 {
-	b, err := os.ReadFile("/proc/self/status")
-	if err != nil {
-		return -1
-	}
-	for _, line := range strings.Split(string(b), "\n") {
-		if strings.HasPrefix(line, "VmHWM:") {
-			f := strings.Fields(line)
-			kb, _ := strconv.ParseFloat(f[1], 64)
-			return kb / 1024
-		}
-	}
-	return -1
-}
 
 // BenchmarkRecordMillion records 1,000,000 specimens (200,000 lots of 5,
 // two properties each) into a fresh SQLite database in one import. It
@@ -37,7 +19,7 @@ func BenchmarkRecordMillion(b *testing.B) {
 	runtime.GC()
 	var ms runtime.MemStats
 	runtime.ReadMemStats(&ms)
-	heap, before := float64(ms.HeapInuse)/(1<<20), peakRSSMB()
+	heap, before := float64(ms.HeapInuse)/(1<<20), rss.PeakMB()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		b.StopTimer()
@@ -58,5 +40,5 @@ func BenchmarkRecordMillion(b *testing.B) {
 	}
 	b.ReportMetric(heap, "dataset-heap-MB")
 	b.ReportMetric(before, "RSS-before-MB")
-	b.ReportMetric(peakRSSMB(), "peak-RSS-MB")
+	b.ReportMetric(rss.PeakMB(), "peak-RSS-MB")
 }

@@ -5,11 +5,9 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
+	"lotproof/lots/internal/rss"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
-	"strconv"
-	"strings"
 	"testing"
 	"time"
 
@@ -17,21 +15,6 @@ import (
 	"lotproof/lots/store"
 	"lotproof/lots/units"
 )
-
-func peakRSSMB() float64 {
-	b, err := os.ReadFile("/proc/self/status")
-	if err != nil {
-		return -1
-	}
-	for _, line := range strings.Split(string(b), "\n") {
-		if strings.HasPrefix(line, "VmHWM:") {
-			f := strings.Fields(line)
-			kb, _ := strconv.ParseFloat(f[1], 64)
-			return kb / 1024
-		}
-	}
-	return -1
-}
 
 // BenchmarkTrend20000Lots computes the quarterly trend of 20,000 lots (10
 // suppliers, 5 specimens per lot, tensile and proof, 40 quarters) read
@@ -74,5 +57,5 @@ func BenchmarkTrend20000Lots(b *testing.B) {
 			b.Fatalf("%d periods", len(r.Periods))
 		}
 	}
-	b.ReportMetric(peakRSSMB(), "peak-RSS-MB")
+	b.ReportMetric(rss.PeakMB(), "peak-RSS-MB")
 }
