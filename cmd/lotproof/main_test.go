@@ -160,6 +160,9 @@ func TestDemo(t *testing.T) {
 	// S chart, a test of spread, is left out of this check).
 	first := map[string]string{}
 	for _, s := range res.Trend.Signals {
+		if s.Group == "Coldmere Forge" && s.Period < "2026-Q2" {
+			t.Errorf("Coldmere Forge flagged before its drift: %s %s %s lot %q", s.Rule, s.Property, s.Period, s.Lot)
+		}
 		if s.Property != "tensile" && s.Property != "proof" {
 			continue
 		}
