@@ -124,6 +124,26 @@ func hkMiss(n, r int, q, u float64) float64 {
 	return sum
 }
 
+// hkRankB is the order statistic r of the B-basis Hanson-Koopmans bound
+// (p = 0.90, gamma = 0.95) for n = 2..28, as tabulated with its factors in
+// CMH-17-1G Vol. 1 Table 8.5.14 (from memory; the factors HansonKoopmansK
+// gives for these (n, r) reproduce the table's k column to its three
+// decimals, see nonparam_test.go).
+var hkRankB = [...]int{2: 2, 3: 3, 4: 4, 5: 4, 6: 5, 7: 5, 8: 6, 9: 6, 10: 6, 11: 7, 12: 7, 13: 7, 14: 8, 15: 8,
+	16: 8, 17: 8, 18: 9, 19: 9, 20: 10, 21: 10, 22: 10, 23: 11, 24: 11, 25: 11, 26: 11, 27: 11, 28: 12}
+
+// HansonKoopmansRank is the order statistic r the Hanson-Koopmans bound
+// uses: the handbook's tabulated r for the B-basis level (p = 0.90,
+// gamma = 0.95) and n <= 28 (hkRankB), and the largest value, r = n,
+// otherwise (the A-basis table of CMH-17-1G Table 8.5.15 uses r = n for
+// the n remembered here).
+func HansonKoopmansRank(n int, p, gamma float64) int {
+	if p == 0.90 && gamma == 0.95 && n >= 2 && n < len(hkRankB) {
+		return hkRankB[n]
+	}
+	return n
+}
+
 // HansonKoopmansK returns the factor k of the Hanson-Koopmans (1964) lower
 // tolerance bound
 //
@@ -208,8 +228,8 @@ func adaptiveGK15(f func(float64) float64, a, b, tol float64, depth int) float64
 
 // NonparametricOptions selects the Hanson-Koopmans rank for small samples.
 type NonparametricOptions struct {
-	// HKRank is r for the Hanson-Koopmans bound (2 <= r <= n); 0 means the
-	// largest observation, r = n, the CMH-17-1G choice for B-basis.
+	// HKRank is r for the Hanson-Koopmans bound (2 <= r <= n); 0 means
+	// the handbook's choice: HansonKoopmansRank.
 	HKRank int
 }
 
@@ -252,7 +272,7 @@ func NonparametricLowerBound(x []float64, p, gamma float64, opt NonparametricOpt
 	}
 	r := opt.HKRank
 	if r == 0 {
-		r = n
+		r = HansonKoopmansRank(n, p, gamma)
 	}
 	k, err := HansonKoopmansK(n, r, p, gamma)
 	if err != nil {

@@ -146,14 +146,15 @@ func TestNonparametricLowerBound(t *testing.T) {
 	if err != nil || b.Method != "order-statistic" || b.Value != 100 {
 		t.Errorf("n=29 B-basis: %+v %v", b, err)
 	}
-	// 10 values: Hanson-Koopmans with r = n, B = x_(10) (x_(1)/x_(10))^k.
+	// 10 values: Hanson-Koopmans with the handbook's r = 6 (Table 8.5.14),
+	// B = x_(6) (x_(1)/x_(6))^k; sorted, x_(1) = 50 and x_(6) = 55.
 	y := []float64{52, 50, 55, 51, 58, 54, 53, 57, 56, 59}
 	b, err = NonparametricLowerBound(y, 0.90, 0.95, NonparametricOptions{})
 	if err != nil || b.Method != "hanson-koopmans" {
 		t.Fatalf("n=10: %+v %v", b, err)
 	}
-	k, _ := HansonKoopmansK(10, 10, 0.90, 0.95)
-	if want := 59 * math.Pow(50.0/59, k); math.Abs(b.Value-want) > 1e-12*want {
+	k, _ := HansonKoopmansK(10, 6, 0.90, 0.95)
+	if want := 55 * math.Pow(50.0/55, k); math.Abs(b.Value-want) > 1e-12*want {
 		t.Errorf("HK bound %.12g, want %.12g", b.Value, want)
 	}
 	// Errors: too few, non-positive for HK, non-finite, bad rank.
@@ -168,5 +169,28 @@ func TestNonparametricLowerBound(t *testing.T) {
 	}
 	if _, err := NonparametricLowerBound(y, 0.9, 0.95, NonparametricOptions{HKRank: 1}); err == nil {
 		t.Error("rank 1 accepted for Hanson-Koopmans")
+	}
+}
+
+// CMH-17-1G Vol. 1 Table 8.5.14, B-basis Hanson-Koopmans (from memory):
+// for n = 2..28 the order statistic r and the factor k to three decimals.
+// The ranks are those HansonKoopmansRank uses; the factors are computed.
+func TestHansonKoopmansBTable(t *testing.T) {
+	table := [][3]float64{{2, 2, 35.177}, {3, 3, 7.859}, {4, 4, 4.505}, {5, 4, 4.101}, {6, 5, 3.064}, {7, 5, 2.858},
+		{8, 6, 2.382}, {9, 6, 2.253}, {10, 6, 2.137}, {11, 7, 1.897}, {12, 7, 1.814}, {13, 7, 1.738}, {14, 8, 1.599},
+		{15, 8, 1.540}, {16, 8, 1.485}, {17, 8, 1.434}, {18, 9, 1.354}, {19, 9, 1.311}, {20, 10, 1.253}, {21, 10, 1.218},
+		{22, 10, 1.184}, {23, 11, 1.143}, {24, 11, 1.114}, {25, 11, 1.087}, {26, 11, 1.060}, {27, 11, 1.035}, {28, 12, 1.010}}
+	for _, row := range table {
+		n, r := int(row[0]), int(row[1])
+		if got := HansonKoopmansRank(n, 0.90, 0.95); got != r {
+			t.Errorf("n=%d: rank %d, table %d", n, got, r)
+		}
+		k, err := HansonKoopmansK(n, r, 0.90, 0.95)
+		if err != nil || math.Abs(k-row[2]) > 0.0006 {
+			t.Errorf("n=%d r=%d: k %.4f, table %.3f (%v)", n, r, k, row[2], err)
+		}
+	}
+	if HansonKoopmansRank(10, 0.99, 0.95) != 10 || HansonKoopmansRank(40, 0.90, 0.95) != 40 {
+		t.Error("ranks outside the B-basis table must be n")
 	}
 }

@@ -113,9 +113,10 @@ func paramText(p map[string]float64) string {
 	return strings.Join(parts, ", ")
 }
 
-// hansonKoopmans is the Hanson-Koopmans (1964) bound x_(n) (x_(1)/x_(n))^k
+// hansonKoopmans is the Hanson-Koopmans (1964) bound x_(r) (x_(1)/x_(r))^k
 // whatever n (the forced method; the automatic choice uses it only below
-// the order-statistic minimum), k from stats.HansonKoopmansK with r = n.
+// the order-statistic minimum), with the handbook's r
+// (stats.HansonKoopmansRank) and k from stats.HansonKoopmansK.
 func hansonKoopmans(x []float64, l Level) (stats.Bound, error) {
 	n := len(x)
 	if n < 2 {
@@ -126,10 +127,11 @@ func hansonKoopmans(x []float64, l Level) (stats.Bound, error) {
 	if s[0] <= 0 {
 		return stats.Bound{}, fmt.Errorf("the Hanson-Koopmans bound needs positive values (smallest %g)", s[0])
 	}
-	k, err := stats.HansonKoopmansK(n, n, l.Content, l.Confidence)
+	r := stats.HansonKoopmansRank(n, l.Content, l.Confidence)
+	k, err := stats.HansonKoopmansK(n, r, l.Content, l.Confidence)
 	if err != nil {
 		return stats.Bound{}, err
 	}
-	return stats.Bound{Value: s[n-1] * math.Pow(s[0]/s[n-1], k), Factor: k, Method: HansonKoop, N: n,
-		Content: l.Content, Confidence: l.Confidence, Params: map[string]float64{"x1": s[0], "xn": s[n-1]}}, nil
+	return stats.Bound{Value: s[r-1] * math.Pow(s[0]/s[r-1], k), Factor: k, Method: HansonKoop, N: n,
+		Content: l.Content, Confidence: l.Confidence, Params: map[string]float64{"x1": s[0], "xr": s[r-1], "rank": float64(r)}}, nil
 }
