@@ -34,12 +34,25 @@ func newRecordReader(r io.Reader, name string) *recordReader {
 	return &recordReader{br: bufio.NewReaderSize(r, 1<<16), name: name, next: 1}
 }
 
+// maxLine caps a physical line, so that a file without line ends (or with
+// old Mac line ends, a bare carriage return) cannot make the reader hold
+// all of it.
+const maxLine = 1 << 20
+
 // readLine returns the next physical line without its line end, or io.EOF.
 func (rr *recordReader) readLine() ([]byte, error) {
 	line, err := rr.br.ReadSlice('\n')
 	if err == bufio.ErrBufferFull {
 		rr.pending = append(rr.pending[:0], line...)
 		for err == bufio.ErrBufferFull {
+			if len(rr.pending) > maxLine {
+				fix := "each specimen goes on its own line"
+				if bytes.IndexByte(rr.pending, '\r') >= 0 {
+					fix = "the file seems to end its lines with a bare carriage return (old Mac style); save it with LF or CRLF line ends"
+				}
+				return nil, &csv.ParseError{StartLine: rr.next, Line: rr.next, Column: 1,
+					Err: fmt.Errorf("line longer than %d bytes; %s", maxLine, fix)}
+			}
 			line, err = rr.br.ReadSlice('\n')
 			rr.pending = append(rr.pending, line...)
 		}

@@ -20,8 +20,12 @@ import (
 // are merged (external sort-merge, Knuth, TAOCP vol. 3, 5.4.1) and a hash
 // met in two runs is a duplicate found late (its message cannot quote the
 // id, which is not kept, but names both places). Memory therefore stays
-// below about 64 MB whatever the size of the input; disk takes 16 bytes per
-// specimen, only for inputs of more than memCap specimens.
+// below about 100 MB whatever the size of the input (the 64 MB table, and
+// while it grows or spills a second table or sorted copy); disk takes 16
+// bytes per specimen, only for inputs of more than memCap specimens. When
+// the first occurrence of an id was already spilled, a repeat met again in
+// memory names the earlier in-memory occurrence as "first"; the merge still
+// reports it against the spilled one.
 //
 // Two different ids share a 64-bit hash with probability about n^2/2^65
 // (below 1e-5 for 20 million specimens); the message names both places, so
@@ -49,7 +53,9 @@ var idMemCap = 1 << 21
 // same id was seen before, or 0 (repeats across spilled runs are found by
 // finish).
 func (x *idIndex) seen(h uint64, line, col int) int {
-	h |= 1 // 0 marks an empty slot
+	if h == 0 {
+		h = 1 // 0 marks an empty slot
+	}
 	if x.slots == nil {
 		if x.memCap == 0 {
 			x.memCap = idMemCap

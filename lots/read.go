@@ -8,7 +8,6 @@ import (
 	"errors"
 	"fmt"
 	"hash"
-	"hash/maphash"
 	"io"
 	"math"
 	"os"
@@ -51,12 +50,11 @@ type table struct {
 	header   *Header
 	problems problems
 	seen     idIndex // hashes of the specimen ids seen, with their lines
-	seed     maphash.Seed
 	rows     int
 }
 
 func newTable(name string) *table {
-	return &table{name: name, seed: maphash.MakeSeed()}
+	return &table{name: name}
 }
 
 // parseHeader reads the heading row. It returns false when the header is
@@ -78,7 +76,7 @@ func (t *table) parseHeader(fields []string, loc locator) bool {
 		name, unit, hasUnit := splitHeading(f)
 		key := strings.ToLower(name)
 		if prev, dup := names[key]; dup {
-			t.problems.add(loc.at(i), fmt.Sprintf("column %q appears twice (first as column %d)", name, prev+1), "keep one of the two columns")
+			t.problems.add(loc.at(i), fmt.Sprintf("column %s appears twice (first as column %d)", short(name), prev+1), "keep one of the two columns")
 			ok = false
 			continue
 		}
@@ -102,15 +100,15 @@ func (t *table) parseHeader(fields []string, loc locator) bool {
 			}
 			continue
 		}
-		if !hasUnit {
-			t.problems.add(loc.at(i), fmt.Sprintf("property column %q has no unit", name),
-				fmt.Sprintf("write the unit in square brackets, e.g. %q, or %q for a plain number", name+" [MPa]", name+" [1]"))
+		if !hasUnit || unit == "" {
+			t.problems.add(loc.at(i), fmt.Sprintf("property column %s has no unit", short(name)),
+				fmt.Sprintf("write the unit in square brackets, e.g. %s, or %s for a plain number", short(name+" [MPa]"), short(name+" [1]")))
 			ok = false
 			continue
 		}
 		u, err := units.Parse(unit)
 		if err != nil {
-			t.problems.add(loc.at(i), fmt.Sprintf("column %q has unknown unit %q", name, unit),
+			t.problems.add(loc.at(i), fmt.Sprintf("column %s has unknown unit %s", short(name), short(unit)),
 				"use one of: "+strings.Join(units.Symbols(), ", "))
 			ok = false
 			continue
@@ -187,8 +185,8 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 		ok = false
 	} else {
 		l, c := loc.pos(h.idCol)
-		if first := t.seen.seen(maphash.String(t.seed, s.ID), l, c); first > 0 {
-			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %q (first on line %d)", s.ID, first),
+		if first := t.seen.seen(fnv64(s.ID), l, c); first > 0 {
+			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %s (first on line %d)", short(s.ID), first),
 				"specimen ids must be unique; rename or remove one of them")
 			ok = false
 		}
@@ -199,7 +197,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	}
 	if s.Tested != "" {
 		if !isDate(s.Tested) {
-			t.problems.add(loc.at(h.testedCol), fmt.Sprintf("tested date %q is not an ISO 8601 date", s.Tested), "write dates as YYYY-MM-DD, e.g. 2026-03-31")
+			t.problems.add(loc.at(h.testedCol), fmt.Sprintf("tested date %s is not an ISO 8601 date", short(s.Tested)), "write dates as YYYY-MM-DD, e.g. 2026-03-31")
 			ok = false
 		}
 	}
@@ -211,10 +209,15 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			continue
 		}
 		v, err := strconv.ParseFloat(raw, 64)
+		if err == nil && strings.ContainsAny(raw, "xX_") {
+			// Go also reads hexadecimal floats and digit separators; a
+			// results file holds plain decimal numbers.
+			err = strconv.ErrSyntax
+		}
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			what := fmt.Sprintf("%s: %q is not a number", p.Name, raw)
+			what := fmt.Sprintf("%s: %s is not a number", p.Name, short(raw))
 			if err == nil || errors.Is(err, strconv.ErrRange) {
-				what = fmt.Sprintf("%s: %q is not a finite number", p.Name, raw)
+				what = fmt.Sprintf("%s: %s is not a finite number", p.Name, short(raw))
 			}
 			t.problems.add(loc.at(col), what, "write a decimal number such as 1034.5, or leave the cell empty for a missing value")
 			ok = false
@@ -459,4 +462,24 @@ func isDate(s string) bool {
 		days = 29
 	}
 	return d <= days
+}
+
+// fnv64 is the 64-bit FNV-1a hash of s (Fowler, Noll and Vo; IETF draft
+// "The FNV Non-Cryptographic Hash Algorithm"). A fixed hash keeps the
+// duplicate-id check the same from run to run.
+func fnv64(s string) uint64 {
+	h := uint64(14695981039346656037)
+	for i := 0; i < len(s); i++ {
+		h ^= uint64(s[i])
+		h *= 1099511628211
+	}
+	return h
+}
+
+// short quotes at most 40 characters of a value for a message.
+func short(v string) string {
+	if r := []rune(v); len(r) > 40 {
+		return fmt.Sprintf("%q...", string(r[:40]))
+	}
+	return fmt.Sprintf("%q", v)
 }

@@ -206,3 +206,21 @@ func TestDuplicateIDsAcrossSpilledRuns(t *testing.T) {
 		t.Fatalf("no duplicates: %v", err)
 	}
 }
+
+// Input Go's number parser would take but a results file never holds, and
+// inputs that must not make the reader hold the whole file.
+func TestReadCSVOddInput(t *testing.T) {
+	for _, c := range []struct{ name, in, want string }{
+		{"hex float", "specimen,lot,tensile [MPa]\nS1,L1,0x1p10\n", `r.csv:2:7: tensile: "0x1p10" is not a number`},
+		{"digit separator", "specimen,lot,tensile [MPa]\nS1,L1,1_000\n", `r.csv:2:7: tensile: "1_000" is not a number`},
+		{"empty unit", "specimen,lot,tensile []\nS1,L1,1000\n", `r.csv:1:14: property column "tensile" has no unit`},
+		{"bare carriage returns", "specimen,lot,tensile [MPa]\r" + strings.Repeat("S,L1,1000\r", 120000), `r.csv:1:1: cannot read the CSV: line longer than 1048576 bytes; the file seems to end its lines with a bare carriage return`},
+		{"no line ends", strings.Repeat("a", 3<<20), `r.csv:1:1: cannot read the CSV: line longer than 1048576 bytes; each specimen goes on its own line`},
+		{"long value", "specimen,lot,tensile [MPa]\nS1,L1," + strings.Repeat("9x", 100) + "\n", `r.csv:2:7: tensile: "9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x9x"... is not a number`},
+	} {
+		_, err := ReadCSV(strings.NewReader(c.in), "r.csv")
+		if err == nil || !strings.HasPrefix(err.Error(), c.want) {
+			t.Errorf("%s: got %v\nwant prefix %s", c.name, err, c.want)
+		}
+	}
+}
