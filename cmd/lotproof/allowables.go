@@ -111,6 +111,9 @@ func runAllowables(o allowablesOptions, st streams) error {
 	if len(o.Exclude) > 0 {
 		opt.Exclude = map[string]string{}
 		for i, id := range o.Exclude {
+			if _, dup := opt.Exclude[id]; dup {
+				return usageError{fmt.Errorf("--exclude %s is given twice: give each specimen once, with one --reason", id)}
+			}
 			opt.Exclude[id] = o.Reasons[i]
 		}
 	}

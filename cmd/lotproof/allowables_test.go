@@ -89,3 +89,10 @@ func TestSizeCommand(t *testing.T) {
 		}
 	}
 }
+
+func TestAllowablesExcludeTwice(t *testing.T) {
+	code, out, errs := run(t, "", "allowables", "../../lots/demo/data/campaign.csv", "--exclude", "QB-Q01-RT-1", "--reason", "a", "--exclude", "QB-Q01-RT-1", "--reason", "b")
+	if code != 2 || out != "" || !strings.Contains(errs, "--exclude QB-Q01-RT-1 is given twice") {
+		t.Errorf("exit %d, stderr %q", code, errs)
+	}
+}

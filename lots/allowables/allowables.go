@@ -1,6 +1,7 @@
 package allowables
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -219,6 +220,8 @@ func Analyze(d *lots.Dataset, opt Options, date string) (*Report, error) {
 		Cautions: Cautions,
 	}
 	conds := d.Conditions()
+	analysed := 0
+	var firstErr error
 	for _, p := range props {
 		prop := d.Properties[p]
 		var group []int // indexes into rep.Results of this property
@@ -228,13 +231,23 @@ func Analyze(d *lots.Dataset, opt Options, date string) (*Report, error) {
 				return nil, err
 			}
 			r, err := analyzeOne(d, p, c, groups, opt)
+			var ie *lots.InputError
+			if errors.As(err, &ie) {
+				// This property and condition cannot be analysed: say so
+				// and go on with the others.
+				if firstErr == nil {
+					firstErr = err
+				}
+				rep.Results = append(rep.Results, notAnalysed(prop, c, opt, ie))
+				continue
+			}
 			if err != nil {
 				return nil, err
 			}
 			if r == nil {
 				continue // no values of this property at this condition
 			}
-			_ = prop
+			analysed++
 			group = append(group, len(rep.Results))
 			rep.Results = append(rep.Results, *r)
 		}
@@ -242,10 +255,34 @@ func Analyze(d *lots.Dataset, opt Options, date string) (*Report, error) {
 			poolConditions(rep.Results, group, opt)
 		}
 	}
-	if len(rep.Results) == 0 {
+	if analysed == 0 {
+		if firstErr != nil {
+			return nil, firstErr
+		}
 		return nil, lots.Inputf(d.Source, "check the property columns and the exclusions", "no values to analyse")
 	}
 	return rep, nil
+}
+
+// NotAnalysed is the method of a result that could not be computed.
+const NotAnalysed = "not analysed"
+
+// notAnalysed is the result of a property and condition whose data cannot
+// give a design value, with the reason.
+func notAnalysed(prop lots.Property, cond string, opt Options, ie *lots.InputError) Result {
+	var why []string
+	for _, p := range ie.Problems {
+		why = append(why, p.What+"; "+p.Fix)
+	}
+	reason := strings.Join(why, "; ")
+	return Result{Property: prop.Name, Condition: cond, Unit: prop.Unit.Display(opt.System).Symbol, Method: NotAnalysed,
+		ABasis: lots.NaN, BBasis: lots.NaN,
+		A:          Basis{Value: lots.NaN, Factor: lots.NaN, MCStdErr: lots.NaN, Content: opt.A.Content, Confidence: opt.A.Confidence},
+		B:          Basis{Value: lots.NaN, Factor: lots.NaN, MCStdErr: lots.NaN, Content: opt.B.Content, Confidence: opt.B.Confidence},
+		Parameters: map[string]lots.Float{}, Mean: lots.NaN, SD: lots.NaN, Min: lots.NaN, Max: lots.NaN,
+		LotSizes: map[string]int{}, Outliers: []Outlier{}, Excluded: []Exclusion{},
+		Warnings: []string{"not analysed: " + reason},
+		Steps:    []Step{{Step: "input", Statistic: lots.NaN, Threshold: lots.NaN, Decision: NotAnalysed, Reason: reason}}}
 }
 
 func methodName(m string) string {
@@ -305,8 +342,14 @@ func checkExclusions(d *lots.Dataset, ex map[string]string) error {
 			found[d.Specimens[i].ID] = true
 		}
 	}
+	ids := make([]string, 0, len(ex))
+	for id := range ex {
+		ids = append(ids, id)
+	}
+	sort.Strings(ids) // messages in a fixed order
 	var missing []string
-	for id, reason := range ex {
+	for _, id := range ids {
+		reason := ex[id]
 		if !found[id] {
 			missing = append(missing, id)
 		}

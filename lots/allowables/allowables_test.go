@@ -229,3 +229,23 @@ func TestDeterministic(t *testing.T) {
 		t.Error("two runs with one seed differ")
 	}
 }
+
+// A condition that cannot be analysed is reported as such with its reason,
+// and the others are still analysed; with nothing analysable the first
+// reason is the error.
+func TestNotAnalysedConditionDoesNotStopTheRest(t *testing.T) {
+	csv := campaignCSV(12, 5, 4, 500, 0, 8, "RT") + "H1,L0,HOT,420\n"
+	rep, err := Analyze(read(t, csv), DefaultOptions(), "2026-12-02")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Results) != 2 || rep.Results[0].Method == NotAnalysed || rep.Results[1].Method != NotAnalysed {
+		t.Fatalf("results %+v", rep.Results)
+	}
+	if w := rep.Results[1].Warnings; len(w) != 1 || !strings.Contains(w[0], "a tolerance bound needs at least 2") {
+		t.Errorf("warning %q", w)
+	}
+	if rep.Results[0].Pooled != nil {
+		t.Error("pooled with a condition that was not analysed")
+	}
+}

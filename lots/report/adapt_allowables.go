@@ -114,8 +114,8 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 // condition) with the basis values.
 func basisFigures(d *lots.Dataset, by lots.GroupBy, r allowables.Result) ([]Block, error) {
 	pi := d.Property(r.Property)
-	if pi < 0 {
-		return nil, nil
+	if pi < 0 || r.Method == allowables.NotAnalysed || r.N < 3 {
+		return nil, nil // nothing to draw: the audit trail says why
 	}
 	if by == "" {
 		by = lots.ByLot
