@@ -83,6 +83,9 @@ func TestSizeCommand(t *testing.T) {
 		{"size", "--safety", "2", "--load", "50"},
 		{"size", "--design-value", "165", "--safety", "2", "--load", "50", "--shape", "tube", "--diameter", "5"},
 		{"size", "--design-value", "165", "--safety", "2", "--load", "50", "--load-unit", "tonne"},
+		{"size", "--design-value", "900", "--safety", "1.5", "--load", "10", "--shape", "rectangle", "--width", "Inf"},
+		{"size", "--design-value", "900", "--safety", "1.5", "--shape", "round", "--diameter", "1e200"},
+		{"demo", "--report", "-"},
 	} {
 		if code, out, _ := run(t, "", args...); code != 2 || out != "" {
 			t.Errorf("%v: exit %d", args, code)

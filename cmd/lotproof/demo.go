@@ -62,6 +62,9 @@ Every company, material, specification and number in it is invented.`,
 			if noReport {
 				o.Report = ""
 			}
+			if o.Report == "-" {
+				return usageError{fmt.Errorf("--report - would mix the report with the demo's results on standard output: give a file name, or --no-report")}
+			}
 			return runDemo(o, st)
 		},
 	}

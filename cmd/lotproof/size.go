@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 
@@ -97,6 +98,15 @@ type sizeResult struct {
 var loadToN = map[string]float64{"n": 1, "kn": 1e3, "lbf": 4.4482216152605, "kip": 4448.2216152605}
 
 func runSize(o sizeOptions, st streams) error {
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{{"--design-value", o.DesignValue}, {"--safety", o.Safety}, {"--load", o.Load}, {"--width", o.Width},
+		{"--thickness", o.Thickness}, {"--diameter", o.Outer}, {"--inner", o.Inner}} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.v < 0 || f.v > 1e12 {
+			return usageError{fmt.Errorf("%s %g: give a finite, non-negative number below 1e12", f.name, f.v)}
+		}
+	}
 	value, source, unit, err := sizeDesignValue(o)
 	if err != nil {
 		return err
