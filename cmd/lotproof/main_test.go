@@ -195,3 +195,20 @@ func TestVersion(t *testing.T) {
 		t.Errorf("exit %d, %q", code, out)
 	}
 }
+
+// The run functions work without cobra: options struct in, injected
+// streams out.
+func TestRunFunctionsWithoutCobra(t *testing.T) {
+	var out, errb bytes.Buffer
+	st := streams{In: strings.NewReader("specimen,lot,tensile [MPa]\nA,L1,1000\nB,L1,1010\n"), Out: &out, Err: &errb}
+	err := runSummary(summaryOptions{Data: "-", Input: inputOptions{GroupBy: "lot"}, Out: output{Format: "csv", System: "si"}}, st)
+	if err != nil || out.String() != "lot,supplier,property,unit,n,missing,mean,sd,min,max\nL1,,tensile,MPa,2,0,1005,7.07,1000,1010\n" {
+		t.Errorf("runSummary: %v\n%s", err, out.String())
+	}
+	out.Reset()
+	err = runSize(sizeOptions{DesignValue: 300, StressUnit: "MPa", Safety: 2, Load: 15, LoadUnit: "kN", Shape: "rectangle", Width: 20, Out: output{Format: "json", System: "si"}}, st)
+	// 15 kN at 150 MPa needs 100 mm^2: 5 mm thick at 20 mm wide (closed form).
+	if err != nil || !strings.Contains(out.String(), `"thickness": 5,`) {
+		t.Errorf("runSize: %v\n%s", err, out.String())
+	}
+}
