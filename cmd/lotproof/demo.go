@@ -200,9 +200,6 @@ func runDemo(o demoOptions, st streams) error {
 	bar.Add(1)
 	res.Cautions = append([]string{lots.Caution}, dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))...)
 	bar.Finish()
-	if res.Report != "" {
-		fmt.Fprintf(st.Err, "lotproof: report written to %s\n", res.Report)
-	}
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
@@ -294,17 +291,17 @@ func demoReducedRows(d *lots.Dataset, out output) []demoReduced {
 // that did not conform, the design values and the trend signals.
 func demoTables(res demoResult, text bool) []*render.Table {
 	var out []*render.Table
-	red := render.NewTable("", "specimen", "lot", ">modulus", ">proof", ">tensile", ">elongation")
+	u := []string{"", "", ""}
+	if len(res.Reduced) > 0 && len(res.Reduced[0].Units) == 3 {
+		u = res.Reduced[0].Units
+	}
+	red := render.NewTable("", "specimen", "lot", ">modulus ["+u[0]+"]", ">proof ["+u[1]+"]", ">tensile ["+u[1]+"]", ">elongation ["+u[2]+"]")
 	for _, r := range res.Reduced {
 		red.Add(r.Specimen, r.Lot, render.Num(float64(r.Modulus), 4), render.Num(float64(r.Proof), 4),
 			render.Num(float64(r.Tensile), 4), render.Num(float64(r.Elongation), 3))
 	}
 	if text {
-		u := []string{"", "", ""}
-		if len(res.Reduced) > 0 && len(res.Reduced[0].Units) == 3 {
-			u = res.Reduced[0].Units
-		}
-		red.Title = fmt.Sprintf("%s\nDate %s, seed %d\n\n1. Raw tensile records reduced (modulus %s, strengths %s, elongation %s)", res.Scenario, res.Date, res.Seed, u[0], u[1], u[2])
+		red.Title = fmt.Sprintf("%s\nDate %s, seed %d\n\n1. Raw tensile records reduced", res.Scenario, res.Date, res.Seed)
 	}
 	out = append(out, red)
 
