@@ -391,21 +391,36 @@ func finish(d *Dataset, h *Header, sum hash.Hash, n int64) {
 	}
 }
 
+// withProgress reports the bytes read from r to progress, when set.
+func withProgress(r io.Reader, progress func(int64)) io.Reader {
+	if progress == nil {
+		return r
+	}
+	return &countingReader{r: r, progress: progress}
+}
+
 type countingReader struct {
-	r io.Reader
-	n int64
+	r        io.Reader
+	n        int64
+	progress func(int64)
 }
 
 func (c *countingReader) Read(p []byte) (int, error) {
 	n, err := c.r.Read(p)
 	c.n += int64(n)
+	if c.progress != nil {
+		c.progress(c.n)
+	}
 	return n, err
 }
 
 // ReadOptions select how a results file is read.
 type ReadOptions struct {
-	Sheet string    // xlsx: the sheet to read (default: the first)
-	Stdin io.Reader // what "-" reads (default os.Stdin)
+	// Progress, when set, is called with the number of bytes read so far
+	// (a progress display).
+	Progress func(bytes int64)
+	Sheet    string    // xlsx: the sheet to read (default: the first)
+	Stdin    io.Reader // what "-" reads (default os.Stdin)
 }
 
 // ReadFile reads a specimen results file by name: "-" is standard input
@@ -416,7 +431,7 @@ func ReadFile(name string, opt ReadOptions) (*Dataset, error) {
 		if in == nil {
 			in = os.Stdin
 		}
-		return ReadCSV(in, "-")
+		return ReadCSV(withProgress(in, opt.Progress), "-")
 	}
 	if strings.EqualFold(filepath.Ext(name), ".xlsx") {
 		return ReadXLSX(name, opt.Sheet)
@@ -426,7 +441,7 @@ func ReadFile(name string, opt ReadOptions) (*Dataset, error) {
 		return nil, Inputf(name, "check the path", "cannot open the results file: %v", unwrapPath(err))
 	}
 	defer f.Close()
-	return ReadCSV(f, name)
+	return ReadCSV(withProgress(f, opt.Progress), name)
 }
 
 func unwrapPath(err error) error {

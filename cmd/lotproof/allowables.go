@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"lotproof/lots/allowables"
+	"lotproof/lots/progress"
 	"lotproof/lots/render"
 )
 
@@ -126,7 +127,10 @@ func runAllowables(o allowablesOptions, st streams) error {
 		return err
 	}
 	opt.GroupBy = by
+	bar := progress.New(st.Err, st.ErrTerminal, int64(allowables.Steps(d, opt)), "design values")
+	opt.Done = func() { bar.Add(1) }
 	rep, err := allowables.Analyze(d, opt, date)
+	bar.Finish()
 	if err != nil {
 		return err
 	}

@@ -3,8 +3,11 @@ package main
 import (
 	"bytes"
 	"io"
+	"os"
+	"path/filepath"
 
 	"lotproof/lots"
+	"lotproof/lots/progress"
 	"lotproof/lots/render"
 )
 
@@ -21,7 +24,15 @@ func readData(name string, in inputOptions, st streams) (*lots.Dataset, lots.Gro
 	if err != nil {
 		return nil, "", usageError{err}
 	}
-	d, err := lots.ReadFile(name, lots.ReadOptions{Sheet: in.Sheet, Stdin: st.In})
+	ro := lots.ReadOptions{Sheet: in.Sheet, Stdin: st.In}
+	// A bar over the bytes of a large file, on a terminal only.
+	if fi, err := os.Stat(name); err == nil && name != "-" && fi.Size() > 32<<20 {
+		bar := progress.New(st.Err, st.ErrTerminal, fi.Size(), "read "+filepath.Base(name))
+		defer bar.Finish()
+		var last int64
+		ro.Progress = func(n int64) { bar.Add(n - last); last = n }
+	}
+	d, err := lots.ReadFile(name, ro)
 	if err != nil {
 		return nil, "", err
 	}

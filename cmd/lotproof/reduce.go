@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/progress"
 	"lotproof/lots/reduce"
 	"lotproof/lots/render"
 	"lotproof/lots/units"
@@ -201,7 +202,10 @@ func runReduce(o reduceOptions, st streams) error {
 	if err != nil {
 		return err
 	}
+	bar := progress.New(st.Err, st.ErrTerminal, int64(len(recs)), "reduce")
+	opt.Done = func() { bar.Add(1) }
 	rs, err := reduce.ReduceAll(recs, opt)
+	bar.Finish()
 	if err != nil {
 		return err
 	}

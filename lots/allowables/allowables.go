@@ -48,6 +48,10 @@ type Options struct {
 	OSLMin       float64 // a distribution is accepted when its AD OSL exceeds this
 	LeveneAlpha  float64 // equality of normalized variances across conditions
 	PoolOSLMin   float64 // normality of the pooled normalized data
+
+	// Done, when set, is called after each property and condition (a
+	// progress display); Steps tells how many there will be.
+	Done func()
 }
 
 // DefaultOptions are the usual levels: A-basis 99% content, B-basis 90%,
@@ -201,6 +205,16 @@ var Cautions = []string{
 	"A- and B-basis values describe the population the tested lots represent; they do not cover processing, environments or lots outside it.",
 }
 
+// Steps is how many property and condition analyses Analyze makes (the
+// total of a progress display).
+func Steps(d *lots.Dataset, opt Options) int {
+	n := len(opt.Properties)
+	if n == 0 {
+		n = len(d.Properties)
+	}
+	return n * len(d.Conditions())
+}
+
 // Analyze runs the procedure on a dataset, per property and condition.
 func Analyze(d *lots.Dataset, opt Options, date string) (*Report, error) {
 	if err := checkOptions(opt); err != nil {
@@ -231,6 +245,9 @@ func Analyze(d *lots.Dataset, opt Options, date string) (*Report, error) {
 				return nil, err
 			}
 			r, err := analyzeOne(d, p, c, groups, opt)
+			if opt.Done != nil {
+				opt.Done()
+			}
 			var ie *lots.InputError
 			if errors.As(err, &ie) {
 				// This property and condition cannot be analysed: say so

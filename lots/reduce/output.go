@@ -178,6 +178,9 @@ func ReduceAll(recs []*Record, opt Options) ([]*Result, error) {
 		}
 		seen[rec.ID] = where
 		r, err := Reduce(rec, opt)
+		if opt.Done != nil {
+			opt.Done()
+		}
 		if err != nil {
 			ie, ok := err.(*lots.InputError)
 			if !ok {

@@ -22,6 +22,9 @@ type Options struct {
 	ModulusFrom, ModulusTo float64
 	// Offset is the plastic strain of the proof strength (0: 0.002).
 	Offset float64
+	// Done, when set, is called after each record ReduceAll reduces (a
+	// progress display).
+	Done func()
 }
 
 // Fit is the least-squares elastic line stress = Slope*strain + Intercept.
