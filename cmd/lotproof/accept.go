@@ -53,14 +53,10 @@ maximum normed residual test (alpha 0.05); flagged values are reported and
 kept. Exit status: 0 when every lot conforms, 1 when any lot is
 nonconforming, undecided or not judged, 2 on bad input.`,
 		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data = args[0]
 			return runAccept(o, st)
-		},
+		}),
 	}
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
 	addInputFlags(cmd, &o.Input)

@@ -56,14 +56,10 @@ specification, regulations, local codes and licensed engineering judgement.`,
   lotproof allowables campaign.xlsx --property tensile --group-by heat --format json
   lotproof allowables campaign.csv --exclude QB-Q03-RT-2 --reason "void at fracture origin"`,
 		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data = args[0]
 			return runAllowables(o, st)
-		},
+		}),
 	}
 	addInputFlags(cmd, &o.Input)
 	f := cmd.Flags()

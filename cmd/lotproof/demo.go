@@ -54,11 +54,7 @@ tensile records. The demo
 
 Every company, material, specification and number in it is invented.`,
 		Args: exactArgs(0, "no arguments"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			if noReport {
 				o.Report = ""
 			}
@@ -66,7 +62,7 @@ Every company, material, specification and number in it is invented.`,
 				return usageError{fmt.Errorf("--report - would mix the report with the demo's results on standard output: give a file name, or --no-report")}
 			}
 			return runDemo(o, st)
-		},
+		}),
 	}
 	cmd.Flags().StringVar(&o.Report, "report", o.Report, "write the HTML report to this file")
 	cmd.Flags().BoolVar(&noReport, "no-report", false, "do not write the HTML report")

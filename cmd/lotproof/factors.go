@@ -51,13 +51,9 @@ written as 0.9 or 90%.`,
   lotproof factors --n 2-10,20,50,100 --content 99% --method normal,nonparametric
   lotproof factors --n 10,30 --method weibull-mc --sims 20000 --seed 7 --format json`,
 		Args: exactArgs(0, "no arguments"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			return runFactors(o, st)
-		},
+		}),
 	}
 	f := cmd.Flags()
 	f.StringVar(&o.N, "n", o.N, "sample sizes: ranges and lists, e.g. 2-30 or 5,10,20")

@@ -37,13 +37,9 @@ meets the same two points (binomial), and the operating characteristic
 (probability of acceptance against fraction nonconforming) of both plans.
 Fractions may be written as 0.01 or 1%.`,
 		Args: exactArgs(0, "no arguments"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			return runPlan(o, st)
-		},
+		}),
 	}
 	cmd.Flags().StringVar(&o.AQL, "aql", "", "acceptable quality level: fraction nonconforming accepted with probability 1 - producer risk (required)")
 	cmd.Flags().StringVar(&o.RQL, "rql", "", "rejectable quality level: fraction nonconforming accepted with probability at most the consumer risk (required)")

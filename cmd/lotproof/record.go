@@ -49,14 +49,10 @@ specimen already stored with identical values is skipped. A specimen id
 already stored with different values is a conflict: both values are shown,
 nothing is written and the exit status is 2.`,
 		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data = args[0]
 			return runRecord(o, st)
-		},
+		}),
 	}
 	addInputFlags(cmd, &o.Input)
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "purchase specification file (YAML); repeat for several materials")

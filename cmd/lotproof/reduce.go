@@ -57,14 +57,10 @@ specification, regulations and licensed engineering judgement.`,
 			}
 			return nil
 		},
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Paths = args
 			return runReduce(o, st)
-		},
+		}),
 	}
 	cmd.Flags().StringVar(&o.ModulusRange, "modulus-range", "", "stress range LO:HI of the elastic fit in MPa (ksi with --units us); default: found automatically")
 	cmd.Flags().Float64Var(&o.OffsetPercent, "offset", 0.2, "plastic strain of the proof strength in %")

@@ -73,14 +73,10 @@ specification, regulations, local codes and licensed engineering judgement.`,
 		Example: `  lotproof report receipts.csv --spec steel.yaml --out receipts.html
   lotproof report receipts.csv --spec steel.yaml --spec plate.yaml --campaign campaign.csv --db lotproof.db --out full.html`,
 		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data = args[0]
 			return runReport(o, st)
-		},
+		}),
 	}
 	addInputFlags(cmd, &o.Input)
 	f := cmd.Flags()

@@ -159,3 +159,15 @@ func maxArgs(n int, what string) cobra.PositionalArgs {
 		return nil
 	}
 }
+
+// withOutput resolves the global flags into *out, then runs run: the
+// common start of every command that writes results.
+func withOutput(g *globalOptions, st streams, out *output, run func(args []string) error) func(*cobra.Command, []string) error {
+	return func(_ *cobra.Command, args []string) error {
+		var err error
+		if *out, err = g.resolve(st); err != nil {
+			return err
+		}
+		return run(args)
+	}
+}

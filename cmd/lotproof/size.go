@@ -54,13 +54,9 @@ Lengths are in mm (--units si) or in (--units us). Uniform axial stress only.`,
   lotproof size --from allowables.json --property tensile --basis b --safety 2 --load 40 --shape tube --diameter 30
   lotproof size --design-value 135 --stress-unit ksi --safety 1.5 --shape round --diameter 0.75 --units us`,
 		Args: exactArgs(0, "no arguments (everything is given by flags)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			return runSize(o, st)
-		},
+		}),
 	}
 	f := cmd.Flags()
 	f.Float64Var(&o.DesignValue, "design-value", 0, "design value (stress) to divide by the factor of safety")

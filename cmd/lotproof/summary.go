@@ -26,14 +26,10 @@ and prints, for every lot (or heat) and property, the number of values, the
 number missing, the mean, the sample standard deviation, the minimum and the
 maximum.`,
 		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data = args[0]
 			return runSummary(o, st)
-		},
+		}),
 	}
 	addInputFlags(cmd, &o.Input)
 	return cmd

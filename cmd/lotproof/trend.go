@@ -43,13 +43,9 @@ or from --spec files given here (these win).
 Trend signals support, and never replace, the governing specification,
 regulations, local codes and licensed engineering judgement.`,
 		Args: exactArgs(0, "no arguments (the data come from the database)"),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			var err error
-			if o.Out, err = g.resolve(st); err != nil {
-				return err
-			}
+		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			return runTrend(o, st)
-		},
+		}),
 	}
 	f := cmd.Flags()
 	f.StringVar(&o.DB, "db", "", "database: a SQLite file or postgres://... URL (default: $LOTPROOF_DB or lotproof.db)")
