@@ -209,7 +209,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			continue
 		}
 		v, err := strconv.ParseFloat(raw, 64)
-		if err == nil && strings.ContainsAny(raw, "xX_") {
+		if err == nil && notDecimal(raw) {
 			// Go also reads hexadecimal floats and digit separators; a
 			// results file holds plain decimal numbers.
 			err = strconv.ErrSyntax
@@ -497,4 +497,16 @@ func short(v string) string {
 		return fmt.Sprintf("%q...", string(r[:40]))
 	}
 	return fmt.Sprintf("%q", v)
+}
+
+// notDecimal reports whether a number Go's parser accepted is written in a
+// form a results file never uses: hexadecimal (0x...) or with digit
+// separators (_).
+func notDecimal(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c == 'x' || c == 'X' || c == '_' {
+			return true
+		}
+	}
+	return false
 }
