@@ -21,7 +21,7 @@ rng = np.random.default_rng(7345)
 quarters = [(2024, 1), (2024, 2), (2024, 3), (2024, 4), (2025, 1), (2025, 2), (2025, 3)]
 MIN = {"tensile": 930.0, "proof": 800.0}
 rows = []
-for sup, code, per_q, shift_from in [("Alder Works", "AW", 2, None), ("Birch Foundry", "BF", 3, 5)]:
+for sup, code, per_q, shift_from in [("Ondrake Works", "AW", 2, None), ("Vellmark Foundry", "BF", 3, 5)]:
     for qi, (y, q) in enumerate(quarters):
         for l in range(per_q):
             lot = "%s-%d%d-%d" % (code, y % 100, q, l + 1)
@@ -53,7 +53,7 @@ conf, lam, L, alpha = 0.95, 0.2, 3.0, 0.01
 z95 = stats.norm.ppf(conf)
 d2 = 2 / math.sqrt(math.pi)
 d4 = math.sqrt(2) * stats.norm.ppf(0.75)
-for sup in ["Alder Works", "Birch Foundry"]:
+for sup in ["Ondrake Works", "Vellmark Foundry"]:
     for pi, prop in [(6, "proof"), (5, "tensile")]:
         lots = {}
         for r in rows:
