@@ -114,14 +114,7 @@ func TestNormalKAgainstScipy(t *testing.T) {
 // - 1 is checked below 1e-20). Relative tolerance 1e-11 on each tail down
 // to 1e-280, including far tails such as P(T > 50; 99.5, 3) = 1.19e-60.
 func TestNoncentralTCDFAgainstMpmath(t *testing.T) {
-	b, err := os.ReadFile("../testdata/tolerance/nct_cdf.json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var r tbNCTCDFRef
-	if err := json.Unmarshal(b, &r); err != nil {
-		t.Fatal(err)
-	}
+	r := loadNCTCDFRef(t)
 	if len(r.CDF) < 15 {
 		t.Fatalf("only %d CDF rows", len(r.CDF))
 	}
@@ -195,14 +188,7 @@ func TestNormalKDenseAgainstScipy(t *testing.T) {
 // quantile gives the n = 100,000 A-basis factor wrong in the 6th digit. If
 // gonum improves, this test fails and the library should be reconsidered.
 func TestGonumNoncentralTComparison(t *testing.T) {
-	b, err := os.ReadFile("../testdata/tolerance/nct_cdf.json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var r tbNCTCDFRef
-	if err := json.Unmarshal(b, &r); err != nil {
-		t.Fatal(err)
-	}
+	r := loadNCTCDFRef(t)
 	bad := 0
 	for _, c := range r.CDF {
 		lo, _ := strconv.ParseFloat(c.MpCDF, 64)
@@ -224,4 +210,19 @@ func TestGonumNoncentralTComparison(t *testing.T) {
 	gq := distuv.NoncentralT{Nu: n - 1, Mu: normQuantile(0.99) * math.Sqrt(n)}.Quantile(0.95) / math.Sqrt(n)
 	k, _ := NormalK(100000, 0.99, 0.95)
 	t.Logf("n = 100,000 A-basis k: ours %.15g, gonum %.15g (mpmath 2.33639620252673)", k, gq)
+}
+
+// loadNCTCDFRef reads testdata/tolerance/nct_cdf.json (mpmath reference
+// values of the noncentral t CDF and survival function).
+func loadNCTCDFRef(t *testing.T) tbNCTCDFRef {
+	t.Helper()
+	b, err := os.ReadFile("../testdata/tolerance/nct_cdf.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var r tbNCTCDFRef
+	if err := json.Unmarshal(b, &r); err != nil {
+		t.Fatal(err)
+	}
+	return r
 }
