@@ -38,13 +38,34 @@ func checkMargin(what string, n int, q float64) error {
 //
 // with I the regularised incomplete beta function (gonum mathext.RegIncBeta,
 // checked against scipy.special.betainc in stats/nonconforming_test.go).
-// It needs n >= 3 (the beta parameters must be positive).
+//
+// At n = 2 the beta parameters are 0 and the formula is taken in its limit
+// a -> 0, where Beta(a, a) puts mass 1/2 at each of 0 and 1: p_hat = 0, 1/2
+// or 1 as q > 1/sqrt2, -1/sqrt2 < q < 1/sqrt2 or q < -1/sqrt2. This is the
+// Rao-Blackwell estimator E[1(X_1 < L) | xbar, s] (Lehmann and Casella,
+// Theory of Point Estimation, 2nd ed., section 2.2): given xbar and s the
+// first value is either of xbar -+ s/sqrt2 (the two observations) with
+// probability 1/2, so
+//
+//	p_hat = 1/2 [1(xbar - s/sqrt2 < L) + 1(xbar + s/sqrt2 < L)],
+//
+// the fraction of the two values beyond the limit. A value exactly at the
+// limit is not beyond it: margins within 1e-12 of -+1/sqrt2 (a value at the
+// limit, up to rounding in xbar and s) count as not beyond.
 func TailFractionMVUE(n int, q float64) (float64, error) {
 	if err := checkMargin("tail fraction MVUE", n, q); err != nil {
 		return math.NaN(), err
 	}
-	if n < 3 {
-		return math.NaN(), fmt.Errorf("tail fraction MVUE: n = %d, need at least 3: %w", n, ErrTooFew)
+	if n == 2 {
+		const h, eps = 1 / math.Sqrt2, 1e-12
+		p := 0.0
+		if q < h-eps {
+			p += 0.5
+		}
+		if q < -h-eps {
+			p += 0.5
+		}
+		return p, nil
 	}
 	fn := float64(n)
 	b := 0.5 - q*math.Sqrt(fn)/(2*(fn-1))

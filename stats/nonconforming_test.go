@@ -75,7 +75,7 @@ func TestTailFractionMVUEUnbiased(t *testing.T) {
 	for _, c := range []struct {
 		n int
 		z float64 // (mu - L)/sigma
-	}{{5, 1.2}, {10, 0.5}, {4, 2.0}} {
+	}{{5, 1.2}, {10, 0.5}, {4, 2.0}, {2, 0.3}, {2, -1.0}} {
 		const reps = 100000
 		sum, sum2 := 0.0, 0.0
 		x := make([]float64, c.n)
@@ -115,8 +115,8 @@ func TestTailFractionBoundMatchesToleranceFactor(t *testing.T) {
 }
 
 func TestNonconformingErrors(t *testing.T) {
-	if _, err := TailFractionMVUE(2, 1); !errors.Is(err, ErrTooFew) {
-		t.Error("n = 2 accepted by MVUE")
+	if _, err := TailFractionMVUE(1, 1); !errors.Is(err, ErrTooFew) {
+		t.Error("n = 1 accepted by MVUE")
 	}
 	if _, err := TailFractionBound(1, 1, 0.9, true); !errors.Is(err, ErrTooFew) {
 		t.Error("n = 1 accepted by bound")
@@ -129,5 +129,53 @@ func TestNonconformingErrors(t *testing.T) {
 	}
 	if _, err := MeanLowerBound(1, 1, 1, 0.9); !errors.Is(err, ErrTooFew) {
 		t.Error("n = 1 accepted by mean bound")
+	}
+}
+
+// TestTailFractionMVUEAtTwo: at n = 2 the estimator is the limit a -> 0 of
+// the Lieberman-Resnikoff formula, checked against scipy.special.betainc at
+// a = 1e-12 and against the Rao-Blackwell value 1/2 [1(xbar - s/sqrt2 < L) +
+// 1(xbar + s/sqrt2 < L)] (testdata/acceptance/make_mvue_n2_ref.py), and it
+// equals the fraction of the two values below the limit (L = 0).
+func TestTailFractionMVUEAtTwo(t *testing.T) {
+	var ref struct {
+		Rows []struct {
+			X1, X2, Q    float64
+			BetaincLimit float64 `json:"betainc_limit"`
+			RaoBlackwell float64 `json:"rao_blackwell"`
+		}
+	}
+	loadJSON(t, "../testdata/acceptance/mvue_n2_ref.json", &ref)
+	if len(ref.Rows) < 5 {
+		t.Fatalf("%d rows", len(ref.Rows))
+	}
+	for _, r := range ref.Rows {
+		m, s := meanSD([]float64{r.X1, r.X2})
+		got, err := TailFractionMVUE(2, m/s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		below := 0.0
+		for _, v := range []float64{r.X1, r.X2} {
+			if v < 0 {
+				below += 0.5
+			}
+		}
+		if got != r.RaoBlackwell || got != below || math.Abs(got-r.BetaincLimit) > 1e-9 {
+			t.Errorf("x = %g, %g: MVUE %g, Rao-Blackwell %g, betainc limit %g, fraction below %g", r.X1, r.X2, got, r.RaoBlackwell, r.BetaincLimit, below)
+		}
+	}
+	// A value exactly at the limit is not below it, whatever the rounding
+	// of the margin.
+	for _, x := range [][]float64{{0, 0.3}, {-0.7, 0}, {0, 1e-9}} {
+		m, s := meanSD(x)
+		got, _ := TailFractionMVUE(2, m/s)
+		want := 0.0
+		if x[0] < 0 {
+			want = 0.5
+		}
+		if got != want {
+			t.Errorf("x = %v: MVUE %g, want %g", x, got, want)
+		}
 	}
 }

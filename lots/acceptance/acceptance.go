@@ -355,10 +355,8 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.R
 	tb := mean - k*sd
 	pr.K, pr.ToleranceBound = lots.Float(k), lots.Float(sign*tb)
 	q := (mean - L) / sd
-	if n >= 3 {
-		if f, err := stats.TailFractionMVUE(n, q); err == nil {
-			pr.FractionEstimate = lots.Float(f)
-		}
+	if f, err := stats.TailFractionMVUE(n, q); err == nil {
+		pr.FractionEstimate = lots.Float(f)
 	}
 	up, err := stats.TailFractionBound(n, q, r.Confidence, true)
 	if err != nil {
