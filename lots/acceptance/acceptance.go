@@ -338,6 +338,16 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.R
 	}
 	mean, sd := desc.Mean, desc.SD
 	pr.Mean, pr.SD = lots.Float(sign*mean), lots.Float(sd)
+	if sd == 0 && len(fails) == n {
+		// Every value is beyond the limit: the estimated fraction beyond
+		// it is 1, and the lower confidence bound on that fraction tends
+		// to 1 as the spread tends to 0 (it falls as the margin grows,
+		// Owen 1968), so the fraction rule below rejects the lot.
+		pr.FractionEstimate = 1
+		pr.Verdict = Nonconforming
+		pr.Reasons = append(pr.Reasons, fmt.Sprintf("all %d values are equal (zero spread) and %s the %s %s: the whole lot as tested is beyond the limit; check for rounding or copied values", n, beyond, word, show(limit)))
+		return pr, nil
+	}
 	if sd == 0 {
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("all %d values are equal (zero spread): the normal tolerance-bound method does not apply; check for rounding or copied values", n))
 		pr.Verdict = orUndecided(decided)

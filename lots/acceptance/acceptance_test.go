@@ -199,3 +199,42 @@ func TestJudgeBadInput(t *testing.T) {
 		}
 	}
 }
+
+// A lot whose values are all equal and all below the minimum is
+// nonconforming even when the specification does not reject on individual
+// values: the lower confidence bound on the fraction below the limit
+// decreases in the margin q = (mean - L)/SD (Owen 1968) and at q = -1
+// already exceeds 1 - content (scipy.stats.nct: 0.383 at n = 3, gamma 0.95,
+// testdata/acceptance/nonconforming_ref.json), so at zero spread (q -> -inf)
+// it does too. Equal values above the minimum stay undecided.
+func TestJudgeZeroSpreadBelowMinimum(t *testing.T) {
+	csv := "specimen,lot,heat,supplier,material,tested,condition,tensile [MPa]\n" +
+		"Z-1,Z,HZ,Test Supplier,Alloy T,2025-01-14,RT,900\nZ-2,Z,HZ,Test Supplier,Alloy T,2025-01-14,RT,900\nZ-3,Z,HZ,Test Supplier,Alloy T,2025-01-14,RT,900\n" +
+		"Y-1,Y,HY,Test Supplier,Alloy T,2025-01-14,RT,950\nY-2,Y,HY,Test Supplier,Alloy T,2025-01-14,RT,950\nY-3,Y,HY,Test Supplier,Alloy T,2025-01-14,RT,950\n"
+	path := t.TempDir() + "/zero.csv"
+	if err := os.WriteFile(path, []byte(csv), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sp := "specification: TEST-Z\nrevision: A\nmaterial: Alloy T\nproperties:\n  tensile:\n    unit: MPa\n    min: 930\n" +
+		"acceptance:\n  content: 0.90\n  confidence: 0.95\n  min_specimens: 3\n  individual_reject: false\n"
+	d, ss := load(t, path, sp)
+	r, err := Judge(d, ss, lots.ByLot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo, err := stats.TailFractionBound(3, -1, 0.95, false)
+	if err != nil || math.Abs(lo-0.38344818788610824) > 1e-9 {
+		t.Fatalf("lower bound at q = -1: %v %v (scipy 0.383448)", lo, err)
+	}
+	z := find(t, r, "Z")
+	p := z.Properties[0]
+	if z.Verdict != Nonconforming || p.Verdict != Nonconforming || float64(p.FractionEstimate) != 1 || p.Beyond != 3 {
+		t.Errorf("all equal below the minimum: lot %s, property %+v", z.Verdict, p)
+	}
+	if !strings.Contains(strings.Join(p.Reasons, " "), "zero spread") || !strings.Contains(strings.Join(p.Reasons, " "), "below the minimum") {
+		t.Errorf("reasons: %v", p.Reasons)
+	}
+	if y := find(t, r, "Y"); y.Verdict != Undecided || len(y.Properties[0].Reasons) == 0 {
+		t.Errorf("all equal above the minimum: %s %v", y.Verdict, y.Properties[0].Reasons)
+	}
+}
