@@ -191,14 +191,19 @@ func WeibullLowerBoundWithFactor(x []float64, p, gamma float64, f WeibullFactor)
 //	A-basis (p = 0.99, gamma = 0.95): V_A = 6.649 + exp(2.55 - 0.526 ln n + 4.76/n)
 //
 // for use in B = q^ exp(-V/(beta^ sqrt n)), q^ = alpha^ (-ln p)^(1/beta^)
-// (-ln 0.90 = 0.10536, -ln 0.99 = 0.01005). Only these two levels exist. The
-// range of n stated with the formulas is not reliably remembered here.
-// Measured against the exact pivotal factor (weibullbound_test.go and
-// 20,000-simulation runs): within about 1-2% for n = 30 to 100 (either
-// side); conservative (V too large, bound too low) at small n: B-basis +4%
-// at n = 10, +10% at n = 8, +33% at n = 5, +62% at n = 4, +156% at n = 3;
-// A-basis +3% at n = 10, +9% at n = 5, +12% at n = 3. n must be at least 3
-// (the same minimum as the maximum-likelihood fit behind the bound).
+// (-ln 0.90 = 0.10536, -ln 0.99 = 0.01005). Only these two levels exist.
+// The constants 3.803 and 6.649 are the large-n limits 1.645 sqrt(Var) of
+// the pivot's asymptotic normal distribution (Lawless 2003, section
+// 5.2.2: Var = 1.1087 - 2 w_p 0.2570 + w_p^2 0.6079, w_p = ln(-ln p)).
+// Measured against the exact pivotal factor (the embedded table of
+// WeibullBasisV, 200,000 simulations per n up to 30): conservative (V too
+// large) at small n, B-basis +155% at n = 3, +62% at n = 4, +19% at n = 6,
+// +5% at n = 10; A-basis +11% at n = 3, +2% at n = 10; within about 1-2%
+// either side from n = 15 on. At n = 3 the B-basis V exceeds the A-basis V
+// by so much that the closed-form A-basis value lies above the B-basis
+// value for any data; the design values therefore use WeibullBasisV, which
+// takes the exact factor up to n = 100. n must be at least 3 (the same
+// minimum as the maximum-likelihood fit behind the bound).
 func WeibullApproxV(n int, p, gamma float64) (float64, error) {
 	if n < 3 {
 		return math.NaN(), fmt.Errorf("Weibull approximate factor needs n >= 3, have %d: %w", n, ErrTooFew)
@@ -215,7 +220,8 @@ func WeibullApproxV(n int, p, gamma float64) (float64, error) {
 
 // WeibullApproxLowerBound returns B = q^ exp(-V/(beta^ sqrt n)) with the
 // handbook approximation V of WeibullApproxV and the MLE fit of x
-// (CMH-17-1G Vol. 1 section 8.3.4.3.2).
+// (CMH-17-1G Vol. 1 section 8.3.4.3.2). Kept for comparison: the design
+// values use WeibullBasisLowerBound, which is exact at small n.
 func WeibullApproxLowerBound(x []float64, p, gamma float64) (Bound, error) {
 	V, err := WeibullApproxV(len(x), p, gamma)
 	if err != nil {
@@ -232,4 +238,94 @@ func WeibullApproxLowerBound(x []float64, p, gamma float64) (Bound, error) {
 		Params: map[string]float64{"shape": fit.Shape, "scale": fit.Scale, "q": q},
 		Notes:  []string{"handbook closed-form approximation of the Weibull factor (CMH-17-1G 8.3.4.3.2)", DesignValueCaution},
 	}, nil
+}
+
+// weibullTableRow is one entry of the embedded exact factor table
+// (weibulltable.go, written by go run ./stats/internal/weibullgen).
+type weibullTableRow struct {
+	N       int
+	Sims    int
+	VB, SeB float64 // B-basis (content 0.90, confidence 0.95) factor and its Monte Carlo standard error
+	VA, SeA float64 // A-basis (content 0.99, confidence 0.95)
+}
+
+// WeibullBasisFactor is the Weibull tolerance factor at the A- or B-basis
+// level and where it comes from.
+type WeibullBasisFactor struct {
+	V      float64 // factor in B = q^ exp(-V/(beta^ sqrt n))
+	StdErr float64 // Monte Carlo standard error of V; 0 for the closed form
+	Exact  bool    // from the embedded table of exact factors
+	Sims   int     // simulations behind a tabulated factor
+	Seed   uint64  // seed of a tabulated factor
+}
+
+// WeibullBasisV returns the Weibull tolerance factor V for
+// B = q^ exp(-V/(beta^ sqrt n)) at the B-basis (p = 0.90) or A-basis
+// (p = 0.99) level, confidence gamma = 0.95:
+//
+//   - 3 <= n <= 100: the exact pivotal factor of WeibullPivotFactor
+//     (Thoman, Bain and Antle 1970, Technometrics 12:363-371; Lawless 2003,
+//     section 5.2.2) from an embedded table computed once by seeded Monte
+//     Carlo (weibulltable.go, written by go run ./stats/internal/weibullgen:
+//     200,000 simulations for n <= 30, 50,000 above, both levels from the
+//     same samples so that the A-basis factor always gives the lower
+//     bound), with its Monte Carlo standard error;
+//   - n > 100: the handbook closed form of WeibullApproxV (CMH-17-1G Vol. 1
+//     section 8.3.4.3.2), which is within about 1-2% of the exact factor
+//     there and tends to the exact large-n limit.
+//
+// The closed form is not used below n = 100 because it is conservative by
+// 20% and more for the B-basis below n = 7 and, at n = 3, makes the A-basis
+// value exceed the B-basis value (see WeibullApproxV). The tabulated values
+// were checked against an independent numpy/scipy simulation
+// (testdata/tolerance/gen_weibull_small.py, weibull_factor_small.json).
+func WeibullBasisV(n int, p, gamma float64) (WeibullBasisFactor, error) {
+	if n < 3 {
+		return WeibullBasisFactor{}, fmt.Errorf("Weibull factor needs n >= 3, have %d: %w", n, ErrTooFew)
+	}
+	a := p == 0.99 && gamma == 0.95
+	if !a && !(p == 0.90 && gamma == 0.95) {
+		return WeibullBasisFactor{}, fmt.Errorf("%w: the tabulated Weibull factor exists only for p = 0.90 or 0.99 at gamma = 0.95 (use WeibullLowerBound)", ErrDomain)
+	}
+	if n <= weibullTableMaxN {
+		r := weibullTable[n-3]
+		f := WeibullBasisFactor{V: r.VB, StdErr: r.SeB, Exact: true, Sims: r.Sims, Seed: weibullTableSeed}
+		if a {
+			f.V, f.StdErr = r.VA, r.SeA
+		}
+		return f, nil
+	}
+	v, err := WeibullApproxV(n, p, gamma)
+	return WeibullBasisFactor{V: v}, err
+}
+
+// WeibullBasisLowerBound returns B = q^ exp(-V/(beta^ sqrt n)) with the
+// factor V of WeibullBasisV and the maximum-likelihood fit of x
+// (FitWeibull): the exact pivotal bound for n <= 100, the handbook closed
+// form above (CMH-17-1G Vol. 1 section 8.3.4.3.2). For a tabulated factor
+// the Monte Carlo standard error of the bound is B se(V)/(beta^ sqrt n).
+// Only the A- and B-basis levels (p = 0.99 or 0.90, gamma = 0.95) exist
+// (ErrDomain otherwise; use WeibullLowerBound).
+func WeibullBasisLowerBound(x []float64, p, gamma float64) (Bound, error) {
+	f, err := WeibullBasisV(len(x), p, gamma)
+	if err != nil {
+		return Bound{}, err
+	}
+	fit, err := FitWeibull(x)
+	if err != nil {
+		return Bound{}, err
+	}
+	rn := math.Sqrt(float64(len(x)))
+	q := fit.Scale * math.Pow(-math.Log(p), 1/fit.Shape)
+	v := q * math.Exp(-f.V/(fit.Shape*rn))
+	b := Bound{Value: v, Factor: f.V, Method: "weibull-approx", N: len(x), Content: p, Confidence: gamma,
+		Params: map[string]float64{"shape": fit.Shape, "scale": fit.Scale, "q": q},
+		Notes:  []string{"handbook closed-form approximation of the Weibull factor (CMH-17-1G 8.3.4.3.2)", DesignValueCaution}}
+	if f.Exact {
+		b.Method = "weibull-table"
+		b.MCStdErr = v * f.StdErr / (fit.Shape * rn)
+		b.Params["sims"], b.Params["seed"] = float64(f.Sims), float64(f.Seed)
+		b.Notes[0] = fmt.Sprintf("exact pivotal Weibull factor (Thoman, Bain and Antle 1970) from the built-in table for 3 to %d values (%d simulations, seed %d)", weibullTableMaxN, f.Sims, f.Seed)
+	}
+	return b, nil
 }

@@ -36,8 +36,10 @@ A-basis is P = 0.99, B-basis P = 0.90, both at C = 0.95):
 
   normal          k in  mean - k s, exact (noncentral t; Owen 1968,
                   CMH-17-1G 8.3.4.3.1); n from 2 to 100,000
-  weibull-approx  V in  q exp(-V/(shape sqrt n)), the handbook closed form
-                  (CMH-17-1G 8.3.4.3.2); only P = 0.90 or 0.99 at C = 0.95
+  weibull-approx  V in  q exp(-V/(shape sqrt n)) as the allowables command
+                  applies it: exact (built-in table) up to n = 100, the
+                  handbook closed form (CMH-17-1G 8.3.4.3.2) above; only
+                  P = 0.90 or 0.99 at C = 0.95
   weibull-mc      the same V, exact from the pivotal quantities of the
                   maximum-likelihood estimates (Thoman, Bain and Antle 1970)
                   by seeded Monte Carlo (--sims, --seed); shows its standard error
@@ -208,7 +210,7 @@ func runFactors(o factorsOptions, st streams) error {
 						row.Factor = k
 						note("normal: bound = mean - k s (exact for normal data)")
 					case "weibull-approx":
-						v, err := stats.WeibullApproxV(n, p, g)
+						f, err := stats.WeibullBasisV(n, p, g)
 						if err != nil {
 							if n < 3 {
 								note("weibull-approx: needs n >= 3")
@@ -217,10 +219,12 @@ func runFactors(o factorsOptions, st streams) error {
 							}
 							continue
 						}
-						if n < 10 {
-							note("weibull-approx: conservative below n = 10 compared with weibull-mc (B-basis V about 10% high at n = 8, 60% at n = 4)")
+						if f.Exact {
+							se := f.StdErr
+							row.MCStdErr = &se
+							note(fmt.Sprintf("weibull-approx: up to n = 100 the exact factor from the built-in table (seeded simulation, seed %d; MC s.e. is each factor's standard error), above it the handbook closed form; these are the factors the allowables command applies", f.Seed))
 						}
-						row.Factor = v
+						row.Factor = f.V
 						note("weibull: bound = alpha (-ln P)^(1/beta) exp(-V/(beta sqrt n)) from the maximum-likelihood fit")
 					case "weibull-mc":
 						if n < 3 {

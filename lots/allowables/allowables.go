@@ -14,7 +14,7 @@ import (
 
 // Methods a design value can be computed by.
 const (
-	Weibull       = "weibull"         // two-parameter Weibull, handbook closed-form factor
+	Weibull       = "weibull"         // two-parameter Weibull, exact tabulated factor to n = 100, handbook closed form above
 	WeibullExact  = "weibull-exact"   // two-parameter Weibull, exact pivotal bound by Monte Carlo
 	Normal        = "normal"          // normal, exact noncentral-t factor
 	Lognormal     = "lognormal"       // normal method on logarithms

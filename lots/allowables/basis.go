@@ -21,9 +21,11 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 	case Lognormal:
 		return stats.LognormalLowerBound(all, l.Content, l.Confidence)
 	case Weibull:
-		// The handbook closed-form factor at the two usual levels; the
-		// exact pivotal factor (Monte Carlo) at any other level.
-		if b, err := stats.WeibullApproxLowerBound(all, l.Content, l.Confidence); err == nil || !errors.Is(err, stats.ErrDomain) {
+		// At the two usual levels the exact pivotal factor from the
+		// built-in table up to 100 values and the handbook closed form
+		// above (stats.WeibullBasisV); the exact pivotal factor by Monte
+		// Carlo at any other level.
+		if b, err := stats.WeibullBasisLowerBound(all, l.Content, l.Confidence); err == nil || !errors.Is(err, stats.ErrDomain) {
 			return b, err
 		}
 		fallthrough
@@ -87,7 +89,7 @@ func computeBasis(r *Result, opt Options) error {
 		}
 		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g, factor %.5g", method, b.N, lv.l.Content, lv.l.Confidence, b.Factor)
 		if b.MCStdErr > 0 {
-			reason += fmt.Sprintf(", Monte Carlo standard error %.3g (%d samples, seed %d)", b.MCStdErr, opt.Sims, opt.Seed)
+			reason += fmt.Sprintf(", Monte Carlo standard error %.3g (%d samples, seed %d)", b.MCStdErr, int(b.Params["sims"]), uint64(b.Params["seed"]))
 		}
 		if ps := paramText(b.Params); ps != "" {
 			reason += "; " + ps
@@ -103,6 +105,9 @@ func computeBasis(r *Result, opt Options) error {
 func paramText(p map[string]float64) string {
 	keys := make([]string, 0, len(p))
 	for k := range p {
+		if k == "sims" || k == "seed" {
+			continue // stated with the Monte Carlo standard error
+		}
 		keys = append(keys, k)
 	}
 	sort.Strings(keys)

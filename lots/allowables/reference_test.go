@@ -10,6 +10,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/units"
+	"lotproof/stats"
 )
 
 // ref is testdata/allowables/ref.json, made by make_ref.py beside it with
@@ -102,7 +103,9 @@ func TestPooledNormalNISTSiRstv(t *testing.T) {
 // Models and Methods for Lifetime Data (typed in from memory). Lawless
 // reports the MLE shape 2.102 and scale 81.88 (from memory; checked to 4
 // digits). The handbook closed-form B- and A-basis values agree with an
-// independent scipy implementation to 1e-7; the exact pivotal bound
+// independent scipy implementation to 1e-7; the exact pivotal bound (from
+// the built-in table with the weibull method, by Monte Carlo with
+// weibull-exact)
 // (Thoman, Bain and Antle 1970) lies within the 99.9% interval of a numpy
 // simulation with 200,000 samples, widened by 4 of our Monte Carlo
 // standard errors.
@@ -122,27 +125,34 @@ func TestWeibullBallBearings(t *testing.T) {
 	if rel(float64(res.Parameters["shape"]), r.Shape) > 1e-9 || rel(float64(res.Parameters["scale"]), r.Scale) > 1e-9 {
 		t.Errorf("MLE %.12g %.12g, scipy brentq %.12g %.12g", float64(res.Parameters["shape"]), float64(res.Parameters["scale"]), r.Shape, r.Scale)
 	}
-	if rel(float64(res.BBasis), r.BApprox) > 1e-7 || rel(float64(res.ABasis), r.AApprox) > 1e-7 {
-		t.Errorf("handbook A %.10g B %.10g, want %.10g %.10g", float64(res.ABasis), float64(res.BBasis), r.AApprox, r.BApprox)
+	ca, err1 := stats.WeibullApproxLowerBound(r.Values, 0.99, 0.95)
+	cb, err2 := stats.WeibullApproxLowerBound(r.Values, 0.90, 0.95)
+	if err1 != nil || err2 != nil || rel(cb.Value, r.BApprox) > 1e-7 || rel(ca.Value, r.AApprox) > 1e-7 {
+		t.Errorf("handbook closed form A %.10g B %.10g, want %.10g %.10g (%v %v)", ca.Value, cb.Value, r.AApprox, r.BApprox, err1, err2)
 	}
+	// The weibull method at n = 23 uses the exact factor from the
+	// built-in table: it must agree with the exact bound as well.
+	checkExact := func(label string, res Result) {
+		for _, c := range []struct {
+			name         string
+			b            Basis
+			lo, hi, want float64
+		}{{"A", res.A, r.AExactLo, r.AExactHi, r.AExact}, {"B", res.B, r.BExactLo, r.BExactHi, r.BExact}} {
+			v, se := float64(c.b.Value), float64(c.b.MCStdErr)
+			if math.IsNaN(se) || se <= 0 {
+				t.Errorf("%s %s: no Monte Carlo standard error reported", label, c.name)
+				continue
+			}
+			if v < c.lo-4*se || v > c.hi+4*se {
+				t.Errorf("%s %s %.6g (se %.3g) outside the reference interval [%.6g, %.6g] (numpy estimate %.6g)", label, c.name, v, se, c.lo, c.hi, c.want)
+			}
+		}
+	}
+	checkExact("weibull (table)", res)
 	opt.Method, opt.Sims = WeibullExact, 20000
 	rep, err = Analyze(d, opt, "2026-12-02")
 	if err != nil {
 		t.Fatal(err)
 	}
-	res = rep.Results[0]
-	for _, c := range []struct {
-		name         string
-		b            Basis
-		lo, hi, want float64
-	}{{"A", res.A, r.AExactLo, r.AExactHi, r.AExact}, {"B", res.B, r.BExactLo, r.BExactHi, r.BExact}} {
-		v, se := float64(c.b.Value), float64(c.b.MCStdErr)
-		if math.IsNaN(se) || se <= 0 {
-			t.Errorf("%s: no Monte Carlo standard error reported", c.name)
-			continue
-		}
-		if v < c.lo-4*se || v > c.hi+4*se {
-			t.Errorf("%s exact %.6g (se %.3g) outside the reference interval [%.6g, %.6g] (numpy estimate %.6g)", c.name, v, se, c.lo, c.hi, c.want)
-		}
-	}
+	checkExact("weibull-exact", rep.Results[0])
 }
