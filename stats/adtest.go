@@ -71,6 +71,7 @@ func adNormalStat(x []float64) (float64, NormalFit, error) {
 // 730-737 (case 3: mean and variance estimated); the logistic OSL curve
 // reproduces Stephens' upper-tail critical values 0.656, 0.787, 0.918,
 // 1.092 (10, 5, 2.5, 1 %) to about ±0.001 in probability.
+// Callers ensure n >= ADNormalMinN, where the factor is positive.
 func normalOSL(a2 float64, n int) (adj, osl float64) {
 	nf := float64(n)
 	adj = (1 + 4/nf - 25/(nf*nf)) * a2
@@ -96,6 +97,32 @@ func logisticOSL(adj, c0, c1, c2 float64) float64 {
 	return 1 / (1 + math.Exp(c0+c1*math.Log(adj)+c2*adj))
 }
 
+// ADNormalMinN is the fewest values for which ADNormal and ADLognormal
+// give an OSL. The CMH-17-1G factor 1 + 4/n - 25/n² is negative for
+// n <= 3 (n² + 4n - 25 < 0), so no OSL exists there, and for 4 <= n <= 7
+// the rule is defined but far from its nominal level: by simulation of
+// normal samples (testdata/stats/make_ad_small_ref.py, numpy and scipy,
+// 200,000 samples per n) the chance that a normal sample gets OSL <= 0.05
+// is 0.000 at n = 4, 0.001 at n = 5, 0.013 at n = 6, 0.026 at n = 7,
+// 0.037 at n = 8 and 0.051 at n = 10. Stephens' percentage points of the
+// modified statistic are stated for n >= 8 (Stephens 1974, J. Amer.
+// Statist. Assoc. 69, 730-737; from memory). Below 8 values the tests
+// return ErrTooFew ("not enough values for a goodness-of-fit test").
+const ADNormalMinN = 8
+
+// ADWeibullMinN is the fewest values for which ADWeibull gives an OSL: the
+// factor 1 + 0.2/√n stays positive, and by simulation of Weibull samples
+// (make_ad_small_ref.py, 20,000 per n) the Weibull rule keeps roughly its
+// level at small n: chance of OSL <= 0.05 about 0.013 at n = 3, 0.040 at
+// n = 4, 0.047 at n = 5. Three values is the fewest a two-parameter
+// maximum-likelihood fit with a residual can use.
+const ADWeibullMinN = 3
+
+// errADTooFew is the refusal of a goodness-of-fit test on too few values.
+func errADTooFew(model string, n, min int) error {
+	return fmt.Errorf("not enough values for a goodness-of-fit test: the Anderson-Darling %s rule needs at least %d values, have %d: %w", model, min, n, ErrTooFew)
+}
+
 // adWarnings flags very small samples: the modified-statistic percentage
 // points of Stephens (1974, 1977) are stated for n >= 8 or so (from
 // memory; common practice is to treat the OSL as rough below that).
@@ -115,10 +142,11 @@ func adWarnings(n int) []string {
 // 4.58 AD*)) (CMH-17-1G Vol. 1 section 8.3.4; factor from Stephens 1974).
 // The usual decision rule rejects normality when OSL <= 0.05.
 //
-// It needs at least 3 finite values that are not all equal.
+// It needs at least ADNormalMinN (8) finite values that are not all equal;
+// with fewer it returns ErrTooFew (see ADNormalMinN for why).
 func ADNormal(x []float64) (ADResult, error) {
-	if len(x) < 3 {
-		return ADResult{}, fmt.Errorf("anderson-darling normal: %d values, need at least 3: %w", len(x), ErrTooFew)
+	if len(x) < ADNormalMinN {
+		return ADResult{}, errADTooFew("normal", len(x), ADNormalMinN)
 	}
 	a2, _, err := adNormalStat(x)
 	if err != nil {
@@ -132,10 +160,11 @@ func ADNormal(x []float64) (ADResult, error) {
 // normal test of ADNormal applied to ln x (CMH-17-1G Vol. 1 section 8.3.4,
 // lognormal model), with the same AD* and OSL formulas.
 //
-// It needs at least 3 finite, strictly positive values, not all equal.
+// It needs at least ADNormalMinN (8) finite, strictly positive values, not
+// all equal; with fewer it returns ErrTooFew.
 func ADLognormal(x []float64) (ADResult, error) {
-	if len(x) < 3 {
-		return ADResult{}, fmt.Errorf("anderson-darling lognormal: %d values, need at least 3: %w", len(x), ErrTooFew)
+	if len(x) < ADNormalMinN {
+		return ADResult{}, errADTooFew("lognormal", len(x), ADNormalMinN)
 	}
 	lx, err := logs(x, "anderson-darling lognormal")
 	if err != nil {
@@ -162,8 +191,8 @@ func ADLognormal(x []float64) (ADResult, error) {
 // It needs at least 3 finite, strictly positive values with at least 2
 // distinct.
 func ADWeibull(x []float64) (ADResult, error) {
-	if len(x) < 3 {
-		return ADResult{}, fmt.Errorf("anderson-darling weibull: %d values, need at least 3: %w", len(x), ErrTooFew)
+	if len(x) < ADWeibullMinN {
+		return ADResult{}, errADTooFew("Weibull", len(x), ADWeibullMinN)
 	}
 	f, err := FitWeibull(x)
 	if err != nil {

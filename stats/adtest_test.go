@@ -1,7 +1,10 @@
 package stats
 
 import (
+	"errors"
 	"math"
+	"math/rand/v2"
+	"strings"
 	"testing"
 )
 
@@ -31,15 +34,34 @@ func TestADStatisticAgainstScipy(t *testing.T) {
 		t.Fatalf("only %d sets", len(ref.Sets))
 	}
 	for _, s := range ref.Sets {
+		if len(s.X) < ADNormalMinN {
+			// Too few values for the normal rule's OSL: the tests refuse,
+			// but the statistic itself still matches scipy.
+			if _, err := ADNormal(s.X); !errors.Is(err, ErrTooFew) {
+				t.Errorf("%s: n = %d accepted by ADNormal (%v)", s.Name, len(s.X), err)
+			}
+			if _, err := ADLognormal(s.X); !errors.Is(err, ErrTooFew) {
+				t.Errorf("%s: n = %d accepted by ADLognormal (%v)", s.Name, len(s.X), err)
+			}
+			a2, _, err := adNormalStat(s.X)
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkRel(t, s.Name+" A² normal (scipy anderson norm)", a2, s.A2Norm, 1e-10)
+		}
 		rn, err := ADNormal(s.X)
 		if err != nil {
-			t.Errorf("%s: %v", s.Name, err)
+			if len(s.X) >= ADNormalMinN {
+				t.Errorf("%s: %v", s.Name, err)
+			}
 		} else {
 			checkRel(t, s.Name+" A² normal (scipy anderson norm)", rn.Statistic, s.A2Norm, 1e-10)
 		}
 		rl, err := ADLognormal(s.X)
 		if err != nil {
-			t.Errorf("%s: %v", s.Name, err)
+			if len(s.X) >= ADNormalMinN {
+				t.Errorf("%s: %v", s.Name, err)
+			}
 		} else {
 			// 1e-9: ln x near 13.8 (near_1e6 set) leaves ~1e-11 in z.
 			checkRel(t, s.Name+" A² lognormal (scipy anderson norm on ln x)", rl.Statistic, s.A2Lognorm, 1e-9)
@@ -137,8 +159,84 @@ func TestADEdgeCases(t *testing.T) {
 	if err != nil || math.IsInf(r.Statistic, 0) || math.IsNaN(r.Statistic) || r.OSL > 1e-6 {
 		t.Errorf("outlier case: %+v %v", r, err)
 	}
-	r, err = ADNormal([]float64{1, 2, 4})
-	if err != nil || len(r.Warnings) == 0 {
-		t.Errorf("n=3 should warn: %+v %v", r, err)
+	// n = 3: the factor 1 + 4/n - 25/n² is negative; the OSL used to come
+	// out as 1.0000 (a "perfect fit"). Now the test is refused.
+	for _, x := range [][]float64{{1, 2, 4}, {500, 510, 495}} {
+		if r, err := ADNormal(x); !errors.Is(err, ErrTooFew) || !strings.Contains(err.Error(), "not enough values for a goodness-of-fit test") {
+			t.Errorf("n=3 normal: %+v %v", r, err)
+		}
+		if r, err := ADLognormal(x); !errors.Is(err, ErrTooFew) {
+			t.Errorf("n=3 lognormal: %+v %v", r, err)
+		}
+		if r, err := ADWeibull(x); err != nil || len(r.Warnings) == 0 || !(r.OSL > 0 && r.OSL < 1) {
+			t.Errorf("n=3 Weibull should give a rough OSL with a warning: %+v %v", r, err)
+		}
+	}
+}
+
+// TestADSmallSampleLevels: the chance that a sample from the model itself
+// gets OSL <= 0.05 (or 0.10), simulated here and by numpy/scipy
+// (testdata/stats/make_ad_small_ref.py, 200,000 normal samples per n,
+// 20,000 Weibull samples per n), must agree within 4 binomial standard
+// errors. The reference shows why ADNormal refuses n < 8: the normal rule
+// almost never rejects there (0.000 at n = 4, 0.026 at n = 7 for a nominal
+// 0.05).
+func TestADSmallSampleLevels(t *testing.T) {
+	type lv struct {
+		N                int
+		Sims             int
+		Level05, Level10 float64
+	}
+	var ref struct {
+		Normal, Weibull []lv
+	}
+	loadJSON(t, "../testdata/stats/ad_small_ref.json", &ref)
+	if len(ref.Normal) < 5 || len(ref.Weibull) < 3 {
+		t.Fatalf("reference: %d normal, %d Weibull rows", len(ref.Normal), len(ref.Weibull))
+	}
+	for _, r := range ref.Normal {
+		if r.N < ADNormalMinN && r.Level05 > 0.03 {
+			t.Errorf("n = %d refused but the rule's level is %.4f", r.N, r.Level05)
+		}
+	}
+	rng := rand.New(rand.NewPCG(3, 4))
+	sim := func(test func([]float64) (ADResult, error), n, reps int, draw func() float64) (float64, float64) {
+		x := make([]float64, n)
+		c5, c10 := 0, 0
+		for range reps {
+			for i := range x {
+				x[i] = draw()
+			}
+			r, err := test(x)
+			if err != nil {
+				t.Fatalf("n=%d: %v", n, err)
+			}
+			if r.OSL <= 0.05 {
+				c5++
+			}
+			if r.OSL <= 0.10 {
+				c10++
+			}
+		}
+		return float64(c5) / float64(reps), float64(c10) / float64(reps)
+	}
+	check := func(name string, n, reps int, got5, got10 float64, r lv) {
+		for _, c := range []struct{ got, want float64 }{{got5, r.Level05}, {got10, r.Level10}} {
+			se := math.Sqrt(c.want*(1-c.want)/float64(reps) + c.want*(1-c.want)/float64(r.Sims))
+			if math.Abs(c.got-c.want) > 4*se+1e-4 {
+				t.Errorf("%s n=%d: level %.4f here, %.4f by numpy (se %.4f)", name, n, c.got, c.want, se)
+			}
+		}
+	}
+	for _, r := range ref.Normal {
+		if r.N < ADNormalMinN {
+			continue
+		}
+		g5, g10 := sim(ADNormal, r.N, 20000, rng.NormFloat64)
+		check("normal", r.N, 20000, g5, g10, r)
+	}
+	for _, r := range ref.Weibull {
+		g5, g10 := sim(ADWeibull, r.N, 10000, rng.ExpFloat64)
+		check("Weibull", r.N, 10000, g5, g10, r)
 	}
 }

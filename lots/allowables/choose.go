@@ -58,6 +58,7 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 		test func([]float64) (stats.ADResult, error)
 	}
 	chosen := ""
+	untested := 0
 	for _, c := range []cand{{Weibull, stats.ADWeibull}, {Normal, stats.ADNormal}, {Lognormal, stats.ADLognormal}} {
 		label := "goodness of fit: " + c.name + " (Anderson-Darling)"
 		if (c.name == Weibull || c.name == Lognormal) && r.Min <= 0 {
@@ -65,6 +66,13 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 			continue
 		}
 		ad, err := c.test(all)
+		if errors.Is(err, stats.ErrTooFew) {
+			// Too few values for the rule's OSL (stats.ADNormalMinN): the
+			// distribution is not assumed without a test.
+			untested++
+			r.step(label, math.NaN(), opt.OSLMin, "not enough values for a goodness-of-fit test", err.Error())
+			continue
+		}
 		if err != nil {
 			r.step(label, math.NaN(), opt.OSLMin, "not tested", err.Error())
 			continue
@@ -85,13 +93,18 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 		r.shape = chosen
 		return chosen, nil
 	}
+	why := "no distribution fits"
+	if untested > 0 {
+		why = "no distribution fits or could be tested"
+		r.warn("with %d values not every distribution can be checked by the Anderson-Darling test (normal and lognormal need at least %d values, Weibull at least %d); a distribution that cannot be checked is not assumed", r.N, stats.ADNormalMinN, stats.ADWeibullMinN)
+	}
 	if r.N >= minNonparamB {
-		r.step("distribution choice", float64(r.N), minNonparamB, "no distribution fits: nonparametric",
+		r.step("distribution choice", float64(r.N), minNonparamB, why+": nonparametric",
 			fmt.Sprintf("order-statistic bound; n = %d is at least %d", r.N, minNonparamB))
 		return Nonparametric, nil
 	}
-	r.step("distribution choice", float64(r.N), minNonparamB, "no distribution fits: Hanson-Koopmans",
-		fmt.Sprintf("n = %d is below %d, too few for the order-statistic B-basis bound", r.N, minNonparamB))
+	r.step("distribution choice", float64(r.N), minNonparamB, why+": Hanson-Koopmans",
+		fmt.Sprintf("distribution-free bound; n = %d is below %d, too few for the order-statistic B-basis bound", r.N, minNonparamB))
 	return HansonKoop, nil
 }
 
