@@ -520,6 +520,12 @@ func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 		r.step("outlier screen", math.NaN(), math.NaN(), "no outliers",
 			fmt.Sprintf("maximum normed residual test at alpha %g within each lot of 4 or more values and over all data", opt.OutlierAlpha))
 	} else {
-		r.warn("%d value(s) flagged as outliers and kept; investigate them and exclude only with a documented physical cause", len(r.Outliers))
+		// A value flagged within its lot and over all data is one value:
+		// count specimens, not flags.
+		seen := map[string]bool{}
+		for _, o := range r.Outliers {
+			seen[o.Specimen] = true
+		}
+		r.warn("%d value(s) flagged as outliers (within a lot, over all data or both) and kept; investigate them and exclude only with a documented physical cause", len(seen))
 	}
 }

@@ -1,6 +1,7 @@
 package allowables
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -57,5 +58,48 @@ func TestSmallSampleDistributionChoice(t *testing.T) {
 	}
 	if !strings.Contains(strings.Join(r.Warnings, " "), "cannot be checked is not assumed") {
 		t.Errorf("warnings: %v", r.Warnings)
+	}
+}
+
+// TestOutlierWarningCountsValues: a value flagged both within its lot and
+// over all data is one value in the warning. The flags themselves follow
+// the maximum normed residual test of CMH-17-1G 8.3.3 (critical values
+// checked against scipy in stats/outlier_test.go); here 150 lies 1.788 SD
+// from the mean of its lot of 5 (critical value 1.715 at alpha 0.05) and
+// 2.843 SD from the mean of all 10 values (critical 2.290; both by
+// scipy.stats.t.isf, computed for this comment). The MNR values recorded
+// are checked against these.
+func TestOutlierWarningCountsValues(t *testing.T) {
+	vals := []float64{100, 101, 99, 100.5, 150, 100, 101, 99, 100.2, 100.8}
+	rep, err := Analyze(dataset(vals, func(i int) string { return []string{"L1", "L2"}[i/5] }), DefaultOptions(), "2026-12-02")
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := rep.Results[0]
+	within := map[string]int{}
+	for _, o := range r.Outliers {
+		within[o.Within]++
+		if o.Specimen != "4" {
+			t.Errorf("flagged %+v", o)
+		}
+		want := map[string][2]float64{"lot L1": {1.7878720022855585, 1.7150373121065823}, "all data": {2.8430748419086416, 2.2899540844796067}}[o.Within]
+		if math.Abs(float64(o.MNR)-want[0]) > 1e-9 || math.Abs(float64(o.Critical)-want[1]) > 1e-6 {
+			t.Errorf("%s: MNR %v critical %v, scipy %v", o.Within, o.MNR, o.Critical, want)
+		}
+	}
+	if within["lot L1"] != 1 || within["all data"] != 1 {
+		t.Fatalf("flags %v", within)
+	}
+	found := false
+	for _, w := range r.Warnings {
+		if strings.Contains(w, "flagged as outliers") {
+			found = true
+			if !strings.HasPrefix(w, "1 value(s) flagged") {
+				t.Errorf("warning counts the value twice: %q", w)
+			}
+		}
+	}
+	if !found {
+		t.Errorf("no outlier warning: %v", r.Warnings)
 	}
 }
