@@ -134,8 +134,13 @@ func campaignWarnings(r *Result) {
 	if b, sd := float64(r.BBasis), float64(r.SD); !math.IsNaN(b) && b > min+sd {
 		r.warn("the B-basis value %.4g lies more than one standard deviation above the lowest observed value %.4g", b, min)
 	}
-	if a := float64(r.ABasis); !math.IsNaN(a) && a <= 0 {
-		r.warn("the A-basis value is not positive: the data cannot support an A-basis value by this method")
+	for _, v := range []struct {
+		name  string
+		value float64
+	}{{"A", float64(r.ABasis)}, {"B", float64(r.BBasis)}} {
+		if !math.IsNaN(v.value) && v.value <= 0 {
+			r.warn("the %s-basis value is not positive: the data cannot support a %s-basis value by this method", v.name, v.name)
+		}
 	}
 }
 

@@ -103,3 +103,27 @@ func TestOutlierWarningCountsValues(t *testing.T) {
 		t.Errorf("no outlier warning: %v", r.Warnings)
 	}
 }
+
+// TestNegativeBasisWarnings: a negative B-basis value gets the same warning
+// as a negative A-basis value. Ten values 1..10 (mean 5.5, SD 3.028) with
+// the normal method: B = 5.5 - 2.355 x 3.028 < 0 with k(10; 0.90, 0.95) =
+// 2.355 (Natrella 1963, NBS Handbook 91, Table A-7; from memory, checked
+// against scipy in stats).
+func TestNegativeBasisWarnings(t *testing.T) {
+	opt := DefaultOptions()
+	opt.Method = Normal
+	rep, err := Analyze(dataset([]float64{1, 5, 9, 2, 8, 3, 7, 4, 6, 10}, func(int) string { return "L1" }), opt, "2026-12-02")
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := rep.Results[0]
+	if b := float64(r.BBasis); math.Abs(b-(5.5-2.355*3.0276503540974917)) > 0.01 || b >= 0 {
+		t.Fatalf("B-basis %v", b)
+	}
+	w := strings.Join(r.Warnings, "\n")
+	for _, l := range []string{"A", "B"} {
+		if !strings.Contains(w, "the "+l+"-basis value is not positive") {
+			t.Errorf("no %s-basis warning: %s", l, w)
+		}
+	}
+}
