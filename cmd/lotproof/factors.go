@@ -45,7 +45,8 @@ A-basis is P = 0.99, B-basis P = 0.90, both at C = 0.95):
                   by seeded Monte Carlo (--sims, --seed); shows its standard error
   nonparametric   the rank r of the order statistic x(r) when n is large
                   enough (CMH-17-1G 8.3.4.5.1), otherwise the Hanson-Koopmans
-                  factor k in  x(n) (x(1)/x(n))^k  (Hanson and Koopmans 1964)
+                  factor k in  x(r) (x(1)/x(r))^k  (Hanson and Koopmans 1964)
+                  with the rank r shown, the one allowables applies
 
 --n takes ranges and lists (2-30 or 5,10,20 or 2-10,50); fractions may be
 written as 0.9 or 90%.`,
@@ -249,12 +250,14 @@ func runFactors(o factorsOptions, st streams) error {
 							row.Method, row.Factor, row.Rank = "order-statistic", float64(r), r
 							note("order-statistic: bound = x(r), the r-th smallest value (factor = r)")
 						} else {
-							k, err := stats.HansonKoopmansK(n, n, p, g)
+							// The rank the allowables procedure applies.
+							r := stats.HansonKoopmansRank(n, p, g)
+							k, err := stats.HansonKoopmansK(n, r, p, g)
 							if err != nil {
 								return err
 							}
-							row.Method, row.Factor, row.Rank = "hanson-koopmans", k, n
-							note("hanson-koopmans: bound = x(r) (x(1)/x(r))^k with r = n (the largest value), for n below the order-statistic minimum")
+							row.Method, row.Factor, row.Rank = "hanson-koopmans", k, r
+							note("hanson-koopmans: bound = x(r) (x(1)/x(r))^k for n below the order-statistic minimum, with the rank r the allowables command applies (CMH-17-1G Table 8.5.14 for the B-basis up to n = 28, otherwise the largest value, r = n)")
 						}
 					}
 					res.Rows = append(res.Rows, row)

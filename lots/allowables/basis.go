@@ -33,7 +33,8 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 		return stats.WeibullLowerBound(all, l.Content, l.Confidence, stats.WeibullMCOptions{Sims: opt.Sims, Seed: opt.Seed})
 	case Nonparametric:
 		// The order statistic when n is large enough for the level,
-		// otherwise Hanson-Koopmans with the largest value as x_(r).
+		// otherwise Hanson-Koopmans with the handbook's rank
+		// (stats.HansonKoopmansRank).
 		return stats.NonparametricLowerBound(all, l.Content, l.Confidence, stats.NonparametricOptions{})
 	case HansonKoop:
 		return hansonKoopmans(all, l)
