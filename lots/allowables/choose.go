@@ -38,7 +38,7 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 				decision = "lots differ: ANOVA method"
 			}
 			r.step("lot comparison (k-sample Anderson-Darling)", ks.Statistic, ks.Critical, decision,
-				fmt.Sprintf("A2akN %.4f against critical value %.4f at alpha %g (Scholz and Stephens 1987; %d lots, %d values; standardized %.3f, p %s)",
+				fmt.Sprintf("A2akN %.4f against critical value %.4f at alpha %g (Scholz and Stephens 1987; %d lots, %d values; standardized %.3f, %s)",
 					ks.Statistic, ks.Critical, opt.LotAlpha, ks.K, ks.N, ks.Standardized, pText(ks.PValue, ks.PValueNote)))
 			if ks.Differ {
 				if r.Lots < FewLotsANOVA {
@@ -108,11 +108,13 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 	return HansonKoop, nil
 }
 
+// pText is "p 0.1234", or the note when the p-value lies outside the
+// tabulated range (the note says "p-value ...").
 func pText(p float64, note string) string {
 	if note != "" {
 		return note
 	}
-	return fmt.Sprintf("%.4f", p)
+	return fmt.Sprintf("p %.4f", p)
 }
 
 // campaignWarnings adds the warnings about the size and shape of the

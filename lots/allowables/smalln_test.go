@@ -127,3 +127,31 @@ func TestNegativeBasisWarnings(t *testing.T) {
 		}
 	}
 }
+
+// TestLotComparisonPValueText: the k-sample Anderson-Darling step states
+// the p-value once, whether interpolated ("p 0.1234") or outside the
+// range tabulated by Scholz and Stephens (1987, Table 1) ("p-value below
+// 0.001 ..."), never "p p-value".
+func TestLotComparisonPValueText(t *testing.T) {
+	var far []float64
+	for i := range 20 {
+		far = append(far, float64(100*(1+i/10)+i%10))
+	}
+	for _, c := range []struct {
+		vals []float64
+		want string
+	}{
+		{far, "p-value below 0.001"},
+		{[]float64{100, 101, 102, 103, 104, 200, 201, 202, 203, 204}, ", p 0."},
+		{[]float64{100, 103, 101, 104, 102, 101.5, 103.5, 100.5, 102.5, 104.5}, "p-value above 0.25"},
+	} {
+		half := len(c.vals) / 2
+		rep, err := Analyze(dataset(c.vals, func(i int) string { return []string{"L1", "L2"}[i/half] }), DefaultOptions(), "2026-12-02")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if s, ok := stepOf(rep.Results[0], "lot comparison (k-sample"); !ok || strings.Contains(s.Reason, "p p-value") || !strings.Contains(s.Reason, c.want) {
+			t.Errorf("want %q: step %+v", c.want, s)
+		}
+	}
+}

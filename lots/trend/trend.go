@@ -103,7 +103,7 @@ type Series struct {
 	BaselineLots int        `json:"baseline_lots"`
 	Center       lots.Float `json:"center"` // mean of the baseline lot means
 	MRBar        lots.Float `json:"mr_bar"` // mean moving range of the baseline lot means
-	Sigma        lots.Float `json:"sigma"`  // MRbar/d2, d2 = 1.128
+	Sigma        lots.Float `json:"sigma"`  // MRbar/d2, d2 = 2/√π ≈ 1.128
 	Lower        lots.Float `json:"lcl"`    // individuals chart
 	Upper        lots.Float `json:"ucl"`    // individuals chart
 	SBar         lots.Float `json:"s_bar"`  // S chart centre
@@ -132,7 +132,7 @@ const Caution = "Trend signals and capability estimates support, and never repla
 // Methods lists the methods, with their sources, in every result.
 func methods(o Options) []string {
 	return []string{
-		"Lot means charted as individuals; limits centre ± 3·MRbar/d2 with d2 = 1.128 (moving range of span 2) from the baseline lots (Montgomery, Introduction to Statistical Quality Control, 7th ed., §6.4; ASTM MNL 7A, Part 3).",
+		"Lot means charted as individuals; limits centre ± 3·MRbar/d2 with d2 = 2/√π ≈ 1.128, the exact mean range of two normal values (moving range of span 2) from the baseline lots (Montgomery, Introduction to Statistical Quality Control, 7th ed., §6.4; ASTM MNL 7A, Part 3).",
 		"Baseline (Phase I): the lots of the baseline periods, less rejected lots and lots beyond trial limits from the median moving range (σ = median MR/0.954; Montgomery §6.2.1 and §6.4), screened once.",
 		"Lot SDs on an S chart: LCL = B3(n)·sbar, UCL = B4(n)·sbar, sbar the mean (equal n) or pooled (unequal n) baseline lot SD (Montgomery §6.3.1-6.3.2).",
 		"Run rules on the lot means: the four Western Electric zone rules (Statistical Quality Control Handbook, 1956): we1 one point beyond 3σ; we2 two of three beyond 2σ on one side; we3 four of five beyond 1σ on one side; we4 eight in a row on one side.",
