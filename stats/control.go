@@ -318,3 +318,51 @@ func IndividualsLimitsMedianMR(x []float64) (Limits, float64, error) {
 // MedianMRConstant is d4 = √2·Φ⁻¹(0.75), the median of the moving range
 // of span two of unit-variance normal values.
 func MedianMRConstant() float64 { return math.Sqrt2 * distuv.UnitNormal.Quantile(0.75) }
+
+// LotMeanSigmas returns the standard deviation of the mean of a lot of n
+// values for each n in sizes, under the one-way random-effects model
+// (Montgomery, Design and Analysis of Experiments, 8th ed., section 3.9):
+//
+//	Var(lot mean) = σ_b² + σ_w²/n
+//
+// with σ_w the within-lot standard deviation (sigmaWithin) and σ_b the
+// between-lot one. The moving-range sigma of the baseline lot means
+// (sigmaMeans) estimates the average of that variance over the baseline
+// lots, σ_b² + σ_w² h with h the mean of 1/n_j over the baseline sizes
+// baseN, so
+//
+//	σ̂_b² = max(0, sigmaMeans² - σ_w² h),  σ_i = sqrt(σ̂_b² + σ_w²/n_i).
+//
+// When σ̂_b = 0 this is the x-bar chart with variable sample size,
+// limits centre ± 3σ/√n_i (Montgomery, Introduction to Statistical Quality
+// Control, 7th ed., section 6.3.2); with equal sizes n it is
+// max(sigmaMeans, σ_w/√n). It also returns σ̂_b and the root-mean-square
+// sigma over the baseline lots, sqrt(σ̂_b² + σ_w² h) = max(sigmaMeans,
+// σ_w √h), the single sigma for statistics that average over lots (an
+// approximation, exact for equal sizes).
+func LotMeanSigmas(sigmaMeans, sigmaWithin float64, baseN, sizes []int) (sigmas []float64, between, rms float64, err error) {
+	if !(sigmaMeans >= 0) || !(sigmaWithin >= 0) || math.IsInf(sigmaMeans, 0) || math.IsInf(sigmaWithin, 0) {
+		return nil, math.NaN(), math.NaN(), fmt.Errorf("lot-mean sigmas need finite, non-negative sigmas (got %v, %v): %w", sigmaMeans, sigmaWithin, errCtlDomain)
+	}
+	if len(baseN) == 0 {
+		return nil, math.NaN(), math.NaN(), fmt.Errorf("lot-mean sigmas need the baseline lot sizes: %w", ErrTooFew)
+	}
+	h := 0.0
+	for _, n := range baseN {
+		if n < 1 {
+			return nil, math.NaN(), math.NaN(), fmt.Errorf("lot size %d: %w", n, errCtlDomain)
+		}
+		h += 1 / float64(n)
+	}
+	h /= float64(len(baseN))
+	w2 := sigmaWithin * sigmaWithin
+	b2 := math.Max(0, sigmaMeans*sigmaMeans-w2*h)
+	sigmas = make([]float64, len(sizes))
+	for i, n := range sizes {
+		if n < 1 {
+			return nil, math.NaN(), math.NaN(), fmt.Errorf("lot size %d: %w", n, errCtlDomain)
+		}
+		sigmas[i] = math.Sqrt(b2 + w2/float64(n))
+	}
+	return sigmas, math.Sqrt(b2), math.Sqrt(b2 + w2*h), nil
+}

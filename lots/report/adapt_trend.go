@@ -160,13 +160,18 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 	}
 	var out []Block
 	if !math.IsNaN(float64(s.Center)) {
-		labels, vals, _, _, signals, left := chart("ind", func(p trend.Point) float64 { return float64(p.Mean) }, nil, nil)
-		var lower, upper []float64
-		if !math.IsNaN(float64(s.Lower)) {
-			lower = []float64{float64(s.Lower)}
+		// Each lot's own limits (they depend on its size), else the series'.
+		own := func(v, series float64) float64 {
+			if math.IsNaN(v) {
+				return series
+			}
+			return v
 		}
-		if !math.IsNaN(float64(s.Upper)) {
-			upper = []float64{float64(s.Upper)}
+		labels, vals, lower, upper, signals, left := chart("ind", func(p trend.Point) float64 { return float64(p.Mean) },
+			func(p trend.Point) float64 { return own(float64(p.Lower), float64(s.Lower)) },
+			func(p trend.Point) float64 { return own(float64(p.Upper), float64(s.Upper)) })
+		if math.IsNaN(float64(s.Lower)) {
+			lower, upper = nil, nil
 		}
 		if len(vals) > 0 {
 			svg, err := ControlChart(ChartData{Title: "Lot means: " + name, XLabel: "lot, in test order", Quantity: "lot mean " + s.Property, Unit: s.Unit,

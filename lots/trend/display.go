@@ -51,7 +51,7 @@ func (r *Result) Display(sys units.System) {
 		}
 		for j := range s.Points {
 			p := &s.Points[j]
-			for _, v := range []*lots.Float{&p.Mean, &p.SD, &p.SLower, &p.SUpper, &p.EWMA, &p.EWMALow, &p.EWMAHigh} {
+			for _, v := range []*lots.Float{&p.Mean, &p.SD, &p.Lower, &p.Upper, &p.SLower, &p.SUpper, &p.EWMA, &p.EWMALow, &p.EWMAHigh} {
 				f(c, v)
 			}
 		}

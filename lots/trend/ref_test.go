@@ -37,6 +37,7 @@ type trendRef struct {
 		Lots            []string
 		EWMA            [][3]float64
 		SLimits         [][2]float64 `json:"s_limits"`
+		LotLimits       [][2]float64 `json:"lot_limits"`
 	} `json:"series"`
 	Signals [][4]string `json:"signals"`
 }
@@ -135,6 +136,8 @@ func TestTrendAgainstIndependentRecomputation(t *testing.T) {
 			near(t, "ewma", float64(p.EWMA), w.EWMA[i][0], 1e-12)
 			near(t, "ewma lcl", float64(p.EWMALow), w.EWMA[i][1], 1e-12)
 			near(t, "ewma ucl", float64(p.EWMAHigh), w.EWMA[i][2], 1e-12)
+			near(t, "lot lcl", float64(p.Lower), w.LotLimits[i][0], 1e-12)
+			near(t, "lot ucl", float64(p.Upper), w.LotLimits[i][1], 1e-12)
 			near(t, "s lcl", float64(p.SLower), w.SLimits[i][0], 1e-10)
 			near(t, "s ucl", float64(p.SUpper), w.SLimits[i][1], 1e-10)
 		}

@@ -83,6 +83,8 @@ type Point struct {
 	N        int        `json:"n"`
 	Mean     lots.Float `json:"mean"`
 	SD       lots.Float `json:"sd"`
+	Lower    lots.Float `json:"lcl"` // this lot's limits on the chart of lot means (they depend on its size)
+	Upper    lots.Float `json:"ucl"`
 	SLower   lots.Float `json:"s_lcl"`
 	SUpper   lots.Float `json:"s_ucl"`
 	EWMA     lots.Float `json:"ewma"`
@@ -133,6 +135,7 @@ const Caution = "Trend signals and capability estimates support, and never repla
 func methods(o Options) []string {
 	return []string{
 		"Lot means charted as individuals; limits centre ± 3·MRbar/d2 with d2 = 2/√π ≈ 1.128, the exact mean range of two normal values (moving range of span 2) from the baseline lots (Montgomery, Introduction to Statistical Quality Control, 7th ed., §6.4; ASTM MNL 7A, Part 3).",
+		"Each lot's own limits: centre ± 3·sqrt(σb² + σw²/n) for a lot of n specimens (one-way random-effects model; Montgomery, Design and Analysis of Experiments, §3.9), σw the within-lot SD from the baseline lot SDs (sbar/c4(n), or the pooled SD over c4 of its degrees of freedom + 1), σb² = max(0, σ² - σw²·mean of 1/n over the baseline lots) with σ = MRbar/d2; with σb = 0 this is the x-bar chart with variable sample size (Montgomery §6.3.2). The EWMA and the limits shown per series use the root-mean-square of these over the baseline lots.",
 		"Baseline (Phase I): the lots of the baseline periods, less rejected lots and lots beyond trial limits from the median moving range (σ = median MR/0.954; Montgomery §6.2.1 and §6.4), screened once.",
 		"Lot SDs on an S chart: LCL = B3(n)·sbar, UCL = B4(n)·sbar, sbar the mean (equal n) or pooled (unequal n) baseline lot SD (Montgomery §6.3.1-6.3.2).",
 		"Run rules on the lot means: the four Western Electric zone rules (Statistical Quality Control Handbook, 1956): we1 one point beyond 3σ; we2 two of three beyond 2σ on one side; we3 four of five beyond 1σ on one side; we4 eight in a row on one side.",
@@ -498,7 +501,7 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 	sr.BaselineLots = len(baseMeans)
 	for i, l := range ls {
 		sr.Points = append(sr.Points, Point{Lot: l.v.Lot, Period: l.period, Tested: l.v.Tested, N: len(l.v.Values), Mean: lots.Float(l.mean), SD: lots.Float(l.sd),
-			SLower: lots.NaN, SUpper: lots.NaN, EWMA: lots.NaN, EWMALow: lots.NaN, EWMAHigh: lots.NaN, Verdict: l.verdict, Baseline: base[i]})
+			Lower: lots.NaN, Upper: lots.NaN, SLower: lots.NaN, SUpper: lots.NaN, EWMA: lots.NaN, EWMALow: lots.NaN, EWMAHigh: lots.NaN, Verdict: l.verdict, Baseline: base[i]})
 	}
 	// The S chart centre from the baseline lots (used below for the floor
 	// of the lot-mean sigma as well).
@@ -518,25 +521,60 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		sbarErr = fmt.Errorf("needs two baseline lots with two or more specimens")
 	}
 	lim, mr, err := stats.IndividualsLimits(baseMeans)
-	if err == nil && sbarErr == nil && sbar > 0 {
-		// A lot mean varies at least as much as the within-lot scatter
-		// allows: Var(lot mean) = sigma_b^2 + sigma_w^2/n >= sigma_w^2/n
-		// (one-way random-effects model; Montgomery, Design and Analysis
-		// of Experiments, section 3.9). With a handful of baseline lots the
-		// moving range can fall well below that by chance, which draws
-		// limits too tight; the sigma of the lot means is then raised to
-		// the within-lot floor sbar/(c4 sqrt(n)).
-		nbar := 0
-		for _, n := range baseN {
-			nbar += n
+	// Each lot's mean gets its own sigma: Var(lot mean) = sigma_b^2 +
+	// sigma_w^2/n (one-way random-effects model; Montgomery, Design and
+	// Analysis of Experiments, section 3.9), with sigma_w from the baseline
+	// lot SDs and sigma_b^2 what the moving-range sigma leaves beyond the
+	// within-lot part (stats.LotMeanSigmas). A lot of 3 specimens gets
+	// wider limits than one of 10; with a handful of baseline lots the
+	// moving range can also fall below the within-lot part by chance, and
+	// then sigma_b is taken as zero. Without a within-lot estimate every lot
+	// uses the moving-range sigma.
+	sig := make([]float64, len(ls))
+	if err == nil {
+		for i := range sig {
+			sig[i] = lim.Sigma
 		}
-		nbar = int(math.Round(float64(nbar) / float64(len(baseN))))
-		if c4, cerr := stats.C4(nbar); cerr == nil {
-			if floor := sbar / c4 / math.Sqrt(float64(nbar)); lim.Sigma < floor {
-				sr.Notes = append(sr.Notes, fmt.Sprintf("the moving-range sigma of the lot means (%.4g) is below the within-lot floor sbar/(c4 sqrt n) = %.4g; the floor is used", lim.Sigma, floor))
-				lim.Sigma = floor
-				lim.Lower, lim.Upper = lim.Center-3*floor, lim.Center+3*floor
+	}
+	if err == nil && sbarErr == nil && sbar > 0 {
+		// sigma_w: sbar/c4(n) for equal baseline sizes (Montgomery, 7th
+		// ed., section 6.3.1); the pooled SD over c4(df+1), df = sum of
+		// (n_j - 1), for unequal sizes (the mean of a chi variable with
+		// df degrees of freedom is c4(df+1) sigma).
+		df := 0
+		equal := true
+		for _, n := range baseN {
+			df += n - 1
+			equal = equal && n == baseN[0]
+		}
+		cn := df + 1
+		if equal {
+			cn = baseN[0]
+		}
+		c4, cerr := stats.C4(cn)
+		sizes := make([]int, len(ls))
+		for i, l := range ls {
+			sizes[i] = len(l.v.Values)
+		}
+		var sw float64
+		if cerr == nil {
+			sw = sbar / c4
+		}
+		if s, between, rms, serr := stats.LotMeanSigmas(lim.Sigma, sw, baseN, sizes); cerr == nil && serr == nil {
+			if between == 0 {
+				sr.Notes = append(sr.Notes, fmt.Sprintf("the moving-range sigma of the lot means (%.4g) is below what the within-lot scatter alone gives (%.4g); the between-lot variation is taken as zero and each lot's limits are the centre ± 3 × within-lot SD (%.4g) / sqrt(specimens in the lot)", lim.Sigma, rms, sw))
 			}
+			copy(sig, s)
+			lim.Sigma = rms
+			lim.Lower, lim.Upper = lim.Center-3*rms, lim.Center+3*rms
+			if byN := perSizeLimits(lim.Center, sizes, s); len(byN) > 1 {
+				sr.Notes = append(sr.Notes, "each lot's limits depend on its number of specimens: "+strings.Join(byN, "; "))
+			}
+		}
+	}
+	for i := range ls {
+		if sig[i] > 0 {
+			sr.Points[i].Lower, sr.Points[i].Upper = lots.Float(lim.Center-3*sig[i]), lots.Float(lim.Center+3*sig[i])
 		}
 	}
 	if err != nil {
@@ -546,11 +584,17 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		if len(baseMeans) < 10 {
 			sr.Notes = append(sr.Notes, fmt.Sprintf("the limits rest on only %d baseline lots; treat signals as prompts to look, not conclusions", len(baseMeans)))
 		}
-		rs, _ := stats.WesternElectric(means, lim.Center, lim.Sigma)
+		// The run rules on the lot means standardized by each lot's own
+		// sigma.
+		z := make([]float64, len(means))
+		for i, m := range means {
+			z[i] = (m - lim.Center) / sig[i]
+		}
+		rs, _ := stats.WesternElectric(z, 0, 1)
 		for _, r := range rs {
 			l := ls[r.Index]
 			zone := []float64{0, 3, 2, 1, 0}[r.Rule]
-			limit := lim.Center + float64(r.Side)*zone*lim.Sigma
+			limit := lim.Center + float64(r.Side)*zone*sig[r.Index]
 			detail := map[int]string{
 				1: "lot mean beyond the 3-sigma limit",
 				2: "two of three consecutive lot means beyond 2 sigma on one side",
@@ -578,6 +622,9 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 		if len(accepted) < len(ls) {
 			sr.Notes = append(sr.Notes, "the EWMA leaves out lots rejected at receiving")
 		}
+		// One sigma for the EWMA, which averages over lots: the
+		// root-mean-square lot-mean sigma of the baseline (exact for equal
+		// lot sizes).
 		ew, err := stats.EWMA(accMeans, lim.Center, lim.Sigma, o.Lambda, o.L)
 		if err == nil {
 			for j, p := range ew {
@@ -638,6 +685,25 @@ func lotMeans(ls []lotOf, idx []int) []float64 {
 	out := make([]float64, len(idx))
 	for i, j := range idx {
 		out[i] = ls[j].mean
+	}
+	return out
+}
+
+// perSizeLimits lists the limits for each distinct lot size, in increasing
+// size: "3 specimens: 941.2..1012.4".
+func perSizeLimits(center float64, sizes []int, sig []float64) []string {
+	seen := map[int]float64{}
+	for i, n := range sizes {
+		seen[n] = sig[i]
+	}
+	ns := make([]int, 0, len(seen))
+	for n := range seen {
+		ns = append(ns, n)
+	}
+	sort.Ints(ns)
+	out := make([]string, len(ns))
+	for i, n := range ns {
+		out[i] = fmt.Sprintf("%d specimens: %.6g..%.6g", n, center-3*seen[n], center+3*seen[n])
 	}
 	return out
 }

@@ -5,7 +5,10 @@ Makes a synthetic lot history (random numbers, not the demo scenario) and
 recomputes, with numpy/scipy and nothing from lotproof, everything
 `lotproof trend` reports for it: per supplier/property/quarter the counts,
 mean, SD, Ppk, Bissell's bound and ppm below the minimum; per series the
-Phase I baseline (median-moving-range screen), the individuals limits, the
+Phase I baseline (median-moving-range screen), the individuals limits (per
+lot: centre +- 3 sqrt(sigma_b^2 + sigma_w^2/n_i), the x-bar chart with variable
+sample size of Montgomery, Introduction to Statistical Quality Control, 7th ed.,
+section 6.3.2, extended by a between-lot component), the
 S chart limits, the EWMA and the signals of the four Western Electric rules,
 the EWMA, the S chart and the Welch shift test on lot means.
 
@@ -85,11 +88,16 @@ for sup in ["Ondrake Works", "Vellmark Foundry"]:
         mr = np.abs(np.diff(bm)).mean()
         c, sig = bm.mean(), mr / d2
         bs, bn = sds[base], ns[base]
-        sbar = bs.mean() if len(set(bn)) == 1 else math.sqrt(((bn - 1) * bs ** 2).sum() / (bn - 1).sum())
-        # floor of the lot-mean sigma: within-lot sigma / sqrt(n)
-        nbar = int(round(bn.mean()))
-        floor = sbar / c4(nbar) / math.sqrt(nbar)
-        sig = max(sig, floor)
+        equal = len(set(bn)) == 1
+        sbar = bs.mean() if equal else math.sqrt(((bn - 1) * bs ** 2).sum() / (bn - 1).sum())
+        # Per-lot sigma of the lot mean, one-way random-effects model:
+        # Var(mean_i) = sb2 + sw^2/n_i; sw = sbar/c4(n) (equal sizes) or the
+        # pooled SD over c4(df+1) (unequal); sb2 = max(0, sig^2 - sw^2 mean(1/n_j)).
+        sw = sbar / (c4(int(bn[0])) if equal else c4(int((bn - 1).sum()) + 1))
+        h = np.mean(1.0 / bn)
+        sb2 = max(0.0, sig ** 2 - sw ** 2 * h)
+        lot_sig = np.sqrt(sb2 + sw ** 2 / ns)
+        sig = math.sqrt(sb2 + sw ** 2 * h)   # root-mean-square over the baseline: series sigma, EWMA
         z = c; ew = []
         for i, x in enumerate(means, start=1):
             z = lam * x + (1 - lam) * z
@@ -102,8 +110,9 @@ for sup in ["Ondrake Works", "Vellmark Foundry"]:
         out["series"].append({"group": sup, "property": prop, "baseline_lots": int(base.sum()),
                               "excluded": [order[i] for i in range(len(order)) if per[i] in base_p and not base[i]],
                               "center": c, "mr_bar": mr, "sigma": sig, "lcl": c - 3 * sig, "ucl": c + 3 * sig,
-                              "s_bar": sbar, "lots": order, "ewma": ew, "s_limits": sl})
-        zz = (means - c) / sig
+                              "s_bar": sbar, "lots": order, "ewma": ew, "s_limits": sl,
+                              "lot_limits": [[c - 3 * v, c + 3 * v] for v in lot_sig]})
+        zz = (means - c) / lot_sig
         for i in range(len(order)):
             side = 1 if zz[i] >= 0 else -1
             if abs(zz[i]) > 3:
