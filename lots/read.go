@@ -16,6 +16,7 @@ import (
 	"strconv"
 	"strings"
 
+	"lotproof/lots/input"
 	"lotproof/lots/units"
 )
 
@@ -436,9 +437,9 @@ func ReadFile(name string, opt ReadOptions) (*Dataset, error) {
 	if strings.EqualFold(filepath.Ext(name), ".xlsx") {
 		return ReadXLSX(name, opt.Sheet)
 	}
-	f, err := os.Open(name)
+	f, err := OpenInput(name, input.Results, nil)
 	if err != nil {
-		return nil, Inputf(name, "check the path", "cannot open the results file: %v", unwrapPath(err))
+		return nil, err
 	}
 	defer f.Close()
 	return ReadCSV(withProgress(f, opt.Progress), name)

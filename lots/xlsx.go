@@ -8,6 +8,8 @@ import (
 	"strings"
 
 	"github.com/xuri/excelize/v2"
+
+	"lotproof/lots/input"
 )
 
 type xlsxLocator struct {
@@ -32,19 +34,31 @@ func (l xlsxLocator) place(row, col int) string {
 // file:sheet!cell. Cells are read as displayed text and parsed as in CSV;
 // trailing empty cells of a row count as missing values.
 func ReadXLSX(name, sheet string) (*Dataset, error) {
-	f, err := os.Open(name)
+	f, size, err := input.OpenFile(name, input.Workbook)
 	if err != nil {
-		return nil, Inputf(name, "check the path", "cannot open the workbook: %v", unwrapPath(err))
+		return nil, fromInput(err)
 	}
 	defer f.Close()
+	if err := checkWorkbook(f, size, name); err != nil {
+		return nil, err
+	}
 	sum := sha256.New()
-	cnt := &countingReader{r: io.TeeReader(f, sum)}
-	book, err := excelize.OpenReader(cnt)
+	if _, err := io.Copy(sum, io.NewSectionReader(f, 0, size)); err != nil {
+		return nil, Inputf(name, "check that the file can be read", "cannot read the workbook: %v", err)
+	}
+	// excelize unpacks large worksheets into temporary files: they go to
+	// a private folder that is removed when the read ends or the command
+	// is interrupted.
+	tmp, done, err := input.TempDir("lotproof-xlsx-*")
+	if err != nil {
+		return nil, fmt.Errorf("%s: cannot make a temporary folder: %w", name, err)
+	}
+	defer done()
+	book, err := excelize.OpenFile(reopenPath(f, name), excelize.Options{UnzipSizeLimit: xlsxMaxTotal, TmpDir: tmp})
 	if err != nil {
 		return nil, Inputf(name, "save the workbook as .xlsx (Excel 2007 or later) and try again", "cannot read the workbook: %v", err)
 	}
 	defer book.Close()
-	io.Copy(io.Discard, cnt)
 	sheets := book.GetSheetList()
 	if sheet == "" {
 		if len(sheets) == 0 {
@@ -110,7 +124,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 	if len(d.Specimens) == 0 {
 		return nil, Inputf(fmt.Sprintf("%s:%s!A%d", name, sheet, row+1), "add one row per specimen below the header", "the sheet has a header but no specimen rows")
 	}
-	finish(d, h, sum, cnt.n)
+	finish(d, h, sum, size)
 	return d, nil
 }
 
@@ -121,4 +135,15 @@ func isBlank(cols []string) bool {
 		}
 	}
 	return true
+}
+
+// reopenPath names the open file f so that a second open reaches the same
+// file even if name was replaced in the meantime (Linux /proc/self/fd),
+// else name.
+func reopenPath(f *os.File, name string) string {
+	p := fmt.Sprintf("/proc/self/fd/%d", f.Fd())
+	if _, err := os.Stat(p); err == nil {
+		return p
+	}
+	return name
 }

@@ -1,0 +1,5 @@
+//go:build !unix
+
+package input
+
+const nonBlock = 0
