@@ -63,7 +63,7 @@ func newTable(name string) *table {
 func (t *table) parseHeader(fields []string, loc locator) bool {
 	h := &Header{idCol: -1, lotCol: -1, heatCol: -1, suppCol: -1, matCol: -1, testedCol: -1, condCol: -1, width: len(fields)}
 	names := map[string]int{}
-	ok := true
+	ok := t.checkText(fields, loc) // control, invalid and direction characters (text.go)
 	for i, raw := range fields {
 		f := strings.TrimSpace(raw)
 		if i == 0 {
@@ -166,7 +166,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			"give every row as many fields as the header (an empty field is a missing value)")
 		return false
 	}
-	ok := true
+	ok := t.checkText(fields, loc) // control, invalid and direction characters (text.go)
 	get := func(col int) string {
 		if col < 0 {
 			return ""

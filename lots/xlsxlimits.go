@@ -132,7 +132,7 @@ func checkZipDirectory(f io.ReaderAt, size int64, name string) error {
 func scanPart(r io.Reader, unit, name, part string) error {
 	br := bufio.NewReaderSize(r, 1<<16)
 	var (
-		pos, start int64 = 0, -1 // bytes read; where the current unit started
+		pos, start            int64 = 0, -1 // bytes read; where the current unit started
 		rows, cells, rowCells int64
 	)
 	maxUnit := int64(xlsxMaxRowBytes)

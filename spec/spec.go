@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -12,6 +11,7 @@ import (
 	"go.yaml.in/yaml/v3"
 
 	"lotproof/lots"
+	"lotproof/lots/input"
 	"lotproof/lots/units"
 )
 
@@ -79,9 +79,9 @@ const (
 
 // ReadFile reads and validates a specification file.
 func ReadFile(name string) (*Spec, error) {
-	b, err := os.ReadFile(name)
+	b, err := lots.ReadInput(name, input.Spec, nil)
 	if err != nil {
-		return nil, lots.Inputf(name, "check the file name", "cannot read specification: %v", err)
+		return nil, err
 	}
 	return Parse(name, b)
 }
@@ -124,6 +124,9 @@ func (p *parser) add(n *yaml.Node, fix, format string, args ...any) {
 	p.ps = append(p.ps, lots.Problem{Where: p.at(n), What: fmt.Sprintf(format, args...), Fix: fix})
 }
 
+// MaxProperties is the most properties a specification may list.
+const MaxProperties = 10000
+
 // Parse validates the YAML text of a specification; name is used in error
 // locations. Every problem is reported as a lots.Problem located at
 // file:line:column, all in one *lots.InputError.
@@ -131,6 +134,9 @@ func Parse(name string, data []byte) (*Spec, error) {
 	p := &parser{file: filepath.Base(name)}
 	if name == "-" {
 		p.file = "-"
+	}
+	if int64(len(data)) > input.Spec.MaxBytes {
+		return nil, lots.Inputf(p.file, input.Spec.Fix, "the specification is larger than the limit of %s", input.Size(input.Spec.MaxBytes))
 	}
 	var doc yaml.Node
 	dec := yaml.NewDecoder(bytes.NewReader(data))
@@ -262,6 +268,10 @@ func (p *parser) text(n *yaml.Node, key string) string {
 		p.add(n, "give a non-empty text value", "%s must be a non-empty text", key)
 		return ""
 	}
+	if off, bad, fix := lots.TextProblem(n.Value); off >= 0 {
+		p.add(n, fix, "%s %s", key, bad)
+		return ""
+	}
 	return strings.TrimSpace(n.Value)
 }
 
@@ -309,6 +319,10 @@ func (p *parser) limits(n *yaml.Node) []Limit {
 		p.add(n, "list each property as `name: {unit: MPa, min: 930}`", "properties must be a non-empty mapping from property name to its limits")
 		return nil
 	}
+	if len(n.Content)/2 > MaxProperties {
+		p.add(n, "a specification lists the properties it limits; check that the right file was named", "%d properties, more than the limit of %d", len(n.Content)/2, MaxProperties)
+		return nil
+	}
 	var out []Limit
 	seen := map[string]bool{}
 	for i := 0; i+1 < len(n.Content); i += 2 {
@@ -316,6 +330,10 @@ func (p *parser) limits(n *yaml.Node) []Limit {
 		name := strings.TrimSpace(k.Value)
 		if k.Kind != yaml.ScalarNode || name == "" {
 			p.add(k, "use the property name as in the data's column heading (without the unit)", "a property name must be a plain text")
+			continue
+		}
+		if off, bad, fix := lots.TextProblem(name); off >= 0 {
+			p.add(k, fix, "the property name %s", bad)
 			continue
 		}
 		if seen[strings.ToLower(name)] {

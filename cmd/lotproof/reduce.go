@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/input"
 	"lotproof/lots/progress"
 	"lotproof/lots/reduce"
 	"lotproof/lots/render"
@@ -121,7 +122,7 @@ func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
 	}
 	for _, p := range paths {
 		if p == "-" {
-			if err := parse(st.In, "-"); err != nil {
+			if err := parse(input.Limit(st.In, "-", input.Records), "-"); err != nil {
 				return nil, err
 			}
 			continue
@@ -132,9 +133,9 @@ func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
 			continue
 		}
 		if !fi.IsDir() {
-			f, err := os.Open(p)
+			f, err := lots.OpenInput(p, input.Records, nil)
 			if err != nil {
-				collect(lots.Inputf(p, "check the file's permissions", "cannot open: %v", unwrapPathErr(err)))
+				collect(err)
 				continue
 			}
 			err = parse(f, p)
@@ -161,9 +162,9 @@ func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
 		}
 		for _, n := range names {
 			fp := filepath.Join(p, n)
-			f, err := os.Open(fp)
+			f, err := lots.OpenInput(fp, input.Records, nil)
 			if err != nil {
-				collect(lots.Inputf(fp, "check the file's permissions", "cannot open: %v", unwrapPathErr(err)))
+				collect(err)
 				continue
 			}
 			err = parse(f, fp)

@@ -5,12 +5,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/input"
 	"lotproof/lots/render"
 	"lotproof/lots/sizing"
 	"lotproof/lots/units"
@@ -208,9 +208,9 @@ func sizeDesignValue(o sizeOptions) (float64, string, units.Unit, error) {
 		}
 		return o.DesignValue, "typed in", u, nil
 	}
-	b, err := os.ReadFile(o.From)
+	b, err := lots.ReadInput(o.From, input.AllowablesJSON, nil)
 	if err != nil {
-		return 0, "", units.Unit{}, lots.Inputf(o.From, "check the path", "cannot read: %v", err)
+		return 0, "", units.Unit{}, err
 	}
 	var rep struct {
 		Results []struct {

@@ -32,13 +32,14 @@ type Kind struct {
 	What     string // in messages: "specification", "workbook", ...
 	MaxBytes int64  // largest accepted size in bytes; 0: no cap (the reader streams)
 	Fix      string // what to do when the cap is reached
+	Stdin    bool   // the command reads this kind from standard input as "-"
 }
 
 // The kinds of input and their caps (README "Limits on inputs").
 var (
 	// Results is a specimen results CSV: read as a stream in bounded
 	// memory (lines at most 1 MiB, see package lots), so no size cap.
-	Results = Kind{What: "results file"}
+	Results = Kind{What: "results file", Stdin: true}
 	// Workbook is an .xlsx results workbook; its parts are checked
 	// against the workbook limits before they are read (see package lots).
 	Workbook = Kind{What: "workbook", MaxBytes: 256 << 20,
@@ -47,7 +48,7 @@ var (
 	Spec = Kind{What: "specification", MaxBytes: 1 << 20,
 		Fix: "a specification is a short YAML file (see spec/SCHEMA.md); check that the right file was named"}
 	// Records is one raw tensile record file (a folder is read file by file).
-	Records = Kind{What: "raw record file", MaxBytes: 64 << 20,
+	Records = Kind{What: "raw record file", MaxBytes: 64 << 20, Stdin: true,
 		Fix: "split the records over several .rec files in a folder"}
 	// AllowablesJSON is the JSON written by lotproof allowables --format json.
 	AllowablesJSON = Kind{What: "allowables result", MaxBytes: 16 << 20,
@@ -119,8 +120,11 @@ func regular(name string, k Kind, fi fs.FileInfo) error {
 	case m&fs.ModeDevice != 0:
 		what = "a device"
 	}
-	return errorf(name, "name a regular file, or give - to read standard input",
-		"the %s is %s, not a file lotproof can read", k.What, what)
+	fix := "name a regular file"
+	if k.Stdin {
+		fix += ", or give - to read standard input"
+	}
+	return errorf(name, fix, "the %s is %s, not a file lotproof can read", k.What, what)
 }
 
 // Open opens name for reading as kind k: "-" is stdin (os.Stdin when stdin
