@@ -2,13 +2,40 @@ package main
 
 import (
 	"os"
+	"os/signal"
+	"syscall"
+	"time"
 
 	"golang.org/x/term"
+
+	"lotproof/lots/input"
 )
 
 func main() {
+	cleanupOnSignal()
 	st := streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		OutTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		ErrTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
 	os.Exit(execute(os.Args[1:], st))
+}
+
+// cleanupOnSignal removes the temporary files of a read in progress (an
+// xlsx workbook's unpacked sheets) when the command is interrupted
+// (SIGINT, Ctrl-C) or terminated (SIGTERM), then ends the process by the
+// same signal so that the caller sees the usual status. Output is written
+// only at the end (emit) and database imports are one transaction, so
+// nothing partial stays behind.
+func cleanupOnSignal() {
+	c := make(chan os.Signal, 1)
+	signal.Notify(c, os.Interrupt, syscall.SIGTERM)
+	go func() {
+		s := <-c
+		input.RemoveTemps()
+		signal.Reset(os.Interrupt, syscall.SIGTERM)
+		if p, err := os.FindProcess(os.Getpid()); err == nil {
+			p.Signal(s)
+		}
+		time.Sleep(time.Second)
+		os.Exit(128 + int(s.(syscall.Signal)))
+	}()
 }

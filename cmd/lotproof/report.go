@@ -233,7 +233,7 @@ func runReport(o reportOptions, st streams) error {
 	}
 	if o.DB != "" {
 		ctx := context.Background()
-		s, err := store.Open(ctx, store.ResolveURL(o.DB))
+		s, err := store.OpenReadOnly(ctx, store.ResolveURL(o.DB))
 		if err != nil {
 			return usageError{err}
 		}

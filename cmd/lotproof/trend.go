@@ -70,7 +70,7 @@ func runTrend(o trendOptions, st streams) error {
 	o.Trend.Limits = store.LimitsOf(specs)
 	ctx := context.Background()
 	url := store.ResolveURL(o.DB)
-	s, err := store.Open(ctx, url)
+	s, err := store.OpenReadOnly(ctx, url)
 	if err != nil {
 		return usageError{err}
 	}

@@ -115,6 +115,104 @@ func Open(ctx context.Context, url string) (*Store, error) {
 	return s, nil
 }
 
+// OpenReadOnly opens an existing database for reading only, for the
+// commands that only read the history (trend, report). A SQLite file that
+// does not exist is refused (nothing is created) and the file is opened
+// without creating it and refuses every write (PRAGMA query_only; mode=ro
+// when the file is read-only); a PostgreSQL session gets
+// default_transaction_read_only=on, so no statement can write. A database
+// whose schema is older than this build's is brought up to date first
+// (the only write a reading command makes); a database without lotproof's
+// schema is refused.
+func OpenReadOnly(ctx context.Context, url string) (*Store, error) {
+	url = strings.TrimSpace(url)
+	if url == "" {
+		return nil, errors.New("store: empty database location")
+	}
+	var s *Store
+	if IsPostgres(url) {
+		sep := "?"
+		if strings.Contains(url, "?") {
+			sep = "&"
+		}
+		db, err := sql.Open("pgx", url+sep+"default_transaction_read_only=on")
+		if err != nil {
+			return nil, fmt.Errorf("store: %w", err)
+		}
+		db.SetMaxOpenConns(4)
+		s = &Store{db: db, backend: Postgres, where: redact(url)}
+	} else {
+		path := strings.TrimPrefix(strings.TrimPrefix(url, "sqlite:"), "file:")
+		if strings.ContainsAny(path, "?#") {
+			return nil, fmt.Errorf("store: SQLite file name %q contains ? or #; rename the file", path)
+		}
+		fi, err := os.Stat(path)
+		if err != nil {
+			return nil, fmt.Errorf("store: there is no database %s (%v); check --db or $%s, or record results first with lotproof record", path, unwrapPath(err), EnvVar)
+		}
+		if !fi.Mode().IsRegular() {
+			return nil, fmt.Errorf("store: %s is not a database file; check --db or $%s", path, EnvVar)
+		}
+		// A URI filename: % is the only character of a path that needs
+		// escaping once ? and # are excluded (SQLite, "URI Filenames").
+		// mode=rw never creates the file; query_only refuses every write
+		// (SQLite, "PRAGMA query_only"), while the connection can still
+		// tidy the write-ahead log away when it closes. A file that
+		// cannot be opened for writing is opened with mode=ro.
+		mode := "rw"
+		if f, err := os.OpenFile(path, os.O_RDWR, 0); err != nil {
+			mode = "ro"
+		} else {
+			f.Close()
+		}
+		dsn := "file:" + strings.ReplaceAll(path, "%", "%25") + "?mode=" + mode + "&_pragma=query_only(1)&_pragma=busy_timeout(20000)&_pragma=foreign_keys(1)"
+		db, err := sql.Open("sqlite", dsn)
+		if err != nil {
+			return nil, fmt.Errorf("store: %w", err)
+		}
+		db.SetMaxOpenConns(1)
+		s = &Store{db: db, backend: SQLite, where: path}
+	}
+	var err error
+	for attempt := 0; attempt < maxAttempts; attempt++ {
+		if err = s.db.PingContext(ctx); err == nil || !retryable(err) {
+			break
+		}
+		time.Sleep(time.Duration(10+rand.IntN(40)) * time.Millisecond)
+	}
+	if err != nil {
+		s.db.Close()
+		return nil, fmt.Errorf("store: cannot reach %s: %w", s.where, err)
+	}
+	var v sql.NullInt64
+	if err := s.db.QueryRowContext(ctx, `SELECT MAX(version) FROM schema_version`).Scan(&v); err != nil || !v.Valid {
+		s.db.Close()
+		return nil, fmt.Errorf("store: %s is not a lotproof history database (no schema version); check --db or $%s", s.where, EnvVar)
+	}
+	switch cur := int(v.Int64); {
+	case cur > Latest():
+		s.db.Close()
+		return nil, fmt.Errorf("store: %s has schema version %d, newer than this lotproof understands (%d); use a newer lotproof", s.where, cur, Latest())
+	case cur < Latest():
+		s.db.Close()
+		up, err := Open(ctx, url)
+		if err != nil {
+			return nil, err
+		}
+		up.Close()
+		return OpenReadOnly(ctx, url)
+	}
+	return s, nil
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
 // redact removes a password from a connection URL.
 func redact(url string) string {
 	at := strings.LastIndex(url, "@")
