@@ -99,8 +99,14 @@ type WeibullFit struct {
 // and the scale follows in closed form, α = ((1/n) Σ x_i^β)^(1/β).
 // g is strictly increasing in β, tends to -∞ as β→0 and to
 // max ln x - mean ln x > 0 as β→∞, so the root is unique whenever the data
-// hold at least two distinct values. To avoid overflow the logs are
-// shifted by their maximum (g is invariant under x → c·x). The root is
+// hold at least two distinct values. The data are scaled by their maximum
+// before logs are taken (g is invariant under x → c·x), u_i = ln(x_i/max x),
+// with ln(x/m) = log1p((x-m)/m) when x >= m/2 (x-m is then exact,
+// Sterbenz's lemma) and ln(f_x/f_m) + (e_x-e_m) ln 2 from the binary
+// exponents otherwise; so values that differ in the last digit, and
+// subnormal values (whose logarithm Go computes inexactly on some
+// platforms, golang/go#56600), keep their spread. The spread test itself is
+// exact: min x < max x. The root is
 // bracketed by doubling/halving from the Menon (1963) starting value
 // β0 = π/(sd(ln x)·sqrt 6) and then found by Newton's method safeguarded by
 // bisection (Press et al., Numerical Recipes 3rd ed. section 9.4, rtsafe),
@@ -108,19 +114,27 @@ type WeibullFit struct {
 //
 // It needs at least 2 finite, strictly positive values, not all equal.
 func FitWeibull(x []float64) (WeibullFit, error) {
-	lx, err := logs(x, "weibull fit")
-	if err != nil {
-		return WeibullFit{}, err
+	if len(x) < 2 {
+		return WeibullFit{}, fmt.Errorf("weibull fit: %d values, need at least 2: %w", len(x), ErrTooFew)
 	}
-	n := float64(len(lx))
-	umax := math.Inf(-1)
-	for _, v := range lx {
-		umax = math.Max(umax, v)
+	if err := checkFinite(x); err != nil {
+		return WeibullFit{}, fmt.Errorf("weibull fit: %w", err)
 	}
-	// u_i = ln x_i - max ln x <= 0.
-	u := make([]float64, len(lx))
-	for i, v := range lx {
-		u[i] = v - umax
+	xmin, xmax := x[0], x[0]
+	for i, v := range x {
+		if v <= 0 {
+			return WeibullFit{}, fmt.Errorf("weibull fit: value %d is %v, must be > 0", i, v)
+		}
+		xmin, xmax = math.Min(xmin, v), math.Max(xmax, v)
+	}
+	if xmin == xmax {
+		return WeibullFit{}, fmt.Errorf("weibull fit: need at least 2 distinct values: %w", ErrZeroSpread)
+	}
+	n := float64(len(x))
+	// u_i = ln(x_i / max x) <= 0.
+	u := make([]float64, len(x))
+	for i, v := range x {
+		u[i] = logRatio(v, xmax)
 	}
 	ubar, uvar := meanVar(u)
 	if uvar == 0 || ubar == 0 {
@@ -209,14 +223,28 @@ func FitWeibull(x []float64) (WeibullFit, error) {
 			return WeibullFit{}, fmt.Errorf("weibull fit: shape did not converge after %d iterations", iter)
 		}
 	}
-	// α = exp(umax + ln(mean exp(β u))/β), with mean exp(β u) in [1/n, 1].
+	// α = max x · exp(ln(mean exp(β u))/β), with mean exp(β u) in [1/n, 1].
 	var sw float64
 	for _, ui := range u {
 		sw += math.Exp(b * ui)
 	}
-	scale := math.Exp(umax + math.Log(sw/n)/b)
+	scale := xmax * math.Exp(math.Log(sw/n)/b)
 	if math.IsNaN(b) || math.IsInf(b, 0) || math.IsNaN(scale) || math.IsInf(scale, 0) || scale <= 0 {
 		return WeibullFit{}, fmt.Errorf("weibull fit: numerical failure (shape %v, scale %v)", b, scale)
 	}
 	return WeibullFit{Shape: b, Scale: scale, Iterations: iter}, nil
+}
+
+// logRatio returns ln(x/m) for 0 < x <= m without taking the logarithm of
+// a subnormal number and without losing a difference in the last digit:
+// log1p((x-m)/m) when x >= m/2 (the subtraction is exact, Sterbenz 1974),
+// else ln(fx/fm) + (ex-em)·ln 2 with x = fx·2^ex, m = fm·2^em, fx and fm
+// in [0.5, 1) (math.Frexp, exact also for subnormals).
+func logRatio(x, m float64) float64 {
+	if x >= m/2 {
+		return math.Log1p((x - m) / m)
+	}
+	fx, ex := math.Frexp(x)
+	fm, em := math.Frexp(m)
+	return math.Log(fx/fm) + float64(ex-em)*math.Ln2
 }

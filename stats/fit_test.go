@@ -171,3 +171,52 @@ func BenchmarkFitWeibull1000(b *testing.B) {
 		}
 	}
 }
+
+// The Weibull maximum-likelihood estimates are scale-equivariant (Lawless
+// 2003 section 5.2.2: scaling the data by c scales α by c and leaves β):
+// data moved into the subnormal range by an exact power of two must give
+// the same shape, which the logarithm of a subnormal (golang/go#56600) and
+// the old log-based spread test broke (issue 14).
+func TestFitWeibullSubnormalAndAdjacent(t *testing.T) {
+	x := []float64{16, 32, 48, 64, 80, 40, 56}
+	ref, err := FitWeibull(x)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range []int{-1070, -1000, -300, 300, 900} {
+		y := make([]float64, len(x))
+		for i, v := range x {
+			y[i] = math.Ldexp(v, e) // exact: 16..80 are multiples of 2^4
+		}
+		got, err := FitWeibull(y)
+		if err != nil {
+			t.Fatalf("scale 2^%d: %v", e, err)
+		}
+		if math.Abs(got.Shape-ref.Shape) > 1e-12*ref.Shape {
+			t.Errorf("scale 2^%d: shape %v, want %v", e, got.Shape, ref.Shape)
+		}
+		// A subnormal scale is only as fine as the smallest subnormal,
+		// 2^-1074.
+		tol := math.Max(1e-12*ref.Scale, math.Ldexp(1, -1074-e))
+		if s := math.Ldexp(got.Scale, -e); math.Abs(s-ref.Scale) > tol {
+			t.Errorf("scale 2^%d: scale/2^e %v, want %v", e, s, ref.Scale)
+		}
+	}
+	// Two distinct values, however close, have a spread: the fit exists,
+	// with the scale between them and, for adjacent normal doubles
+	// (relative spread 2^-52), a very large shape. (5e-324 and the next
+	// double differ by a factor of 2.)
+	for _, a := range []float64{1.398043286095289e-76, 5e-324, 1000, 1} {
+		b := math.Nextafter(a, math.Inf(1))
+		w, err := FitWeibull([]float64{a, b})
+		if err != nil {
+			t.Fatalf("%v and the next double: %v", a, err)
+		}
+		if !(w.Scale >= a && w.Scale <= b) || !(w.Shape > 1e10 || a == 5e-324) || math.IsInf(w.Shape, 0) {
+			t.Errorf("%v and the next double: %+v", a, w)
+		}
+	}
+	if _, err := FitWeibull([]float64{5e-324, 5e-324}); !errors.Is(err, ErrZeroSpread) {
+		t.Errorf("equal subnormals: %v, want ErrZeroSpread", err)
+	}
+}
