@@ -1,0 +1,121 @@
+package store
+
+import (
+	"context"
+	"database/sql"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// OpenReadOnly reads what Open wrote, refuses every write, refuses a
+// database that does not exist (creating nothing) or has no lotproof
+// schema, and brings an older schema up to date first.
+func TestOpenReadOnly(t *testing.T) {
+	ctx := context.Background()
+	for _, b := range backends(t) {
+		t.Run(b.name, func(t *testing.T) {
+			url := b.fresh(t)
+			// A database without lotproof's schema (an empty PostgreSQL
+			// database, a missing SQLite file) is refused and left as it was.
+			_, err := OpenReadOnly(ctx, url)
+			if err == nil {
+				t.Fatal("opened a database without a lotproof schema")
+			}
+			if IsPostgres(url) {
+				if !strings.Contains(err.Error(), "not a lotproof history database") {
+					t.Fatalf("empty database: %v", err)
+				}
+				raw, _ := sql.Open("pgx", url)
+				var n int
+				raw.QueryRow(`SELECT count(*) FROM information_schema.tables WHERE table_schema = 'public'`).Scan(&n)
+				raw.Close()
+				if n != 0 {
+					t.Fatalf("%d tables created", n)
+				}
+			} else {
+				if !strings.Contains(err.Error(), "there is no database") {
+					t.Fatalf("missing file: %v", err)
+				}
+				if ents, _ := os.ReadDir(filepath.Dir(url)); len(ents) != 0 {
+					t.Fatalf("created %v", ents)
+				}
+			}
+			w := open(t, url)
+			d := dataset(t, "a.csv", synth("RO", 2, 3, 7))
+			if _, err := w.Record(ctx, d, nil, nil, Meta{Time: t0, User: "u"}); err != nil {
+				t.Fatal(err)
+			}
+			w.Close()
+			var before []byte
+			if !IsPostgres(url) {
+				before, _ = os.ReadFile(url)
+			}
+			r, err := OpenReadOnly(ctx, url)
+			if err != nil {
+				t.Fatal(err)
+			}
+			lv, err := r.LotData(ctx, Filter{Property: "tensile"})
+			if err != nil || len(lv) != 2 {
+				t.Fatalf("read %d lots (%v)", len(lv), err)
+			}
+			if _, err := r.db.ExecContext(ctx, `DELETE FROM measurements`); err == nil {
+				t.Fatal("a read-only store deleted rows")
+			}
+			if _, err := r.Record(ctx, dataset(t, "b.csv", synth("RO2", 1, 2, 8)), nil, nil, Meta{Time: t0, User: "u"}); err == nil {
+				t.Fatal("a read-only store recorded a file")
+			}
+			r.Close()
+			if !IsPostgres(url) {
+				after, _ := os.ReadFile(url)
+				if string(after) != string(before) {
+					t.Fatal("the database file changed")
+				}
+				ents, _ := os.ReadDir(filepath.Dir(url))
+				if len(ents) != 1 {
+					t.Fatalf("files beside the database after reading: %v", ents)
+				}
+			}
+			again := open(t, url)
+			if c := counts(t, again); c.Specimens != 6 {
+				t.Fatalf("%d specimens after the refused writes, want 6", c.Specimens)
+			}
+		})
+	}
+}
+
+// A database at an older schema version is brought up to date, then read.
+func TestOpenReadOnlyMigratesOlderSchema(t *testing.T) {
+	ctx := context.Background()
+	for _, b := range backends(t) {
+		t.Run(b.name, func(t *testing.T) {
+			url := b.fresh(t)
+			driver := "sqlite"
+			if IsPostgres(url) {
+				driver = "pgx"
+			}
+			raw, err := sql.Open(driver, url)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, stmt := range schemaV1 {
+				if _, err := raw.Exec(stmt); err != nil {
+					t.Fatalf("%s: %v", stmt, err)
+				}
+			}
+			raw.Close()
+			r, err := OpenReadOnly(ctx, url)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer r.Close()
+			if v, err := r.SchemaVersion(ctx); err != nil || v != Latest() {
+				t.Fatalf("version %d (%v), want %d", v, err, Latest())
+			}
+			if lv, err := r.LotData(ctx, Filter{}); err != nil || len(lv) != 1 {
+				t.Fatalf("old data: %+v (%v)", lv, err)
+			}
+		})
+	}
+}
