@@ -57,3 +57,20 @@ func TestReadXLSXRefusesDirectionCharacters(t *testing.T) {
 		t.Fatalf("got %v\nwant %s", err, want)
 	}
 }
+
+// The word-at-a-time test agrees with the byte-at-a-time one for every
+// byte value at every position of strings of 1 to 20 bytes.
+func TestPlainASCII(t *testing.T) {
+	for n := 1; n <= 20; n++ {
+		for pos := 0; pos < n; pos++ {
+			for c := 0; c < 256; c++ {
+				b := []byte(strings.Repeat("a", n))
+				b[pos] = byte(c)
+				want := c >= 0x20 && c <= 0x7e
+				if got := plainASCII(string(b)); got != want {
+					t.Fatalf("plainASCII(%q) = %v, want %v", b, got, want)
+				}
+			}
+		}
+	}
+}
