@@ -23,7 +23,8 @@ const (
 	xlsxMaxTotal     = 1 << 30    // all parts together, uncompressed
 	xlsxMaxRows      = 1 << 20    // rows in a worksheet (Excel's limit)
 	xlsxMaxRowCells  = 16384      // cells in a row (Excel's column limit)
-	xlsxMaxCells     = 20_000_000 // cells in a worksheet
+	xlsxMaxCells     = 10_000_000 // cells in a worksheet
+	xlsxMaxStrings   = 1 << 20    // shared texts (one per row at Excel's row limit)
 	xlsxMaxRowBytes  = 4 << 20    // one row of worksheet XML
 	xlsxMaxString    = 1 << 20    // one shared string's XML
 )
@@ -134,6 +135,7 @@ func scanPart(r io.Reader, unit, name, part string) error {
 	var (
 		pos, start            int64 = 0, -1 // bytes read; where the current unit started
 		rows, cells, rowCells int64
+		strs                  int64
 	)
 	maxUnit := int64(xlsxMaxRowBytes)
 	if unit == "si" {
@@ -191,6 +193,9 @@ func scanPart(r io.Reader, unit, name, part string) error {
 			start = -1
 		case unit == "si" && isTag(tag, "si"):
 			start = pos
+			if strs++; strs > xlsxMaxStrings {
+				return breach("more than %d shared texts, the limit", xlsxMaxStrings)
+			}
 		case unit == "si" && isTag(tag, "/si"):
 			start = -1
 		}

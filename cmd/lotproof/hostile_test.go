@@ -68,6 +68,13 @@ type childRun struct {
 func runChild(t *testing.T, dir, tmp string, env []string, args ...string) childRun {
 	t.Helper()
 	cmd := exec.Command(os.Args[0], "-test.run=^TestHostileChild$", "-test.count=1")
+	// LOTPROOF_HOSTILE_TIME=1 also runs each child under GNU time, for an
+	// outside measure of its peak memory (logged).
+	timeFile := ""
+	if os.Getenv("LOTPROOF_HOSTILE_TIME") != "" {
+		timeFile = filepath.Join(t.TempDir(), "time")
+		cmd = exec.Command("/usr/bin/time", append([]string{"-o", timeFile, "-f", "%e s wall, %U s user, %S s sys, max RSS %M KB", os.Args[0]}, cmd.Args[1:]...)...)
+	}
 	cmd.Dir = dir
 	rssFile := filepath.Join(t.TempDir(), "rss")
 	cmd.Env = append(os.Environ(), hostileChildEnv+"="+strings.Join(args, "\x1f"), "TMPDIR="+tmp, hostileRSSEnv+"="+rssFile)
@@ -88,6 +95,12 @@ func runChild(t *testing.T, dir, tmp string, env []string, args ...string) child
 		t.Fatalf("lotproof %s: still running after 60 s (killed)", strings.Join(args, " "))
 	}
 	r := childRun{code: cmd.ProcessState.ExitCode(), stdout: out.String(), stderr: errb.String(), elapsed: time.Since(start)}
+	if timeFile != "" {
+		if b, err := os.ReadFile(timeFile); err == nil {
+			lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+			t.Logf("GNU time: %s", lines[len(lines)-1])
+		}
+	}
 	r.maxRSS = -1 // not known (no /proc)
 	if b, err := os.ReadFile(rssFile); err == nil {
 		if kb, err := strconv.ParseInt(strings.TrimSpace(string(b)), 10, 64); err == nil {
@@ -379,6 +392,16 @@ func hostileCases() []hostileCase {
 			writeWorkbook(t, filepath.Join(d, "tall.xlsx"), sheet, zipPart{})
 			return []string{"summary", "tall.xlsx"}
 		}, []string{"tall.xlsx", "1048576 rows"}},
+		{"xlsx 3.5 million shared texts", func(t *testing.T, d string) []string {
+			strs := repeatPart(t, `<sst xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main">`, "<si><t>a</t></si>", 3_500_000, `</sst>`)
+			writeWorkbook(t, filepath.Join(d, "texts.xlsx"), zipPart{data: []byte(sheetHead + headerRow + sheetTail)}, strs)
+			return []string{"summary", "texts.xlsx"}
+		}, []string{"texts.xlsx", "sharedStrings.xml", "more than 1048576 shared texts"}},
+		{"xlsx 11 million empty cells", func(t *testing.T, d string) []string {
+			sheet := repeatPart(t, sheetHead+headerRow, "<row>"+strings.Repeat("<c/>", 10000)+"</row>", 1100, sheetTail)
+			writeWorkbook(t, filepath.Join(d, "cells.xlsx"), sheet, zipPart{})
+			return []string{"summary", "cells.xlsx"}
+		}, []string{"cells.xlsx", "more than 10000000 cells"}},
 		// Huge specifications.
 		{"spec of 100 MB", func(t *testing.T, d string) []string {
 			sparse(t, filepath.Join(d, "big.yaml"), 100<<20)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -117,5 +118,37 @@ func TestOpenReadOnlyMigratesOlderSchema(t *testing.T) {
 				t.Fatalf("old data: %+v (%v)", lv, err)
 			}
 		})
+	}
+}
+
+// A SQLite file that cannot be written (permissions, or an immutable file
+// when the test runs as root) is read: trend on it used to fail with
+// "attempt to write a readonly database".
+func TestOpenReadOnlyWriteProtectedFile(t *testing.T) {
+	ctx := context.Background()
+	url := filepath.Join(t.TempDir(), "ro.db")
+	w := open(t, url)
+	if _, err := w.Record(ctx, dataset(t, "a.csv", synth("WP", 1, 3, 9)), nil, nil, Meta{Time: t0, User: "u"}); err != nil {
+		t.Fatal(err)
+	}
+	w.Close()
+	if err := os.Chmod(url, 0o444); err != nil {
+		t.Fatal(err)
+	}
+	if f, err := os.OpenFile(url, os.O_RDWR, 0); err == nil {
+		f.Close()
+		// Root ignores permissions: try the immutable attribute.
+		if out, err := exec.Command("chattr", "+i", url).CombinedOutput(); err != nil {
+			t.Skipf("cannot write-protect the file as this user (chattr: %v %s)", err, out)
+		}
+		t.Cleanup(func() { exec.Command("chattr", "-i", url).Run() })
+	}
+	r, err := OpenReadOnly(ctx, url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	if lv, err := r.LotData(ctx, Filter{Property: "tensile"}); err != nil || len(lv) != 1 {
+		t.Fatalf("read %d lots (%v)", len(lv), err)
 	}
 }
