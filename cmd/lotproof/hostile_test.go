@@ -424,7 +424,7 @@ func hostileCases() []hostileCase {
 		{"record file of 100 MB", func(t *testing.T, d string) []string {
 			sparse(t, filepath.Join(d, "big.rec"), 100<<20)
 			return []string{"reduce", "big.rec"}
-		}, []string{"big.rec", "limit of 64 MiB"}},
+		}, []string{"big.rec", "limit of 32 MiB"}},
 		// Text.
 		{"NUL in a CSV cell", func(t *testing.T, d string) []string {
 			put(t, d, "nul.csv", "specimen,lot,tensile [MPa]\nA-1,L\x00-1,1000\nA-2,L-1,1001\n")
