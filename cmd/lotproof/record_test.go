@@ -187,7 +187,7 @@ func TestRecordChildProcess(t *testing.T) {
 func TestConcurrentRecordProcesses(t *testing.T) {
 	dbs := map[string]string{"sqlite": filepath.Join(t.TempDir(), "c.db")}
 	if pg := os.Getenv("LOTPROOF_TEST_PG"); pg != "" {
-		dbs["postgres"] = pg
+		dbs["postgres"] = freshPGDatabase(t, pg)
 	} else {
 		t.Log("LOTPROOF_TEST_PG is not set: PostgreSQL half skipped")
 	}
