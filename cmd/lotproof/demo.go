@@ -27,6 +27,7 @@ import (
 
 type demoOptions struct {
 	Report string // report file; "" for none
+	DB     string // database file the history is recorded in; "" for a temporary one
 	Date   string
 	Seed   uint64
 	Out    output
@@ -48,8 +49,9 @@ tensile records. The demo
   1. reduces the raw tensile records to specimen properties,
   2. judges every lot against the invented purchase specifications,
   3. derives A- and B-basis design values from a qualification campaign,
-  4. records the lots in a temporary database and trends each supplier by
-     quarter, flagging drift,
+  4. records the lots in a temporary database (or in --db FILE, kept for
+     lotproof serve --db FILE) and trends each supplier by quarter,
+     flagging drift,
   5. writes a one-file HTML report (default ` + demoReport + `).
 
 Every company, material, specification and number in it is invented.`,
@@ -66,6 +68,7 @@ Every company, material, specification and number in it is invented.`,
 	}
 	cmd.Flags().StringVar(&o.Report, "report", o.Report, "write the HTML report to this file")
 	cmd.Flags().BoolVar(&noReport, "no-report", false, "do not write the HTML report")
+	cmd.Flags().StringVar(&o.DB, "db", "", "record the demo history in this SQLite file (kept, e.g. for lotproof serve --db FILE)")
 	cmd.Flags().StringVar(&o.Date, "date", "", "date written into the results (default: today, or SOURCE_DATE_EPOCH)")
 	cmd.Flags().Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bounds")
 	return cmd
@@ -162,7 +165,7 @@ func runDemo(o demoOptions, st streams) error {
 	bar.Add(1)
 
 	// 4. Record the history in a temporary database and trend it.
-	tr, err := demoTrend(receipts, newLots, specs, date)
+	tr, err := demoTrend(receipts, newLots, specs, date, o.DB)
 	if err != nil {
 		return err
 	}
@@ -233,14 +236,18 @@ func demoSpecs() ([]*spec.Spec, error) {
 // demoTrend records the receipts and the new lots, with their verdicts,
 // into a temporary SQLite database (two imports, as an inspector would
 // make them) and computes the quarterly trend by supplier.
-func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date string) (*trend.Result, error) {
+func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db string) (*trend.Result, error) {
 	dir, err := os.MkdirTemp("", "lotproof-demo-")
 	if err != nil {
 		return nil, err
 	}
 	defer os.RemoveAll(dir)
 	ctx := context.Background()
-	s, err := store.Open(ctx, filepath.Join(dir, "history.db"))
+	path := filepath.Join(dir, "history.db")
+	if db != "" {
+		path = db
+	}
+	s, err := store.Open(ctx, path)
 	if err != nil {
 		return nil, err
 	}
