@@ -71,7 +71,7 @@ var funcs = template.FuncMap{
 		return s
 	},
 	"maxHits": func() int { return MaxHits },
-	"target": func() string { return strconv.FormatFloat(report.PpkTarget, 'f', 2, 64) },
+	"target":  func() string { return strconv.FormatFloat(report.PpkTarget, 'f', 2, 64) },
 }
 
 var pages = template.Must(template.New("pages").Funcs(funcs).Parse(layoutTemplate + pageTemplates))
