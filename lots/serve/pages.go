@@ -481,9 +481,7 @@ func (s *Server) lot(c *reqCtx) (*reply, error) {
 		}
 		p.Properties = append(p.Properties, lp)
 	}
-	limitsOf := map[string][]importedLimit{}
 	for _, l := range d.Limits {
-		limitsOf[l.Spec] = append(limitsOf[l.Spec], l)
 		cv, ok := convs[l.Property]
 		if !ok {
 			cv = convFor(l.Unit, c.sys)
@@ -512,7 +510,7 @@ func (s *Server) lot(c *reqCtx) (*reply, error) {
 	seen := map[string]bool{}
 	for _, v := range d.Verdicts {
 		lv := LotVerdict{Spec: v.Spec, Verdict: v.Verdict, InForce: !seen[v.Spec], Import: v.Import, ImportedAt: v.ImportedAt,
-			Reasons: reasons(d, limitsOf[v.Spec], convs, c.sys)}
+			Reasons: reasons(d, limitsFor(d, v), convs)}
 		seen[v.Spec] = true
 		p.Verdicts = append(p.Verdicts, lv)
 	}
@@ -533,9 +531,29 @@ type lotData struct {
 	U string
 }
 
+// limitsFor picks the limits a verdict was judged against: those recorded
+// with its import for its specification, else those in force.
+func limitsFor(d *lotDetail, v verdictRow) []importedLimit {
+	var own, now []importedLimit
+	for _, l := range d.AllLimits {
+		if l.Spec == v.Spec && l.Import == v.Import {
+			own = append(own, l)
+		}
+	}
+	if len(own) > 0 {
+		return own
+	}
+	for _, l := range d.Limits {
+		if l.Spec == v.Spec {
+			now = append(now, l)
+		}
+	}
+	return now
+}
+
 // reasons says, per property limited by the specification, what the
 // stored values of the lot show against the limits.
-func reasons(d *lotDetail, limits []importedLimit, convs map[string]conv, sys units.System) []string {
+func reasons(d *lotDetail, limits []importedLimit, convs map[string]conv) []string {
 	var out []string
 	if len(limits) == 0 {
 		return []string{"no limits of this specification for " + d.Lot.Material + " are recorded"}

@@ -255,7 +255,8 @@ type lotDetail struct {
 	Specimens  []specimenRow
 	Properties []propertyRow // those with a value in the lot
 	Verdicts   []verdictRow  // every import's verdicts, latest first
-	Limits     []importedLimit
+	Limits     []importedLimit // in force (latest import) for the lot's material
+	AllLimits  []importedLimit // every import's, for the lot's material
 	Imports    map[string]Import
 }
 
@@ -349,6 +350,30 @@ func (d *DB) lot(ctx context.Context, id string) (*lotDetail, bool, error) {
 	if out.Limits, err = d.limits(ctx, "l.material = ?", []any{out.Lot.Material}); err != nil {
 		return nil, false, err
 	}
+	rows, err = d.db.QueryContext(ctx, d.q(`SELECT spec, material, property, minimum, maximum, unit, import_digest FROM spec_limits WHERE material = ?`), out.Lot.Material)
+	if err != nil {
+		return nil, false, err
+	}
+	for rows.Next() {
+		var l importedLimit
+		var lo, hi sql.NullFloat64
+		if err := rows.Scan(&l.Spec, &l.Material, &l.Property, &lo, &hi, &l.Unit, &l.Import); err != nil {
+			rows.Close()
+			return nil, false, err
+		}
+		l.Minimum, l.Maximum = math.NaN(), math.NaN()
+		if lo.Valid {
+			l.Minimum = lo.Float64
+		}
+		if hi.Valid {
+			l.Maximum = hi.Float64
+		}
+		out.AllLimits = append(out.AllLimits, l)
+	}
+	if err := closeRows(rows); err != nil {
+		return nil, false, err
+	}
+	sort.Slice(out.AllLimits, func(i, j int) bool { return out.AllLimits[i].Property < out.AllLimits[j].Property })
 	digests := map[string]bool{out.Lot.Import: true}
 	for _, s := range out.Specimens {
 		digests[s.Import] = true

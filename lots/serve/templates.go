@@ -64,6 +64,23 @@ var funcs = template.FuncMap{
 		}
 		return "st-ok"
 	},
+	"ppkMark": func(v lots.Float) string {
+		switch x := float64(v); {
+		case math.IsNaN(x):
+			return ""
+		case x < 1:
+			return "✗"
+		case x < report.PpkTarget:
+			return "!"
+		}
+		return "✓"
+	},
+	"plural": func(n int, word string) string {
+		if n == 1 {
+			return "1 " + word
+		}
+		return strconv.Itoa(n) + " " + word + "s"
+	},
 	"short": func(s string) string {
 		if len(s) > 12 {
 			return s[:12]
@@ -158,11 +175,11 @@ const pageTemplates = `
 <td class="n">{{.Lots}}</td><td class="n">{{.Signals}}</td>
 {{- range .Cells}}
 {{- if .Lots}}
-<td class="cell"><a href="{{supPeriodURL $u $s .Period}}"><span class="lots">{{.Lots}} lots</span>
+<td class="cell"><a href="{{supPeriodURL $u $s .Period}}"><span class="lots">{{plural .Lots "lot"}}</span>
 <span class="sub{{if .LotsRejected}} st-fail{{end}}">{{.LotsRejected}} rejected of {{.LotsJudged}}</span>
-<span class="sub{{if .Signals}} st-warn{{end}}">{{.Signals}} signals</span>
+<span class="sub{{if .Signals}} st-warn{{end}}">{{plural .Signals "signal"}}</span>
 {{- if .Property}}
-<span class="sub {{ppkClass .Ppk}}">Ppk {{num .Ppk 3}} (≥ {{num .PpkLower 3}}) {{.Property}}</span>
+<span class="sub {{ppkClass .Ppk}}">{{with ppkMark .Ppk}}<span class="mark">{{.}}</span>{{end}}Ppk {{num .Ppk 3}} (≥ {{num .PpkLower 3}}) {{.Property}}</span>
 {{- end}}</a></td>
 {{- else}}
 <td class="cell empty">no lots</td>
@@ -196,7 +213,7 @@ const pageTemplates = `
 <thead><tr><th scope="col">property</th><th scope="col">period</th><th class="n" scope="col">lots</th><th class="n" scope="col">specimens</th><th class="n" scope="col">mean</th><th class="n" scope="col">SD</th><th class="n" scope="col">minimum</th><th class="n" scope="col">Ppk</th><th class="n" scope="col">Ppk lower bound</th><th class="n" scope="col">ppm below</th><th class="n" scope="col">rejected</th></tr></thead>
 <tbody>
 {{- range .Periods}}
-<tr{{if eq .Period $.Period}} class="st-info"{{end}}><td>{{.Property}}{{if .Unit}} [{{.Unit}}]{{end}}</td><td><a href="{{supPeriodURL $u $s .Period}}">{{.Period}}</a>{{if .Baseline}} (baseline){{end}}</td><td class="n">{{.Lots}}</td><td class="n">{{.Specimens}}</td><td class="n">{{num .Mean 4}}</td><td class="n">{{num .SD 3}}</td><td class="n">{{num .Minimum 4}}</td><td class="n {{ppkClass .Ppk}}">{{num .Ppk 3}}</td><td class="n">{{num .PpkLower 3}}</td><td class="n">{{num .PPMBelow 3}}</td><td class="n{{if .LotsRejected}} st-fail{{end}}">{{.LotsRejected}} of {{.LotsJudged}}</td></tr>
+<tr{{if eq .Period $.Period}} class="st-info"{{end}}><td>{{.Property}}{{if .Unit}} [{{.Unit}}]{{end}}</td><td><a href="{{supPeriodURL $u $s .Period}}">{{.Period}}</a>{{if .Baseline}} (baseline){{end}}</td><td class="n">{{.Lots}}</td><td class="n">{{.Specimens}}</td><td class="n">{{num .Mean 4}}</td><td class="n">{{num .SD 3}}</td><td class="n">{{num .Minimum 4}}</td><td class="n {{ppkClass .Ppk}}">{{with ppkMark .Ppk}}<span class="mark">{{.}}</span> {{end}}{{num .Ppk 3}}</td><td class="n">{{num .PpkLower 3}}</td><td class="n">{{num .PPMBelow 3}}</td><td class="n{{if .LotsRejected}} st-fail{{end}}">{{.LotsRejected}} of {{.LotsJudged}}</td></tr>
 {{- end}}
 </tbody></table></div>
 </section>
