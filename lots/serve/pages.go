@@ -31,6 +31,7 @@ type reqCtx struct {
 // reply is a page: its JSON value, or its template and data.
 type reply struct {
 	json  any
+	raw   []byte // JSON already encoded (cached), instead of json
 	tmpl  string
 	title string
 	data  any
@@ -90,6 +91,11 @@ func (s *Server) page(f func(c *reqCtx) (*reply, error)) http.HandlerFunc {
 		rep, err := f(c)
 		if err != nil {
 			s.fail(w, c, err)
+			return
+		}
+		if c.json && rep.raw != nil {
+			w.Header().Set("Content-Type", "application/json; charset=utf-8")
+			w.Write(rep.raw)
 			return
 		}
 		if c.json {
@@ -266,6 +272,11 @@ func (s *Server) supplier(c *reqCtx) (*reply, error) {
 		return nil, notFound("no supplier %q in the lot history", g)
 	}
 	period := c.r.URL.Query().Get("period")
+	if c.json && period == "" {
+		if b, ok := v.supplierJSON.Load(g); ok {
+			return &reply{raw: b.([]byte)}, nil
+		}
+	}
 	r := v.trend
 	p := &SupplierPage{Supplier: g, Period: period, Every: r.Every, Units: string(v.sys), Periods: []trend.Period{}, Signals: []trend.Signal{},
 		Series: []trend.Series{}, Materials: v.overviewRow(g).Materials, Methods: r.Methods, Warnings: r.Warnings, Caution: r.Caution,
@@ -284,7 +295,17 @@ func (s *Server) supplier(c *reqCtx) (*reply, error) {
 		}
 	}
 	for _, i := range v.series[g] {
-		p.Series = append(p.Series, r.Series[i])
+		sr := r.Series[i]
+		if period != "" { // the chosen period's lots only
+			var pts []trend.Point
+			for _, pt := range sr.Points {
+				if pt.Period == period {
+					pts = append(pts, pt)
+				}
+			}
+			sr.Points = pts
+		}
+		p.Series = append(p.Series, sr)
 	}
 	for _, l := range v.lotsOf[g] {
 		if period != "" && l.Period != period {
@@ -294,6 +315,16 @@ func (s *Server) supplier(c *reqCtx) (*reply, error) {
 		if period != "" || len(p.Lots) < MaxLatestLots {
 			p.Lots = append(p.Lots, l)
 		}
+	}
+	if c.json && period == "" {
+		// The whole series of a supplier is large and the same for every
+		// request on this state of the database: encoded once.
+		var buf bytes.Buffer
+		if err := render.WriteJSON(&buf, p); err != nil {
+			return nil, err
+		}
+		v.supplierJSON.Store(g, buf.Bytes())
+		return &reply{raw: buf.Bytes()}, nil
 	}
 	if c.json {
 		return &reply{json: p}, nil
@@ -453,7 +484,11 @@ func (c conv) lf(v float64) lots.Float {
 
 func (s *Server) lot(c *reqCtx) (*reply, error) {
 	id := c.r.PathValue("id")
-	d, ok, err := s.db.lot(c.r.Context(), id)
+	snap, err := s.cache.get(c.r.Context())
+	if err != nil {
+		return nil, err
+	}
+	d, ok, err := s.db.lot(c.r.Context(), id, snap.index)
 	if err != nil {
 		return nil, err
 	}
@@ -623,7 +658,11 @@ func (s *Server) search(c *reqCtx) (*reply, error) {
 		return nil, badRequest("the search text is longer than %d bytes", MaxQuery)
 	}
 	if q != "" {
-		hits, err := s.db.search(c.r.Context(), q)
+		snap, err := s.cache.get(c.r.Context())
+		if err != nil {
+			return nil, err
+		}
+		hits, err := s.db.search(c.r.Context(), q, snap.index)
 		if err != nil {
 			return nil, err
 		}

@@ -253,8 +253,8 @@ type verdictRow struct {
 type lotDetail struct {
 	Lot        lotRow
 	Specimens  []specimenRow
-	Properties []propertyRow // those with a value in the lot
-	Verdicts   []verdictRow  // every import's verdicts, latest first
+	Properties []propertyRow   // those with a value in the lot
+	Verdicts   []verdictRow    // every import's verdicts, latest first
 	Limits     []importedLimit // in force (latest import) for the lot's material
 	AllLimits  []importedLimit // every import's, for the lot's material
 	Imports    map[string]Import
@@ -264,8 +264,9 @@ type propertyRow struct {
 	Property, Quantity, Unit string
 }
 
-// lot reads one lot; ok is false when there is no such lot.
-func (d *DB) lot(ctx context.Context, id string) (*lotDetail, bool, error) {
+// lot reads one lot (its verdicts from idx); ok is false when there is no
+// such lot.
+func (d *DB) lot(ctx context.Context, id string, idx *index) (*lotDetail, bool, error) {
 	out := &lotDetail{Imports: map[string]Import{}}
 	err := d.db.QueryRowContext(ctx, d.q(`SELECT lot, supplier, material, import_digest FROM lots WHERE lot = ?`), id).
 		Scan(&out.Lot.Lot, &out.Lot.Supplier, &out.Lot.Material, &out.Lot.Import)
@@ -324,29 +325,7 @@ func (d *DB) lot(ctx context.Context, id string) (*lotDetail, bool, error) {
 	}
 	sort.Slice(out.Properties, func(i, j int) bool { return out.Properties[i].Property < out.Properties[j].Property })
 
-	rows, err = d.db.QueryContext(ctx, d.q(`SELECT v.spec, v.verdict, v.import_digest, i.imported_at
-		FROM verdicts v JOIN imports i ON i.digest = v.import_digest WHERE v.lot = ?`), id)
-	if err != nil {
-		return nil, false, err
-	}
-	for rows.Next() {
-		var v verdictRow
-		if err := rows.Scan(&v.Spec, &v.Verdict, &v.Import, &v.ImportedAt); err != nil {
-			rows.Close()
-			return nil, false, err
-		}
-		out.Verdicts = append(out.Verdicts, v)
-	}
-	if err := closeRows(rows); err != nil {
-		return nil, false, err
-	}
-	sort.Slice(out.Verdicts, func(i, j int) bool {
-		a, b := out.Verdicts[i], out.Verdicts[j]
-		if a.Spec != b.Spec {
-			return a.Spec < b.Spec
-		}
-		return latestFirst(a.ImportedAt, a.Import, b.ImportedAt, b.Import)
-	})
+	out.Verdicts = idx.verdicts[id]
 	if out.Limits, err = d.limits(ctx, "l.material = ?", []any{out.Lot.Material}); err != nil {
 		return nil, false, err
 	}
@@ -425,15 +404,12 @@ func likePrefix(s string) string {
 // search finds lots, heats and specimens whose id starts with q (letter
 // case matters), exact matches first; at most MaxHits+1 of each kind (one
 // more, so that the page can say the list was cut).
-func (d *DB) search(ctx context.Context, q string) ([]Hit, error) {
+func (d *DB) search(ctx context.Context, q string, idx *index) ([]Hit, error) {
 	pat := likePrefix(q)
 	queries := []struct{ kind, sql string }{
 		{"lot", `SELECT l.lot, l.lot, l.supplier, l.material, COALESCE(MIN(s.tested), '')
 			FROM lots l LEFT JOIN specimens s ON s.lot = l.lot
 			WHERE l.lot LIKE ? ESCAPE '\' GROUP BY l.lot, l.supplier, l.material ORDER BY l.lot LIMIT ?`},
-		{"heat", `SELECT s.heat, l.lot, l.supplier, l.material, COALESCE(MIN(s.tested), '')
-			FROM specimens s JOIN lots l ON l.lot = s.lot
-			WHERE s.heat <> '' AND s.heat LIKE ? ESCAPE '\' GROUP BY s.heat, l.lot, l.supplier, l.material ORDER BY s.heat, l.lot LIMIT ?`},
 		{"specimen", `SELECT s.specimen, l.lot, l.supplier, l.material, s.tested
 			FROM specimens s JOIN lots l ON l.lot = s.lot
 			WHERE s.specimen LIKE ? ESCAPE '\' ORDER BY s.specimen LIMIT ?`},
@@ -467,6 +443,83 @@ func (d *DB) search(ctx context.Context, q string) ([]Hit, error) {
 			return hits[i].Lot < hits[j].Lot
 		})
 		out = append(out, hits...)
+		if qq.kind == "lot" {
+			out = append(out, idx.heatsFrom(q, MaxHits+1)...)
+		}
 	}
 	return out, nil
+}
+
+// index is what the lot page and the search need from the whole history,
+// read once per state of the database: the schema has no index on a
+// lot's verdicts or on heats, and a read-only server adds none.
+type index struct {
+	verdicts map[string][]verdictRow // per lot: by specification, latest import first
+	heats    []Hit                   // every heat and lot, by heat then lot
+}
+
+func (d *DB) loadIndex(ctx context.Context) (*index, error) {
+	idx := &index{verdicts: map[string][]verdictRow{}}
+	rows, err := d.db.QueryContext(ctx, `SELECT v.lot, v.spec, v.verdict, v.import_digest, i.imported_at
+		FROM verdicts v JOIN imports i ON i.digest = v.import_digest`)
+	if err != nil {
+		return nil, err
+	}
+	for rows.Next() {
+		var lot string
+		var v verdictRow
+		if err := rows.Scan(&lot, &v.Spec, &v.Verdict, &v.Import, &v.ImportedAt); err != nil {
+			rows.Close()
+			return nil, err
+		}
+		idx.verdicts[lot] = append(idx.verdicts[lot], v)
+	}
+	if err := closeRows(rows); err != nil {
+		return nil, err
+	}
+	for _, vs := range idx.verdicts {
+		sort.Slice(vs, func(i, j int) bool {
+			a, b := vs[i], vs[j]
+			if a.Spec != b.Spec {
+				return a.Spec < b.Spec
+			}
+			return latestFirst(a.ImportedAt, a.Import, b.ImportedAt, b.Import)
+		})
+	}
+	rows, err = d.db.QueryContext(ctx, `SELECT s.heat, l.lot, l.supplier, l.material, COALESCE(MIN(s.tested), '')
+		FROM specimens s JOIN lots l ON l.lot = s.lot
+		WHERE s.heat <> '' GROUP BY s.heat, l.lot, l.supplier, l.material`)
+	if err != nil {
+		return nil, err
+	}
+	for rows.Next() {
+		h := Hit{Kind: "heat"}
+		if err := rows.Scan(&h.Key, &h.Lot, &h.Supplier, &h.Material, &h.Tested); err != nil {
+			rows.Close()
+			return nil, err
+		}
+		idx.heats = append(idx.heats, h)
+	}
+	if err := closeRows(rows); err != nil {
+		return nil, err
+	}
+	sort.Slice(idx.heats, func(i, j int) bool {
+		a, b := idx.heats[i], idx.heats[j]
+		if a.Key != b.Key {
+			return a.Key < b.Key
+		}
+		return a.Lot < b.Lot
+	})
+	return idx, nil
+}
+
+// heatsFrom returns at most n heats starting with q (bytewise, so letter
+// case matters), in order.
+func (idx *index) heatsFrom(q string, n int) []Hit {
+	i := sort.Search(len(idx.heats), func(i int) bool { return idx.heats[i].Key >= q })
+	var out []Hit
+	for ; i < len(idx.heats) && len(out) < n && strings.HasPrefix(idx.heats[i].Key, q); i++ {
+		out = append(out, idx.heats[i])
+	}
+	return out
 }

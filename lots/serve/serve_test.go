@@ -217,16 +217,13 @@ func TestHostileIDsInert(t *testing.T) {
 				t.Errorf("%s: page contains %q", target, bad)
 			}
 		}
-		_, page, _ = get(t, s, target+"&format=json")
+		sep := "?"
 		if strings.Contains(target, "?") {
-			_, page, _ = get(t, s, target+"&format=json")
-		} else {
-			_, page, _ = get(t, s, target+"?format=json")
+			sep = "&"
 		}
-		if strings.Contains(target, hostile) || strings.Contains(target, url.PathEscape(hostile)) {
-			if !strings.Contains(page, "<script>alert(1)</script>") && !strings.Contains(page, "no supplier") && !strings.Contains(page, "no lot") {
-				t.Errorf("%s: JSON does not carry the id verbatim:\n%.300s", target, page)
-			}
+		_, page, _ = get(t, s, target+sep+"format=json")
+		if target != "/" && !strings.Contains(page, "<script>alert(1)</script>") {
+			t.Errorf("%s: JSON does not carry the id verbatim:\n%.300s", target, page)
 		}
 	}
 	_, page, _ := get(t, s, "/lot/"+url.PathEscape(hostile+"5"))

@@ -75,7 +75,14 @@ func New(db *DB, hist History, opt Options) (*Server, error) {
 		return nil, err
 	}
 	s := &Server{db: db, opt: opt, sem: make(chan struct{}, opt.MaxInFlight), log: opt.Log}
-	s.cache = newCache(func(ctx context.Context) (*trend.Result, error) { return computeTrend(ctx, hist, topt) }, db.fingerprint)
+	s.cache = newCache(func(ctx context.Context) (*trend.Result, *index, error) {
+		idx, err := db.loadIndex(ctx)
+		if err != nil {
+			return nil, nil, err
+		}
+		r, err := computeTrend(ctx, hist, topt)
+		return r, idx, err
+	}, db.fingerprint)
 	if opt.Token != "" {
 		if len(opt.Token) < MinTokenLength {
 			return nil, lots.Inputf("--token", fmt.Sprintf("use a random token of at least %d characters (for example: openssl rand -hex 24)", MinTokenLength), "the token is too short")

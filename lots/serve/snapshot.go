@@ -19,6 +19,7 @@ import (
 type snapshot struct {
 	key      string
 	base     *trend.Result // internal units; never changed after it is made
+	index    *index
 	computed time.Duration
 
 	mu    sync.Mutex
@@ -28,16 +29,17 @@ type snapshot struct {
 // view is the trend in one unit system with what the pages need from it,
 // indexed once.
 type view struct {
-	sys       units.System
-	trend     *trend.Result
-	periods   []string            // every period, in order
-	suppliers []string            // every group, in order
-	series    map[string][]int    // group -> indices into trend.Series
-	rows      map[string][]int    // group -> indices into trend.Periods
-	signals   map[string][]int    // group -> indices into trend.Signals
-	overview  *Overview           // the overview page data
-	figures   sync.Map            // group -> *supplierFigures (rendered on first use)
-	lotsOf    map[string][]LotRef // group -> lots, latest first
+	sys          units.System
+	trend        *trend.Result
+	periods      []string            // every period, in order
+	suppliers    []string            // every group, in order
+	series       map[string][]int    // group -> indices into trend.Series
+	rows         map[string][]int    // group -> indices into trend.Periods
+	signals      map[string][]int    // group -> indices into trend.Signals
+	overview     *Overview           // the overview page data
+	figures      sync.Map            // group -> []figureGroup (rendered on first use)
+	supplierJSON sync.Map            // group -> encoded supplier page without a period (on first use)
+	lotsOf       map[string][]LotRef // group -> lots, latest first
 }
 
 // LotRef is one lot in a supplier's list.
@@ -245,7 +247,7 @@ func itoa(n int64) string { return strconv.FormatInt(n, 10) }
 // cache keeps the latest snapshot and makes a new one when the database
 // changed. Only one computation runs at a time; the others wait for it.
 type cache struct {
-	compute func(ctx context.Context) (*trend.Result, error)
+	compute func(ctx context.Context) (*trend.Result, *index, error)
 	finger  func(ctx context.Context) (string, error)
 	every   time.Duration // how often the fingerprint is read at most
 
@@ -256,7 +258,7 @@ type cache struct {
 	busy    chan struct{}
 }
 
-func newCache(compute func(context.Context) (*trend.Result, error), finger func(context.Context) (string, error)) *cache {
+func newCache(compute func(context.Context) (*trend.Result, *index, error), finger func(context.Context) (string, error)) *cache {
 	return &cache{compute: compute, finger: finger, every: time.Second, busy: make(chan struct{}, 1)}
 }
 
@@ -293,11 +295,11 @@ func (c *cache) get(ctx context.Context) (*snapshot, error) {
 	start := time.Now()
 	// The computation outlives a request that gives up: the next one
 	// needs it too.
-	r, err := c.compute(context.WithoutCancel(ctx))
+	r, idx, err := c.compute(context.WithoutCancel(ctx))
 	if err != nil {
 		return nil, err
 	}
-	snap = &snapshot{key: key, base: r, computed: time.Since(start), views: map[units.System]*view{}}
+	snap = &snapshot{key: key, base: r, index: idx, computed: time.Since(start), views: map[units.System]*view{}}
 	c.mu.Lock()
 	c.snap = snap
 	c.mu.Unlock()
