@@ -62,7 +62,9 @@ func startServe(t *testing.T, o serveOptions) string {
 	ready := make(chan string, 1)
 	done := make(chan error, 1)
 	o.Listen = "127.0.0.1:0"
-	go func() { done <- runServe(ctx, o, streams{In: strings.NewReader(""), Out: io.Discard, Err: io.Discard}, ready) }()
+	go func() {
+		done <- runServe(ctx, o, streams{In: strings.NewReader(""), Out: io.Discard, Err: io.Discard}, ready)
+	}()
 	t.Cleanup(func() {
 		cancel()
 		if err := <-done; err != nil {
