@@ -323,7 +323,11 @@ func (s *Server) supplier(c *reqCtx) (*reply, error) {
 		if err := render.WriteJSON(&buf, p); err != nil {
 			return nil, err
 		}
-		v.supplierJSON.Store(g, buf.Bytes())
+		if v.keep(buf.Len()) {
+			if _, dup := v.supplierJSON.LoadOrStore(g, buf.Bytes()); dup {
+				v.cached.Add(-int64(buf.Len()))
+			}
+		}
 		return &reply{raw: buf.Bytes()}, nil
 	}
 	if c.json {
@@ -378,7 +382,17 @@ func (v *view) supplierFigures(g string) ([]figureGroup, error) {
 		}
 		out = append(out, fg)
 	}
-	v.figures.Store(g, out)
+	size := 0
+	for _, fg := range out {
+		for _, f := range fg.Figures {
+			size += len(f.SVG)
+		}
+	}
+	if v.keep(size) {
+		if _, dup := v.figures.LoadOrStore(g, out); dup {
+			v.cached.Add(-int64(size))
+		}
+	}
 	return out, nil
 }
 

@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strconv"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"lotproof/lots"
@@ -39,6 +40,7 @@ type view struct {
 	overview     *Overview           // the overview page data
 	figures      sync.Map            // group -> []figureGroup (rendered on first use)
 	supplierJSON sync.Map            // group -> encoded supplier page without a period (on first use)
+	cached       atomic.Int64        // bytes held in figures and supplierJSON, at most CacheBudget
 	lotsOf       map[string][]LotRef // group -> lots, latest first
 }
 
@@ -51,6 +53,21 @@ type LotRef struct {
 	Specimens int    `json:"specimens"` // most specimens of any property
 	Verdict   string `json:"verdict"`
 	Signals   int    `json:"signals"`
+}
+
+// CacheBudget bounds the bytes of rendered figures and encoded supplier
+// pages a view keeps (per unit system); beyond it pages are made afresh on
+// every request, so memory stays bounded with any number of suppliers.
+const CacheBudget = 64 << 20
+
+// keep reports whether n more bytes fit the view's cache budget, and
+// counts them when they do.
+func (v *view) keep(n int) bool {
+	if v.cached.Add(int64(n)) > CacheBudget {
+		v.cached.Add(-int64(n))
+		return false
+	}
+	return true
 }
 
 func (s *snapshot) view(sys units.System, recent int) *view {
