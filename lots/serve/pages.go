@@ -227,7 +227,7 @@ type SupplierPage struct {
 	Materials  []string       `json:"materials"`
 	Periods    []trend.Period `json:"periods"`
 	Signals    []trend.Signal `json:"signals"`
-	Series     []trend.Series `json:"series"`
+	Series     []trend.Series `json:"series"`     // with a period chosen, the points of its lots only
 	Lots       []LotRef       `json:"lots"`       // latest first; the chosen period's lots, or the latest MaxLatestLots
 	LotsTotal  int            `json:"lots_total"` // lots of the supplier (in the chosen period)
 	Methods    []string       `json:"methods"`
