@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"io"
 	"math"
 	"net/http"
@@ -497,5 +498,45 @@ func TestPolicyIsTheReports(t *testing.T) {
 	}
 	if !strings.HasPrefix(Policy, report.ContentSecurityPolicy+";") {
 		t.Error("the server's policy does not start with the report's")
+	}
+}
+
+// TestConcurrentPages: 8 clients request every kind of page at once while
+// an import lands; every answer is 200 (run with -race to check the cache).
+func TestConcurrentPages(t *testing.T) {
+	loc := filepath.Join(t.TempDir(), "h.db")
+	history(t, loc)
+	s, _ := newServer(t, loc, Options{MaxInFlight: 64})
+	s.cache.every = 0
+	srv := httptest.NewServer(s)
+	defer srv.Close()
+	targets := []string{"/", "/?units=us&format=json", "/supplier/Brindle%20Works", "/supplier/Brindle%20Works?format=json",
+		"/supplier/Brindle%20Works?units=us", "/lot/L2-00", "/lot/L2-00?format=json&units=us", "/search?q=H1", "/search?q=L"}
+	errs := make(chan error, 8)
+	for c := range 8 {
+		go func() {
+			for i := range 30 {
+				target := targets[(c+i)%len(targets)]
+				resp, err := http.Get(srv.URL + target)
+				if err != nil {
+					errs <- err
+					return
+				}
+				io.Copy(io.Discard, resp.Body)
+				resp.Body.Close()
+				if resp.StatusCode != 200 {
+					errs <- fmt.Errorf("%s: %d", target, resp.StatusCode)
+					return
+				}
+			}
+			errs <- nil
+		}()
+	}
+	d := dataset(t, "more.csv", []lotSpec{{lot: "N-1", heat: "HN", supplier: "Brindle Works", tested: "2026-05-02", tensile: 1000, proof: 880}}, 2)
+	record(t, loc, d, nil, nil, time.Date(2026, 11, 3, 9, 0, 0, 0, time.UTC))
+	for range 8 {
+		if err := <-errs; err != nil {
+			t.Error(err)
+		}
 	}
 }
