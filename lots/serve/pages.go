@@ -502,7 +502,11 @@ func (s *Server) lot(c *reqCtx) (*reply, error) {
 	if err != nil {
 		return nil, err
 	}
-	d, ok, err := s.db.lot(c.r.Context(), id, snap.index)
+	idx := snap.index
+	if s.cache.stale(snap) {
+		idx = nil // the history changed since: read the verdicts afresh
+	}
+	d, ok, err := s.db.lot(c.r.Context(), id, idx)
 	if err != nil {
 		return nil, err
 	}

@@ -264,8 +264,8 @@ type propertyRow struct {
 	Property, Quantity, Unit string
 }
 
-// lot reads one lot (its verdicts from idx); ok is false when there is no
-// such lot.
+// lot reads one lot, its verdicts from idx (nil: from the database); ok is
+// false when there is no such lot.
 func (d *DB) lot(ctx context.Context, id string, idx *index) (*lotDetail, bool, error) {
 	out := &lotDetail{Imports: map[string]Import{}}
 	err := d.db.QueryRowContext(ctx, d.q(`SELECT lot, supplier, material, import_digest FROM lots WHERE lot = ?`), id).
@@ -325,7 +325,11 @@ func (d *DB) lot(ctx context.Context, id string, idx *index) (*lotDetail, bool, 
 	}
 	sort.Slice(out.Properties, func(i, j int) bool { return out.Properties[i].Property < out.Properties[j].Property })
 
-	out.Verdicts = idx.verdicts[id]
+	if idx != nil {
+		out.Verdicts = idx.verdicts[id]
+	} else if out.Verdicts, err = d.lotVerdicts(ctx, id); err != nil {
+		return nil, false, err
+	}
 	if out.Limits, err = d.limits(ctx, "l.material = ?", []any{out.Lot.Material}); err != nil {
 		return nil, false, err
 	}
@@ -372,6 +376,41 @@ func (d *DB) lot(ctx context.Context, id string, idx *index) (*lotDetail, bool, 
 		}
 	}
 	return out, true, nil
+}
+
+// lotVerdicts reads the verdicts of one lot, by specification, latest
+// import first (a scan of the verdicts table: the schema has no index on
+// their lot).
+func (d *DB) lotVerdicts(ctx context.Context, id string) ([]verdictRow, error) {
+	rows, err := d.db.QueryContext(ctx, d.q(`SELECT v.spec, v.verdict, v.import_digest, i.imported_at
+		FROM verdicts v JOIN imports i ON i.digest = v.import_digest WHERE v.lot = ?`), id)
+	if err != nil {
+		return nil, err
+	}
+	var out []verdictRow
+	for rows.Next() {
+		var v verdictRow
+		if err := rows.Scan(&v.Spec, &v.Verdict, &v.Import, &v.ImportedAt); err != nil {
+			rows.Close()
+			return nil, err
+		}
+		out = append(out, v)
+	}
+	if err := closeRows(rows); err != nil {
+		return nil, err
+	}
+	sortVerdicts(out)
+	return out, nil
+}
+
+func sortVerdicts(vs []verdictRow) {
+	sort.Slice(vs, func(i, j int) bool {
+		a, b := vs[i], vs[j]
+		if a.Spec != b.Spec {
+			return a.Spec < b.Spec
+		}
+		return latestFirst(a.ImportedAt, a.Import, b.ImportedAt, b.Import)
+	})
 }
 
 func closeRows(rows *sql.Rows) error {
@@ -478,13 +517,7 @@ func (d *DB) loadIndex(ctx context.Context) (*index, error) {
 		return nil, err
 	}
 	for _, vs := range idx.verdicts {
-		sort.Slice(vs, func(i, j int) bool {
-			a, b := vs[i], vs[j]
-			if a.Spec != b.Spec {
-				return a.Spec < b.Spec
-			}
-			return latestFirst(a.ImportedAt, a.Import, b.ImportedAt, b.Import)
-		})
+		sortVerdicts(vs)
 	}
 	rows, err = d.db.QueryContext(ctx, `SELECT s.heat, l.lot, l.supplier, l.material, COALESCE(MIN(s.tested), '')
 		FROM specimens s JOIN lots l ON l.lot = s.lot

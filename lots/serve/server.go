@@ -82,7 +82,7 @@ func New(db *DB, hist History, opt Options) (*Server, error) {
 		}
 		r, err := computeTrend(ctx, hist, topt)
 		return r, idx, err
-	}, db.fingerprint)
+	}, db.fingerprint, opt.Log)
 	if opt.Token != "" {
 		if len(opt.Token) < MinTokenLength {
 			return nil, lots.Inputf("--token", fmt.Sprintf("use a random token of at least %d characters (for example: openssl rand -hex 24)", MinTokenLength), "the token is too short")

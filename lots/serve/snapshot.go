@@ -2,6 +2,8 @@ package serve
 
 import (
 	"context"
+	"fmt"
+	"io"
 	"math"
 	"slices"
 	"sort"
@@ -262,25 +264,31 @@ func weaker(lo, est, clo, cest lots.Float) bool {
 func itoa(n int64) string { return strconv.FormatInt(n, 10) }
 
 // cache keeps the latest snapshot and makes a new one when the database
-// changed. Only one computation runs at a time; the others wait for it.
+// changed. Only one computation runs at a time. Until the first snapshot
+// exists, requests wait for it; after that, a request that finds the
+// database changed starts the new computation in the background and is
+// served the previous snapshot, so that an import never stalls the pages
+// (they lag it by the computation's time).
 type cache struct {
 	compute func(ctx context.Context) (*trend.Result, *index, error)
 	finger  func(ctx context.Context) (string, error)
 	every   time.Duration // how often the fingerprint is read at most
+	log     io.Writer
 
-	mu      sync.Mutex
-	snap    *snapshot
-	checked time.Time
-	key     string // the fingerprint read at checked
-	busy    chan struct{}
+	mu         sync.Mutex
+	snap       *snapshot
+	checked    time.Time
+	key        string // the fingerprint read at checked
+	refreshing bool   // a background computation is running
+	busy       chan struct{}
 }
 
-func newCache(compute func(context.Context) (*trend.Result, *index, error), finger func(context.Context) (string, error)) *cache {
-	return &cache{compute: compute, finger: finger, every: time.Second, busy: make(chan struct{}, 1)}
+func newCache(compute func(context.Context) (*trend.Result, *index, error), finger func(context.Context) (string, error), log io.Writer) *cache {
+	return &cache{compute: compute, finger: finger, every: time.Second, log: log, busy: make(chan struct{}, 1)}
 }
 
-// get returns the snapshot of the database as it is now (at most c.every
-// old).
+// get returns the latest snapshot: that of the database as it is now (read
+// at most c.every ago), or the previous one while the new one is computed.
 func (c *cache) get(ctx context.Context) (*snapshot, error) {
 	c.mu.Lock()
 	snap, key, fresh := c.snap, c.key, time.Since(c.checked) < c.every
@@ -294,7 +302,15 @@ func (c *cache) get(ctx context.Context) (*snapshot, error) {
 		c.key, c.checked, key = k, time.Now(), k
 		c.mu.Unlock()
 	}
-	if snap != nil && snap.key == key {
+	if snap != nil {
+		if snap.key != key {
+			c.mu.Lock()
+			if !c.refreshing {
+				c.refreshing = true
+				go c.refresh(key)
+			}
+			c.mu.Unlock()
+		}
 		return snap, nil
 	}
 	select {
@@ -306,19 +322,46 @@ func (c *cache) get(ctx context.Context) (*snapshot, error) {
 	c.mu.Lock()
 	snap = c.snap
 	c.mu.Unlock()
-	if snap != nil && snap.key == key {
+	if snap != nil {
 		return snap, nil // computed while this request waited
 	}
-	start := time.Now()
 	// The computation outlives a request that gives up: the next one
 	// needs it too.
-	r, idx, err := c.compute(context.WithoutCancel(ctx))
+	return c.make(context.WithoutCancel(ctx), key)
+}
+
+// stale reports whether snap is older than the database as last read.
+func (c *cache) stale(snap *snapshot) bool {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return snap.key != c.key
+}
+
+// make computes the snapshot for fingerprint key and keeps it; the caller
+// holds c.busy.
+func (c *cache) make(ctx context.Context, key string) (*snapshot, error) {
+	start := time.Now()
+	r, idx, err := c.compute(ctx)
 	if err != nil {
 		return nil, err
 	}
-	snap = &snapshot{key: key, base: r, index: idx, computed: time.Since(start), views: map[units.System]*view{}}
+	snap := &snapshot{key: key, base: r, index: idx, computed: time.Since(start), views: map[units.System]*view{}}
 	c.mu.Lock()
 	c.snap = snap
 	c.mu.Unlock()
 	return snap, nil
+}
+
+// refresh computes the snapshot for key in the background.
+func (c *cache) refresh(key string) {
+	c.busy <- struct{}{}
+	defer func() {
+		<-c.busy
+		c.mu.Lock()
+		c.refreshing = false
+		c.mu.Unlock()
+	}()
+	if _, err := c.make(context.Background(), key); err != nil {
+		fmt.Fprintf(c.log, "lotproof serve: updating the trend after a change of the history: %v (the previous state is shown)\n", err)
+	}
 }
