@@ -555,3 +555,17 @@ func TestConcurrentPages(t *testing.T) {
 		}
 	}
 }
+
+// TestCacheBudget: a view keeps rendered pages only up to CacheBudget.
+func TestCacheBudget(t *testing.T) {
+	v := &view{}
+	if !v.keep(CacheBudget - 10) || !v.keep(10) {
+		t.Fatal("refused within the budget")
+	}
+	if v.keep(1) {
+		t.Error("kept a byte beyond the budget")
+	}
+	if got := v.cached.Load(); got != CacheBudget {
+		t.Errorf("counted %d bytes, want %d", got, CacheBudget)
+	}
+}
