@@ -559,7 +559,7 @@ func TestConcurrentPages(t *testing.T) {
 // TestCacheBudget: a view keeps rendered pages only up to CacheBudget.
 func TestCacheBudget(t *testing.T) {
 	v := &view{}
-	if !v.keep(CacheBudget - 10) || !v.keep(10) {
+	if !v.keep(CacheBudget-10) || !v.keep(10) {
 		t.Fatal("refused within the budget")
 	}
 	if v.keep(1) {
