@@ -90,8 +90,10 @@ func TailFractionMVUE(n int, q float64) (float64, error) {
 // 31.4). The upper bound solves F_T(sqrt(n) q; n-1, delta_U) = gamma for
 // delta_U and returns Phi(-delta_U / sqrt(n)); the lower bound solves
 // F_T(...; delta_L) = 1 - gamma. F_T is stats.NoncentralTCDF, decreasing
-// in delta; the root is found on a bracket by the Illinois method (to 1e-12
-// in delta). The upper bound is at most 1 - p exactly when xbar - k s >= L for
+// in delta; the root is found by safeguarded Newton steps using the
+// derivative in delta from the same quadrature pass, a rough phase on an
+// unchecked rule first and checked passes at the end (about 3 rough and 1
+// checked pass per call; see solveNoncentralityCount). The upper bound is at most 1 - p exactly when xbar - k s >= L for
 // the one-sided (p, gamma) normal tolerance factor k (the two are the same
 // test).
 func TailFractionBound(n int, q, gamma float64, upper bool) (float64, error) {
@@ -114,65 +116,145 @@ func TailFractionBound(n int, q, gamma float64, upper bool) (float64, error) {
 
 // solveNoncentrality returns delta with NoncentralTCDF(t, df, delta) = target.
 func solveNoncentrality(t, df, target float64) (float64, error) {
-	f := func(d float64) float64 { return NoncentralTCDF(t, df, d) - target }
-	// F decreases in delta from 1 to 0. Grow a bracket around t in steps
-	// of the approximate spread of T, sqrt(1 + t^2/(2 df)) (Johnson, Kotz
-	// and Balakrishnan vol. 2, 31.7), so the CDF is never asked for
-	// probabilities far out in its tails.
-	sd := math.Sqrt(1 + t*t/(2*df))
-	step := 1.5 * sd
-	lo, hi := t-step, t+step
-	for i := 0; f(lo) < 0; i++ {
-		if i > 40 {
-			return math.NaN(), fmt.Errorf("noncentrality not bracketed below (t=%g df=%g)", t, df)
-		}
-		hi = lo
-		lo -= step
-		step *= 1.6
-	}
-	step = 1.5 * sd
-	for i := 0; f(hi) > 0; i++ {
-		if i > 40 {
-			return math.NaN(), fmt.Errorf("noncentrality not bracketed above (t=%g df=%g)", t, df)
-		}
-		lo = hi
-		hi += step
-		step *= 1.6
-	}
-	// Illinois (modified regula falsi; Dowell and Jarratt 1971, BIT
-	// 11:168) on the bracket: superlinear, and never leaves the bracket.
-	flo, fhi := f(lo), f(hi)
-	side := 0
-	for range 200 {
-		if flo == 0 {
-			return lo, nil
-		}
-		if fhi == 0 {
-			return hi, nil
-		}
-		x := (lo*fhi - hi*flo) / (fhi - flo)
-		if !(x > lo && x < hi) {
-			x = 0.5 * (lo + hi)
-		}
-		fx := f(x)
-		if fx > 0 { // root above x
-			lo, flo = x, fx
-			if side == -1 {
-				fhi /= 2
-			}
-			side = -1
+	delta, _, err := solveNoncentralityCount(t, df, target)
+	return delta, err
+}
+
+// ncSolveStats counts the work of one solve: CDF passes on the rough
+// (unchecked 16-point) rule and on the checked rule, and integrand
+// evaluations in all.
+type ncSolveStats struct{ rough, precise, evals int }
+
+// solveNoncentralityCount is solveNoncentrality reporting its work.
+//
+// g(delta) = F - target (or (1 - target) - (1 - F) when target > 1/2, so
+// that the smaller tail carries the accuracy) decreases in delta with
+// derivative -D, D = integral h(w) phi(t e^w - delta) dw, which the same
+// quadrature pass integrates alongside F (see ntDF.pass). Steps:
+//  1. start from the normal approximation of T (S approx N(1, 1/(2 df)):
+//     F approx Phi((t - delta)/sd), sd = sqrt(1 + t^2/(2 df)); Johnson,
+//     Kotz and Balakrishnan vol. 2, 31.7), delta0 = t - z_target sd;
+//  2. rough phase: Newton steps on the unchecked 16-point rule until the
+//     step is below 1e-7 (relative to max(1, |delta|));
+//  3. precise phase: one checked pass at the rough root and a Newton step
+//     with the rough derivative, accepted when below 1e-9 (the error left
+//     is of the order of its square); otherwise safeguarded Newton on
+//     checked passes inside a bracket [lo, hi] with g(lo) > 0 > g(hi),
+//     with bisection whenever a step leaves it and steps of at most 4 sd
+//     while the bracket is open. Stops at a step below 1e-9 or a bracket
+//     below 1e-12 (relative), as the Illinois solver it replaces did.
+func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, error) {
+	var st ncSolveStats
+	q := newNTDF(df)
+	useUpper := target > 0.5
+	g := func(delta float64, rough, wantD bool) (float64, float64) {
+		r := q.pass(t, delta, wantD, true, rough)
+		st.evals += r.evals
+		if rough {
+			st.rough++
 		} else {
-			hi, fhi = x, fx
-			if side == 1 {
-				flo /= 2
-			}
-			side = 1
+			st.precise++
 		}
-		if hi-lo <= 1e-12*math.Max(1, math.Abs(x)) || fx == 0 {
-			return x, nil
+		if useUpper {
+			return (1 - target) - r.upper, r.d
+		}
+		return r.lower - target, r.d
+	}
+	sd := math.Sqrt(1 + t*t/(2*df))
+	maxStep := 4 * sd
+	scale := func(x float64) float64 { return math.Max(1, math.Abs(x)) }
+	x0 := t - normalQuantile(target)*sd
+
+	// Rough phase.
+	x := x0
+	dRough := math.NaN()
+	for range 20 {
+		gx, d := g(x, true, true)
+		if !(d > 0) || math.IsInf(d, 0) || math.IsNaN(gx) {
+			x = x0
+			break
+		}
+		step := gx / d
+		if math.Abs(step) > maxStep { // far from the root: leave it to the safeguarded phase
+			x = x0
+			break
+		}
+		x += step
+		if math.Abs(step) <= 1e-7*scale(x) {
+			dRough = d
+			break
 		}
 	}
-	return 0.5 * (lo + hi), nil
+	// Checked passes without the derivative, stepping with the rough one
+	// (a stale-derivative Newton: each step shrinks the error by the
+	// relative error of the rough derivative, about 1e-6 or better).
+	lo, hi := math.Inf(-1), math.Inf(1)
+	if dRough > 0 {
+		prev := math.Inf(1)
+		for range 4 {
+			gx, _ := g(x, false, false)
+			if gx == 0 {
+				return x, st, nil
+			}
+			if gx > 0 { // root above x
+				lo = x
+			} else {
+				hi = x
+			}
+			step := gx / dRough
+			if math.Abs(step) <= 1e-9*scale(x) && x+step >= lo && x+step <= hi {
+				return x + step, st, nil
+			}
+			inside := x+step > lo && x+step < hi
+			if inside {
+				x += step
+			}
+			if math.Abs(step) > 0.01*prev || !inside {
+				break // not converging fast: safeguarded Newton below
+			}
+			prev = math.Abs(step)
+		}
+	}
+
+	// Precise phase: safeguarded Newton on a bracket.
+	expand := maxStep
+	for range 200 {
+		gx, d := g(x, false, true)
+		if gx == 0 {
+			return x, st, nil
+		}
+		if gx > 0 { // root above x
+			lo = x
+		} else {
+			hi = x
+		}
+		nx := math.NaN()
+		if d > 0 && !math.IsInf(d, 0) {
+			step := gx / d
+			if math.Abs(step) <= 1e-9*scale(x) && x+step >= lo && x+step <= hi {
+				return x + step, st, nil
+			}
+			step = math.Max(-maxStep, math.Min(maxStep, step))
+			nx = x + step
+		}
+		if math.IsNaN(nx) || nx <= lo || nx >= hi {
+			switch {
+			case math.IsInf(lo, -1):
+				nx = hi - expand
+				expand *= 2
+			case math.IsInf(hi, 1):
+				nx = lo + expand
+				expand *= 2
+			default:
+				nx = 0.5 * (lo + hi)
+			}
+		}
+		if !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && hi-lo <= 1e-12*scale(nx) {
+			return 0.5 * (lo + hi), st, nil
+		}
+		x = nx
+	}
+	return math.NaN(), st, fmt.Errorf("noncentrality not found (t=%g df=%g)", t, df)
 }
 
 func normalCDF(z float64) float64 { return 0.5 * math.Erfc(-z/math.Sqrt2) }
