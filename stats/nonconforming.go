@@ -271,6 +271,18 @@ func normalQuantile(p float64) float64 { return -math.Sqrt2 * math.Erfcinv(2*p) 
 // by up to 2.3e-9 relative there, so it is not used.
 // For an upper bound on the mean use xbar + (xbar - MeanLowerBound(...)).
 func MeanLowerBound(n int, xbar, s, gamma float64) (float64, error) {
+	return meanLowerBoundWith(n, xbar, s, gamma, meanBoundT)
+}
+
+// meanBoundT returns t_(gamma, n-1), the gamma quantile of Student's t with
+// n-1 degrees of freedom (NoncentralTQuantile with delta = 0).
+func meanBoundT(n int, gamma float64) (float64, error) {
+	return NoncentralTQuantile(gamma, float64(n-1), 0)
+}
+
+// meanLowerBoundWith is MeanLowerBound with the t quantile from tq (called
+// only with n >= 2 and gamma in (0, 1), gamma != 0.5).
+func meanLowerBoundWith(n int, xbar, s, gamma float64, tq func(int, float64) (float64, error)) (float64, error) {
 	if n < 2 {
 		return math.NaN(), fmt.Errorf("mean lower bound: n = %d, need at least 2: %w", n, ErrTooFew)
 	}
@@ -283,7 +295,7 @@ func MeanLowerBound(n int, xbar, s, gamma float64) (float64, error) {
 	if gamma == 0.5 {
 		return xbar, nil // the median of t is 0
 	}
-	t, err := NoncentralTQuantile(gamma, float64(n-1), 0)
+	t, err := tq(n, gamma)
 	if err != nil {
 		return math.NaN(), fmt.Errorf("mean lower bound: %w", err)
 	}
