@@ -149,12 +149,20 @@ var (
 // (byDelta) minus the derivative in delta, h(w)*phi(t e^w - delta).
 type ntProblem struct {
 	f, t, delta, logc float64
-	upper             bool // integrate Phi(delta - t s) (upper tail) instead
-	wantPDF           bool // compute the derivative integral d
-	byDelta           bool // d is -dF/d(delta) instead of dF/dt
-	rough             bool // fixed rule only, no accuracy check (solver start-up)
-	segments          int  // Gauss-Kronrod panels used so far (capped by ntMaxSegments)
-	evals             int  // integrand evaluations so far (for benchmarks)
+	upper             bool    // integrate Phi(delta - t s) (upper tail) instead
+	wantPDF           bool    // compute the derivative integral d
+	byDelta           bool    // d is -dF/d(delta) instead of dF/dt
+	rough             bool    // fixed rule only, no accuracy check (solver start-up)
+	segments          int     // Gauss-Kronrod panels used so far (capped by ntMaxSegments)
+	evals             int     // integrand evaluations so far (for benchmarks)
+	rule              *ntRule // if set: this fixed rule, unchecked, instead of the pair
+}
+
+// ntRule is a Gauss-Legendre rule (nodes x, weights w on [-1, 1]) applied
+// on equal panels.
+type ntRule struct {
+	x, w   []float64
+	panels int
 }
 
 func (p *ntProblem) eval(w float64) (c, d float64) {
@@ -341,6 +349,16 @@ func (p *ntProblem) runCut(lo, hi float64) (c, d float64) {
 	// the densities to 1e-11); otherwise the adaptive Gauss-Kronrod route.
 	var cChk, dChk float64
 	c, d = 0, 0
+	if p.rule != nil { // a given fixed rule, unchecked
+		pw := (b - a) / float64(p.rule.panels)
+		for i := range p.rule.panels {
+			pa := a + float64(i)*pw
+			ci, di := p.fixed(pa, pa+pw, p.rule.x, p.rule.w)
+			c += ci
+			d += di
+		}
+		return c, d
+	}
 	pw := (b - a) / float64(ntPanels)
 	for i := range ntPanels {
 		pa := a + float64(i)*pw
@@ -407,13 +425,19 @@ type ntPass struct {
 // density in t, or with byDelta the derivative -dF/d(delta) =
 // integral h(w) phi(t e^w - delta) dw, in the same pass.
 func (q *ntDF) pass(t, delta float64, wantD, byDelta, rough bool) ntPass {
+	return q.passRule(t, delta, wantD, byDelta, rough, nil)
+}
+
+// passRule is pass with an optional fixed rule (used unchecked, like the
+// rough rule, and without widening the window).
+func (q *ntDF) passRule(t, delta float64, wantD, byDelta, rough bool, rule *ntRule) ntPass {
 	// Window: h(w) above exp(-40) of its peak. Mass outside is below 1e-17,
 	// enough unless the small tail itself is tiny; then the window is
 	// widened to exp(-(36 - ln c)) so that what lies outside stays below
 	// 1e-16 relative to the tail c (up to the exp(-745) underflow limit).
 	f := q.f
 	lo, hi := q.lo, q.hi
-	p := ntProblem{f: f, t: t, delta: delta, logc: q.logc, wantPDF: wantD, byDelta: byDelta, rough: rough}
+	p := ntProblem{f: f, t: t, delta: delta, logc: q.logc, wantPDF: wantD, byDelta: byDelta, rough: rough || rule != nil, rule: rule}
 	// Decide which tail is small from a cheap evaluation at the mode
 	// (w = 0, s = 1): Phi(t - delta) approximates the CDF.
 	p.upper = t-delta > 0
