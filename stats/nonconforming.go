@@ -90,10 +90,11 @@ func TailFractionMVUE(n int, q float64) (float64, error) {
 // 31.4). The upper bound solves F_T(sqrt(n) q; n-1, delta_U) = gamma for
 // delta_U and returns Phi(-delta_U / sqrt(n)); the lower bound solves
 // F_T(...; delta_L) = 1 - gamma. F_T is stats.NoncentralTCDF, decreasing
-// in delta; the root is found by safeguarded Newton steps using the
-// derivative in delta from the same quadrature pass, a rough phase on an
-// unchecked rule first and checked passes at the end (about 3 rough and 1
-// checked pass per call; see solveNoncentralityCount). The upper bound is at most 1 - p exactly when xbar - k s >= L for
+// in delta; the root is found by safeguarded Halley steps using the first
+// and second derivatives in delta from the same quadrature pass (a focused
+// trapezoidal rule with its own error check, else the checked route of
+// NoncentralTCDF), about 2 to 3 CDF passes per call (see
+// solveNoncentralityCount). The upper bound is at most 1 - p exactly when xbar - k s >= L for
 // the one-sided (p, gamma) normal tolerance factor k (the two are the same
 // test).
 func TailFractionBound(n int, q, gamma float64, upper bool) (float64, error) {
@@ -120,106 +121,75 @@ func solveNoncentrality(t, df, target float64) (float64, error) {
 	return delta, err
 }
 
-// ncSolveStats counts the work of one solve: CDF passes on the rough
-// (unchecked 16-point) rule and on the checked rule, and integrand
-// evaluations in all.
-type ncSolveStats struct{ rough, precise, evals int }
+// ncSolveStats counts the work of one solve: CDF passes by the focused
+// quadrature (ntfocus.go) and by the checked route (ntDF.pass, used when a
+// focused pass fails its error check), and integrand evaluations in all.
+type ncSolveStats struct{ focused, checked, evals int }
 
 // solveNoncentralityCount is solveNoncentrality reporting its work.
 //
 // g(delta) = F - target (or (1 - target) - (1 - F) when target > 1/2, so
-// that the smaller tail carries the accuracy) decreases in delta with
-// derivative -D, D = integral h(w) phi(t e^w - delta) dw, which the same
-// quadrature pass integrates alongside F (see ntDF.pass). Steps:
+// that the smaller tail carries the accuracy) decreases in delta, with
+// g' = -D and g” = -E, D = integral h(w) phi(x) dw and
+// E = integral h(w) x phi(x) dw (x = t e^w - delta), which the same
+// quadrature pass integrates alongside F. Steps:
 //  1. start from the normal approximation of T (S approx N(1, 1/(2 df)):
 //     F approx Phi((t - delta)/sd), sd = sqrt(1 + t^2/(2 df)); Johnson,
 //     Kotz and Balakrishnan vol. 2, 31.7), delta0 = t - z_target sd;
-//  2. rough phase: Newton steps on the unchecked 16-point rule until the
-//     step is below 1e-7 (relative to max(1, |delta|));
-//  3. precise phase: one checked pass at the rough root and a Newton step
-//     with the rough derivative, accepted when below 1e-9 (the error left
-//     is of the order of its square); otherwise safeguarded Newton on
-//     checked passes inside a bracket [lo, hi] with g(lo) > 0 > g(hi),
-//     with bisection whenever a step leaves it and steps of at most 4 sd
-//     while the bracket is open. Stops at a step below 1e-9 or a bracket
-//     below 1e-12 (relative), as the Illinois solver it replaces did.
+//  2. Halley steps (cubic convergence; Press et al. 2007, Numerical
+//     Recipes 3rd ed., section 9.4.2) on CDF passes by the focused
+//     trapezoidal quadrature, whose own error check keeps them at about
+//     1e-13 relative or better; a pass that fails the check is redone by
+//     the checked route and followed by a Newton step;
+//  3. safeguards: a bracket [lo, hi] with g(lo) > 0 > g(hi) is kept from
+//     every pass, a step leaving it is replaced by bisection, and while the
+//     bracket is open steps are at most 4 sd.
+//
+// It stops when a Halley step is below 1e-6 or a Newton step below 1e-9
+// (relative to max(1, |delta|); the error left is of the order of the cube
+// or square of the step), or the bracket is below 1e-12 relative. Typical
+// acceptance inputs take 2 to 3 passes (BenchmarkTailFractionBound).
 func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, error) {
 	var st ncSolveStats
-	q := newNTDF(df)
 	useUpper := target > 0.5
-	g := func(delta float64, rough, wantD bool) (float64, float64) {
-		r := q.pass(t, delta, wantD, true, rough)
+	pr := ntProblem{f: df, t: t, logc: ntLogNorm(df), wantPDF: true, byDelta: true, upper: useUpper}
+	var q *ntDF // checked route, made on first use
+	mode := 0.0
+	// g, -g' and -g'' at delta (E NaN after a checked pass).
+	g := func(delta float64) (gx, D, E float64) {
+		pr.delta = delta
+		pr.evals = 0
+		c, d, e, m, ok := pr.focused(mode)
+		st.evals += pr.evals
+		if ok {
+			st.focused++
+			mode = m
+			if useUpper {
+				return (1 - target) - c, d, e
+			}
+			return c - target, d, e
+		}
+		if q == nil {
+			nd := newNTDF(df)
+			q = &nd
+		}
+		r := q.pass(t, delta, true, true, false)
+		st.checked++
 		st.evals += r.evals
-		if rough {
-			st.rough++
-		} else {
-			st.precise++
-		}
 		if useUpper {
-			return (1 - target) - r.upper, r.d
+			return (1 - target) - r.upper, r.d, math.NaN()
 		}
-		return r.lower - target, r.d
+		return r.lower - target, r.d, math.NaN()
 	}
 	sd := math.Sqrt(1 + t*t/(2*df))
 	maxStep := 4 * sd
 	scale := func(x float64) float64 { return math.Max(1, math.Abs(x)) }
-	x0 := t - normalQuantile(target)*sd
-
-	// Rough phase.
-	x := x0
-	dRough := math.NaN()
-	for range 20 {
-		gx, d := g(x, true, true)
-		if !(d > 0) || math.IsInf(d, 0) || math.IsNaN(gx) {
-			x = x0
-			break
-		}
-		step := gx / d
-		if math.Abs(step) > maxStep { // far from the root: leave it to the safeguarded phase
-			x = x0
-			break
-		}
-		x += step
-		if math.Abs(step) <= 1e-7*scale(x) {
-			dRough = d
-			break
-		}
-	}
-	// Checked passes without the derivative, stepping with the rough one
-	// (a stale-derivative Newton: each step shrinks the error by the
-	// relative error of the rough derivative, about 1e-6 or better).
+	x := t - normalQuantile(target)*sd
 	lo, hi := math.Inf(-1), math.Inf(1)
-	if dRough > 0 {
-		prev := math.Inf(1)
-		for range 4 {
-			gx, _ := g(x, false, false)
-			if gx == 0 {
-				return x, st, nil
-			}
-			if gx > 0 { // root above x
-				lo = x
-			} else {
-				hi = x
-			}
-			step := gx / dRough
-			if math.Abs(step) <= 1e-9*scale(x) && x+step >= lo && x+step <= hi {
-				return x + step, st, nil
-			}
-			inside := x+step > lo && x+step < hi
-			if inside {
-				x += step
-			}
-			if math.Abs(step) > 0.01*prev || !inside {
-				break // not converging fast: safeguarded Newton below
-			}
-			prev = math.Abs(step)
-		}
-	}
-
-	// Precise phase: safeguarded Newton on a bracket.
 	expand := maxStep
+	dx, dxOld := math.Inf(1), math.Inf(1) // the last two steps taken
 	for range 200 {
-		gx, d := g(x, false, true)
+		gx, D, E := g(x)
 		if gx == 0 {
 			return x, st, nil
 		}
@@ -229,15 +199,25 @@ func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, erro
 			hi = x
 		}
 		nx := math.NaN()
-		if d > 0 && !math.IsInf(d, 0) {
-			step := gx / d
-			if math.Abs(step) <= 1e-9*scale(x) && x+step >= lo && x+step <= hi {
+		if D > 0 && !math.IsInf(D, 0) {
+			step := gx / D // Newton: x - g/g'
+			tol := 1e-9
+			// Halley only near the root, where it corrects Newton by less
+			// than a factor 2; far out (tiny tails) it can crawl.
+			if r := gx * E / (2 * D * D); !math.IsNaN(E) && math.Abs(r) <= 0.5 {
+				step /= 1 + r // = 2 g D / (2 D^2 + g E), Halley
+				tol = 1e-6
+			}
+			if math.Abs(step) <= tol*scale(x) && x+step >= lo && x+step <= hi {
 				return x + step, st, nil
 			}
 			step = math.Max(-maxStep, math.Min(maxStep, step))
 			nx = x + step
 		}
-		if math.IsNaN(nx) || nx <= lo || nx >= hi {
+		// Bisect when the step leaves the bracket or is not at most half the
+		// step before last (slow progress; as in Press et al. 2007, rtsafe).
+		open := math.IsInf(lo, 0) || math.IsInf(hi, 0)
+		if math.IsNaN(nx) || nx <= lo || nx >= hi || (!open && math.Abs(nx-x) > 0.5*math.Abs(dxOld)) {
 			switch {
 			case math.IsInf(lo, -1):
 				nx = hi - expand
@@ -249,9 +229,10 @@ func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, erro
 				nx = 0.5 * (lo + hi)
 			}
 		}
-		if !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && hi-lo <= 1e-12*scale(nx) {
+		if !open && hi-lo <= 1e-12*scale(nx) {
 			return 0.5 * (lo + hi), st, nil
 		}
+		dxOld, dx = dx, nx-x
 		x = nx
 	}
 	return math.NaN(), st, fmt.Errorf("noncentrality not found (t=%g df=%g)", t, df)

@@ -54,7 +54,7 @@ func (p *ntProblem) focusLog(w, sgn float64, deriv bool) (l, l1, l2 float64) {
 // difference, and the result is accepted (ok) only if that difference is
 // below 1e-7. w0 is a starting point for the mode (0 if unknown); the mode
 // found is returned for use as the next start.
-func (p *ntProblem) focused(w0 float64) (c, d, mode float64, ok bool) {
+func (p *ntProblem) focused(w0 float64) (c, d, e, mode float64, ok bool) {
 	sgn := 1.0
 	if !p.upper {
 		sgn = -1
@@ -65,7 +65,7 @@ func (p *ntProblem) focused(w0 float64) (c, d, mode float64, ok bool) {
 	for it := 0; ; it++ {
 		l, l1, l2 = p.focusLog(w, sgn, true)
 		if !(l2 < 0) || math.IsNaN(l1) || math.IsNaN(l) || it > 60 {
-			return 0, 0, 0, false
+			return 0, 0, 0, 0, false
 		}
 		step := -l1 / l2
 		lim := 8 / math.Sqrt(-l2) // at most 8 local standard deviations
@@ -93,12 +93,12 @@ func (p *ntProblem) focused(w0 float64) (c, d, mode float64, ok bool) {
 	}
 	dL, dR := end(-1), end(1)
 	if math.IsNaN(dL) || math.IsNaN(dR) {
-		return 0, 0, 0, false
+		return 0, 0, 0, 0, false
 	}
 	// Step 0.4 sigma; if the check fails, 0.4 of the smallest local scale
 	// 1/sqrt(-(ln c)'') at the mode and 2 sigma either side (the curvature
 	// can grow away from the mode, e.g. where the normal factor falls off).
-	c, d, ok = p.trapezoid(w, sgn, dL, dR, 0.4*sigma)
+	c, d, e, ok = p.trapezoid(w, sgn, dL, dR, 0.4*sigma)
 	if !ok {
 		local := sigma
 		for _, off := range [2]float64{-2, 2} {
@@ -107,49 +107,56 @@ func (p *ntProblem) focused(w0 float64) (c, d, mode float64, ok bool) {
 			}
 		}
 		if local < 0.9*sigma {
-			c, d, ok = p.trapezoid(w, sgn, dL, dR, 0.4*local)
+			c, d, e, ok = p.trapezoid(w, sgn, dL, dR, 0.4*local)
 		}
 	}
 	if !ok {
-		return 0, 0, 0, false
+		return 0, 0, 0, 0, false
 	}
-	return c, d, w, true
+	return c, d, e, w, true
 }
 
 // trapezoid applies the trapezoidal rule with step h on [w - dL, w + dR]
 // (nodes on the grid w + i h) and checks it against the rule with step 2h.
-func (p *ntProblem) trapezoid(w, sgn, dL, dR, h float64) (c, d float64, ok bool) {
+func (p *ntProblem) trapezoid(w, sgn, dL, dR, h float64) (c, d, e float64, ok bool) {
 	var c2 float64 // every other node: the rule with step 2h
 	for i := -int(math.Ceil(dL / h)); i <= int(math.Ceil(dR/h)); i++ {
 		even := i%2 == 0
-		ci, di := p.evalFocused(w+float64(i)*h, sgn, even)
+		ci, di, ei := p.evalFocused(w+float64(i)*h, sgn, even && p.wantPDF)
 		c += ci
 		if even {
 			c2 += ci
 			d += di
+			e += ei
 		}
 	}
-	c, d, c2 = c*h, d*2*h, c2*2*h
-	return c, d, c > 0 && math.Abs(c-c2) <= 1e-7*c
+	c, d, e, c2 = c*h, d*2*h, e*2*h, c2*2*h
+	return c, d, e, c > 0 && math.Abs(c-c2) <= 1e-7*c
 }
 
 // evalFocused is eval for the focused rule: the small-tail integrand c
 // (sgn as in focusLog) and, if wantD, the density integrand in t,
 // h(w) e^w phi(t e^w - delta). The density only steers Newton steps, so it
 // is integrated on every other node (the step-2h rule, accurate to about
-// 1e-7 relative or better).
-func (p *ntProblem) evalFocused(w, sgn float64, wantD bool) (c, d float64) {
+// 1e-7 relative or better). With byDelta, d is h(w) phi(x) = -dF/d(delta)
+// and e = h(w) x phi(x) = -d2F/d(delta)2, x = t e^w - delta.
+func (p *ntProblem) evalFocused(w, sgn float64, wantD bool) (c, d, e float64) {
 	p.evals++
 	s := math.Exp(w)
 	lh := p.logc + 0.5*p.f*ntTwoWMinusExpm1(2*w, s*s-1) // s*s-1 is used only for |2w| >= 0.25
 	if lh < -745 {
-		return 0, 0
+		return 0, 0, 0
 	}
 	h := math.Exp(lh)
 	x := p.t*s - p.delta
 	c = h * 0.5 * math.Erfc(sgn*x/math.Sqrt2)
 	if wantD {
-		d = h * s * math.Exp(-0.5*x*x) * (1 / math.Sqrt(2*math.Pi))
+		hphi := h * math.Exp(-0.5*x*x) * (1 / math.Sqrt(2*math.Pi))
+		if p.byDelta {
+			d, e = hphi, hphi*x
+		} else {
+			d = hphi * s
+		}
 	}
-	return c, d
+	return c, d, e
 }
