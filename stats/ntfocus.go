@@ -80,14 +80,23 @@ func (p *ntProblem) focused(w0 float64) (c, d, e, mode float64, ok bool) {
 	sigma := 1 / math.Sqrt(-l2)
 	// Ends: ln c at least 37 below its value at the mode.
 	const drop = 37
+	// From 8.6 sigma (where a Gaussian has dropped by 37), move out along
+	// the tangent of ln c: as ln c is concave it lies below its tangents,
+	// so the point where the tangent has dropped by 37 is at or beyond the
+	// true end.
 	end := func(dir float64) float64 {
-		d := 8.6 * sigma // a Gaussian has dropped by 37 here
+		d := 8.6 * sigma
 		for range 60 {
-			le, _, _ := p.focusLog(w+dir*d, sgn, false)
+			le, l1e, _ := p.focusLog(w+dir*d, sgn, true)
 			if l-le >= drop || math.IsNaN(le) {
 				return d
 			}
-			d *= 1.5
+			slope := -dir * l1e // rate of drop per unit distance outward
+			if slope > 0 {
+				d += math.Min((drop-(l-le))/slope, d) * 1.0000001
+			} else {
+				d *= 1.5
+			}
 		}
 		return math.NaN()
 	}
