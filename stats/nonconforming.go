@@ -159,7 +159,7 @@ func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, erro
 	g := func(delta float64) (gx, D, E float64) {
 		pr.delta = delta
 		pr.evals = 0
-		c, d, e, m, ok := pr.focused(mode)
+		c, d, e, m, ok := pr.focused(mode, 0.4)
 		st.evals += pr.evals
 		if ok {
 			st.focused++

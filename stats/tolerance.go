@@ -252,7 +252,7 @@ func normalKFocused(n int, zp, gamma, k0, mode float64) (k, modeOut float64, ok 
 	x := k0 * rn
 	for range 6 {
 		pr.t = x
-		c, d, _, m, good := pr.focused(mode)
+		c, d, _, m, good := pr.focused(mode, 0.5)
 		if !good || !(d > 0) {
 			return 0, 0, false
 		}
