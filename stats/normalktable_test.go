@@ -49,9 +49,9 @@ func TestNormalKTableMatchesNormalK(t *testing.T) {
 				t.Errorf("p=%g gamma=%g n=%d: table %.17g, NormalK %.17g (rel %.2g)", p, g, ns[i], ks[i], want, e)
 			}
 		}
-		// The fast route must actually be taken (n >= 30), not NormalK.
-		out := make([]float64, len(ns)-28)
-		fast, err := normalKRun(ns[28:], p, g, out)
+		// The fast route must actually be taken (n > 100), not NormalK.
+		out := make([]float64, len(ns)-99)
+		fast, err := normalKRun(ns[99:], p, g, out)
 		if err != nil || fast < len(out)*99/100 {
 			t.Errorf("p=%g gamma=%g: fast route for %d of %d sizes (%v)", p, g, fast, len(out), err)
 		}
