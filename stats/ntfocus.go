@@ -57,8 +57,9 @@ func (p *ntProblem) focusLog(w, sgn float64, deriv bool) (l, l1, l2 float64) {
 // error of the step-h rule behaves like C times the square of their
 // relative difference (C below 0.2 where we measured it, the typical
 // acceptance inputs of BenchmarkTailFractionBound), and the result is
-// accepted (ok) only if that difference is below 1e-7. w0 is a starting point for the mode (0 if unknown); the mode
-// found is returned for use as the next start.
+// accepted (ok) only if that difference is below 1e-7. w0 is a starting
+// point for the mode (0 if unknown); the mode found is returned for use as
+// the next start.
 func (p *ntProblem) focused(w0, hs float64) (c, d, e, mode float64, ok bool) {
 	sgn := 1.0
 	if !p.upper {
@@ -139,6 +140,9 @@ func (p *ntProblem) trapezoid(w, sgn, dL, dR, h float64) (c, d, e float64, ok bo
 	var r [8]float64
 	for j := range r {
 		r[j] = math.Exp(float64(j) * h)
+	}
+	if !((dL+dR)/h < 4000) { // not worth it (or NaN): the checked route instead
+		return 0, 0, 0, false
 	}
 	i0, i1 := -int(math.Ceil(dL/h)), int(math.Ceil(dR/h))
 	anchor, aPrev := 0.0, math.MinInt
