@@ -144,17 +144,29 @@ var (
 	}
 )
 
-// ntIntegrand evaluates, at w, the CDF integrand (or its complement) and the
-// density integrand: h(w)*Phi(+-(t e^w - delta)) and h(w)*e^w*phi(t e^w - delta).
+// ntProblem evaluates, at w, the CDF integrand (or its complement) and a
+// derivative integrand: the density in t, h(w)*e^w*phi(t e^w - delta), or
+// (byDelta) minus the derivative in delta, h(w)*phi(t e^w - delta).
 type ntProblem struct {
 	f, t, delta, logc float64
-	upper             bool // integrate Phi(delta - t s) (upper tail) instead
-	wantPDF           bool
-	rough             bool // fixed rule only, no accuracy check (solver start-up)
-	segments          int  // Gauss-Kronrod panels used so far (capped by ntMaxSegments)
+	upper             bool    // integrate Phi(delta - t s) (upper tail) instead
+	wantPDF           bool    // compute the derivative integral d
+	byDelta           bool    // d is -dF/d(delta) instead of dF/dt
+	rough             bool    // fixed rule only, no accuracy check (solver start-up)
+	segments          int     // Gauss-Kronrod panels used so far (capped by ntMaxSegments)
+	evals             int     // integrand evaluations so far (for benchmarks)
+	rule              *ntRule // if set: this fixed rule, unchecked, instead of the pair
+}
+
+// ntRule is a Gauss-Legendre rule (nodes x, weights w on [-1, 1]) applied
+// on equal panels.
+type ntRule struct {
+	x, w   []float64
+	panels int
 }
 
 func (p *ntProblem) eval(w float64) (c, d float64) {
+	p.evals++
 	// s = e^w; em = expm1(2w). For w well below 0, 1 + em loses relative
 	// accuracy, so s comes from exp directly there.
 	var s, em float64
@@ -177,7 +189,11 @@ func (p *ntProblem) eval(w float64) (c, d float64) {
 		c = h * 0.5 * math.Erfc(-x/math.Sqrt2)
 	}
 	if p.wantPDF {
-		d = h * s * math.Exp(-0.5*x*x) * (1 / math.Sqrt(2*math.Pi))
+		if p.byDelta {
+			d = h * math.Exp(-0.5*x*x) * (1 / math.Sqrt(2*math.Pi))
+		} else {
+			d = h * s * math.Exp(-0.5*x*x) * (1 / math.Sqrt(2*math.Pi))
+		}
 	}
 	return c, d
 }
@@ -333,6 +349,16 @@ func (p *ntProblem) runCut(lo, hi float64) (c, d float64) {
 	// the densities to 1e-11); otherwise the adaptive Gauss-Kronrod route.
 	var cChk, dChk float64
 	c, d = 0, 0
+	if p.rule != nil { // a given fixed rule, unchecked
+		pw := (b - a) / float64(p.rule.panels)
+		for i := range p.rule.panels {
+			pa := a + float64(i)*pw
+			ci, di := p.fixed(pa, pa+pw, p.rule.x, p.rule.w)
+			c += ci
+			d += di
+		}
+		return c, d
+	}
 	pw := (b - a) / float64(ntPanels)
 	for i := range ntPanels {
 		pa := a + float64(i)*pw
@@ -352,7 +378,9 @@ func (p *ntProblem) runCut(lo, hi float64) (c, d float64) {
 	if p.rough {
 		return c, d
 	}
-	if math.Abs(c-cChk) > 1e-13*math.Abs(c) || (p.wantPDF && math.Abs(d-dChk) > 1e-11*math.Abs(d)) || c < 1e-20 {
+	// The derivative in delta only steers a root finder (whose stopping
+	// test is on the step), so it is not checked.
+	if math.Abs(c-cChk) > 1e-13*math.Abs(c) || (p.wantPDF && !p.byDelta && math.Abs(d-dChk) > 1e-11*math.Abs(d)) || c < 1e-20 {
 		c, d = p.run(a, b)
 	}
 	if c < 1e-20 && (a != lo || b != hi) {
@@ -370,17 +398,52 @@ func ntCDFPDF(t, f, delta float64, wantPDF bool) (lower, upper, pdf float64) {
 // ntCDFPDFMode is ntCDFPDF with the option of a rough (unchecked, about
 // 1e-10 relative for df >= 30) evaluation used to approach a quantile.
 func ntCDFPDFMode(t, f, delta float64, wantPDF, rough bool) (lower, upper, pdf float64) {
+	q := newNTDF(f)
+	r := q.pass(t, delta, wantPDF, false, rough)
+	return r.lower, r.upper, r.d
+}
+
+// ntDF holds what depends on the degrees of freedom only: the log
+// normalising constant of h(w) and the default integration window (h above
+// exp(-40) of its peak). Solvers that evaluate many CDFs at one df build it
+// once.
+type ntDF struct{ f, logc, lo, hi float64 }
+
+func newNTDF(f float64) ntDF {
+	lo, hi := ntWindow(f, 40)
+	return ntDF{f: f, logc: ntLogNorm(f), lo: lo, hi: hi}
+}
+
+// ntPass is the result of one CDF evaluation: both tails, the requested
+// derivative integral and the number of integrand evaluations it took.
+type ntPass struct {
+	lower, upper, d float64
+	evals           int
+}
+
+// pass evaluates the CDF at (t, delta); with wantD it also integrates the
+// density in t, or with byDelta the derivative -dF/d(delta) =
+// integral h(w) phi(t e^w - delta) dw, in the same pass.
+func (q *ntDF) pass(t, delta float64, wantD, byDelta, rough bool) ntPass {
+	return q.passRule(t, delta, wantD, byDelta, rough, nil)
+}
+
+// passRule is pass with an optional fixed rule (used unchecked, like the
+// rough rule, and without widening the window).
+func (q *ntDF) passRule(t, delta float64, wantD, byDelta, rough bool, rule *ntRule) ntPass {
 	// Window: h(w) above exp(-40) of its peak. Mass outside is below 1e-17,
 	// enough unless the small tail itself is tiny; then the window is
 	// widened to exp(-(36 - ln c)) so that what lies outside stays below
 	// 1e-16 relative to the tail c (up to the exp(-745) underflow limit).
-	lo, hi := ntWindow(f, 40)
-	p := ntProblem{f: f, t: t, delta: delta, logc: ntLogNorm(f), wantPDF: wantPDF, rough: rough}
+	f := q.f
+	lo, hi := q.lo, q.hi
+	p := ntProblem{f: f, t: t, delta: delta, logc: q.logc, wantPDF: wantD, byDelta: byDelta, rough: rough || rule != nil, rule: rule}
 	// Decide which tail is small from a cheap evaluation at the mode
 	// (w = 0, s = 1): Phi(t - delta) approximates the CDF.
 	p.upper = t-delta > 0
 	c, d := p.runCut(lo, hi)
 	if c > 0.5 { // wrong guess of the small tail: redo with the other one
+		// (the derivative integral does not depend on the tail: keep d)
 		p.upper = !p.upper
 		p.wantPDF = false
 		c, _ = p.runCut(lo, hi)
@@ -394,13 +457,17 @@ func ntCDFPDFMode(t, f, delta float64, wantPDF, rough bool) (lower, upper, pdf f
 		L = need
 		lo, hi = ntWindow(f, L)
 		p.segments = 0
-		c, d = p.runCut(lo, hi)
+		var d2 float64
+		c, d2 = p.runCut(lo, hi)
+		if p.wantPDF {
+			d = d2
+		}
 	}
 	c = math.Min(math.Max(c, 0), 1)
 	if p.upper {
-		return 1 - c, c, d
+		return ntPass{1 - c, c, d, p.evals}
 	}
-	return c, 1 - c, d
+	return ntPass{c, 1 - c, d, p.evals}
 }
 
 // NoncentralTCDF returns P(T <= t) for the noncentral t distribution with df

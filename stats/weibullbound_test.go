@@ -5,6 +5,8 @@ import (
 	"errors"
 	"math"
 	"os"
+	"strings"
+	"sync/atomic"
 	"testing"
 )
 
@@ -257,5 +259,54 @@ func TestWeibullBasisBoundIssueExample(t *testing.T) {
 		if math.Abs(e.Value-c.v.Value) > 4*math.Hypot(e.MCStdErr, c.v.MCStdErr) {
 			t.Errorf("p=%g: table bound %.3f +- %.3f, exact Monte Carlo %.3f +- %.3f", c.p, c.v.Value, c.v.MCStdErr, e.Value, e.MCStdErr)
 		}
+	}
+}
+
+// TestWeibullPivotFailedFits: simulated fits made to fail (an injected fit
+// that fails whenever the first value is below a threshold, i.e. with
+// probability 1 - exp(-threshold)) are counted, not fatal, up to
+// WeibullMCMaxFailFraction; the factor then moves only to the safe side
+// (larger V). Beyond the fraction the call fails.
+func TestWeibullPivotFailedFits(t *testing.T) {
+	var calls, failed atomic.Int64
+	failing := func(thr float64) func([]float64) (WeibullFit, error) {
+		return func(x []float64) (WeibullFit, error) {
+			calls.Add(1)
+			if x[0] < thr {
+				failed.Add(1)
+				return WeibullFit{}, errors.New("injected failure")
+			}
+			return FitWeibull(x)
+		}
+	}
+	base, err := WeibullPivotFactor(10, 0.90, 0.95, WeibullMCOptions{Sims: 20000, Seed: 3})
+	if err != nil || base.Failures != 0 {
+		t.Fatalf("base: %v, %d failures", err, base.Failures)
+	}
+	// About 0.05% fail: allowed.
+	f, err := WeibullPivotFactor(10, 0.90, 0.95, WeibullMCOptions{Sims: 20000, Seed: 3, fit: failing(0.0005)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if calls.Load() != 20000 || f.Failures != int(failed.Load()) || f.Failures < 3 || f.Failures > 25 {
+		t.Fatalf("%d calls, %d failures reported, %d injected (expected about 10)", calls.Load(), f.Failures, failed.Load())
+	}
+	if f.V < base.V || f.V > base.V+f.StdErrV {
+		t.Errorf("V with %d failed fits %.6f, without %.6f (se %.4f): must be a little larger", f.Failures, f.V, base.V, f.StdErrV)
+	}
+	// The bound carries the count.
+	x := []float64{310, 322, 335, 341, 350, 356, 362, 370, 381, 395}
+	b, err := WeibullLowerBoundWithFactor(x, 0.90, 0.95, f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b.Params["failedFits"] != float64(f.Failures) || !strings.Contains(strings.Join(b.Notes, " "), "simulated fits failed") {
+		t.Errorf("bound does not report the failed fits: %v %v", b.Params, b.Notes)
+	}
+	// About 1% fail: an error that says how many.
+	failed.Store(0)
+	_, err = WeibullPivotFactor(10, 0.90, 0.95, WeibullMCOptions{Sims: 20000, Seed: 3, fit: failing(0.01)})
+	if err == nil || !strings.Contains(err.Error(), "simulated fits failed") {
+		t.Errorf("1%% failed fits accepted: %v", err)
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -21,6 +22,8 @@ type factorsOptions struct {
 	Sims       int    // Monte Carlo simulations for weibull-mc
 	Seed       uint64 // Monte Carlo seed for weibull-mc
 	Out        output
+
+	pivot func(n int, p, gamma float64, opt stats.WeibullMCOptions) (stats.WeibullFactor, error) // tests only: replaces stats.WeibullPivotFactor
 }
 
 func init() { register(newFactorsCmd) }
@@ -78,6 +81,7 @@ type factorRow struct {
 	Factor     float64  `json:"factor"`
 	Rank       int      `json:"rank,omitempty"`
 	MCStdErr   *float64 `json:"mc_std_err,omitempty"`
+	FailedFits *int     `json:"failed_fits,omitempty"` // weibull-mc: simulated fits that failed
 }
 
 type factorsResult struct {
@@ -200,15 +204,17 @@ func runFactors(o factorsOptions, st streams) error {
 	for _, m := range methods {
 		for _, p := range contents {
 			for _, g := range confs {
-				for _, n := range ns {
+				var ks []float64 // normal: the whole column at once (faster for long tables)
+				if m == "normal" {
+					if ks, err = stats.NormalKTable(ns, p, g); err != nil {
+						return err
+					}
+				}
+				for i, n := range ns {
 					row := factorRow{N: n, Content: p, Confidence: g, Method: m}
 					switch m {
 					case "normal":
-						k, err := stats.NormalK(n, p, g)
-						if err != nil {
-							return err
-						}
-						row.Factor = k
+						row.Factor = ks[i]
 						note("normal: bound = mean - k s (exact for normal data)")
 					case "weibull-approx":
 						f, err := stats.WeibullBasisV(n, p, g)
@@ -232,13 +238,20 @@ func runFactors(o factorsOptions, st streams) error {
 							note("weibull-mc: needs n >= 3")
 							continue
 						}
-						f, err := stats.WeibullPivotFactor(n, p, g, stats.WeibullMCOptions{Sims: o.Sims, Seed: o.Seed})
+						pivot := o.pivot
+						if pivot == nil {
+							pivot = stats.WeibullPivotFactor
+						}
+						f, err := pivot(n, p, g, stats.WeibullMCOptions{Sims: o.Sims, Seed: o.Seed})
 						if err != nil {
 							return err
 						}
 						row.Factor = f.V
-						se := f.StdErrV
-						row.MCStdErr = &se
+						se, nf := f.StdErrV, f.Failures
+						row.MCStdErr, row.FailedFits = &se, &nf
+						if nf > 0 {
+							note(fmt.Sprintf("weibull-mc: %d of %d simulated fits failed at n = %d (content %g, confidence %g); each was counted as the largest value, which errs on the safe side; more than %g%% failed fits would stop the command", nf, o.Sims, n, p, g, 100*stats.WeibullMCMaxFailFraction))
+						}
 						note(fmt.Sprintf("weibull-mc: %d simulations per factor, seed %d", o.Sims, o.Seed))
 						note("weibull: bound = alpha (-ln P)^(1/beta) exp(-V/(beta sqrt n)) from the maximum-likelihood fit")
 					case "nonparametric":
@@ -269,7 +282,12 @@ func runFactors(o factorsOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		t := render.NewTable("", "n", ">content", ">confidence", "method", ">factor", ">rank", ">MC s.e.")
+		cols := []string{"n", ">content", ">confidence", "method", ">factor", ">rank", ">MC s.e."}
+		withFails := slices.Contains(methods, "weibull-mc")
+		if withFails {
+			cols = append(cols, ">failed fits")
+		}
+		t := render.NewTable("", cols...)
 		for _, r := range res.Rows {
 			rank, se := "", ""
 			if r.Rank > 0 {
@@ -282,7 +300,15 @@ func runFactors(o factorsOptions, st streams) error {
 			if r.Method == "order-statistic" {
 				factor = strconv.Itoa(int(math.Round(r.Factor)))
 			}
-			t.Add(strconv.Itoa(r.N), render.Num(r.Content, 4), render.Num(r.Confidence, 4), r.Method, factor, rank, se)
+			cells := []string{strconv.Itoa(r.N), render.Num(r.Content, 4), render.Num(r.Confidence, 4), r.Method, factor, rank, se}
+			if withFails {
+				fails := ""
+				if r.FailedFits != nil {
+					fails = strconv.Itoa(*r.FailedFits)
+				}
+				cells = append(cells, fails)
+			}
+			t.Add(cells...)
 		}
 		if o.Out.Format == render.Text {
 			t.Title = "One-sided lower tolerance factors"

@@ -1,11 +1,16 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
+	"io"
 	"math"
 	"os"
 	"strings"
 	"testing"
+
+	"lotproof/lots/render"
+	"lotproof/stats"
 )
 
 // TestFactorsJSON checks the rows against outside references:
@@ -147,6 +152,51 @@ func TestFactorsBadInput(t *testing.T) {
 		code, out, errs := run(t, "", args...)
 		if code != exitInput || out != "" || !strings.Contains(errs, "lotproof:") {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q", args, code, out, errs)
+		}
+	}
+}
+
+// TestFactorsFailedFits: weibull-mc rows carry the number of failed
+// simulated fits (0 from a real run; a stand-in factor with one failure,
+// as a 1,000,000-simulation run can produce, is reported in every format
+// and is not an error).
+func TestFactorsFailedFits(t *testing.T) {
+	code, out, errs := run(t, "", "factors", "--n", "5", "--content", "90%", "--method", "weibull-mc", "--sims", "1000", "--format", "json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var res factorsResult
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Rows) != 1 || res.Rows[0].FailedFits == nil || *res.Rows[0].FailedFits != 0 {
+		t.Fatalf("rows %+v: want failed_fits 0", res.Rows)
+	}
+	stub := func(n int, p, g float64, opt stats.WeibullMCOptions) (stats.WeibullFactor, error) {
+		return stats.WeibullFactor{V: 5.03, C: 0.9, StdErrV: 0.002, Sims: opt.Sims, Seed: opt.Seed, Failures: 1}, nil
+	}
+	for _, f := range []render.Format{render.JSON, render.CSV, render.Text} {
+		o := factorsOptions{N: "30", Content: "0.90", Confidence: "0.95", Methods: "weibull-mc", Sims: 1000000, Seed: 1, pivot: stub}
+		o.Out.Format = f
+		var b bytes.Buffer
+		if err := runFactors(o, streams{Out: &b, Err: io.Discard}); err != nil {
+			t.Fatalf("format %v: %v", f, err)
+		}
+		s := b.String()
+		switch f {
+		case render.JSON:
+			if !strings.Contains(s, `"failed_fits": 1`) || !strings.Contains(s, "1 of 1000000 simulated fits failed") {
+				t.Errorf("JSON lacks the failure count:\n%s", s)
+			}
+		case render.CSV:
+			lines := strings.Split(strings.TrimSpace(s), "\n")
+			if !strings.HasSuffix(lines[0], "failed fits") || !strings.HasSuffix(lines[1], ",1") {
+				t.Errorf("CSV lacks the failure count:\n%s", s)
+			}
+		default:
+			if !strings.Contains(s, "failed fits") || !strings.Contains(s, "1 of 1000000 simulated fits failed") {
+				t.Errorf("table lacks the failure count:\n%s", s)
+			}
 		}
 	}
 }

@@ -1,0 +1,89 @@
+package stats
+
+import (
+	"fmt"
+	"math"
+	"sync"
+)
+
+// Factors is a cache of the factors that depend only on the sample size and
+// the levels, not on the data: the normal tolerance factor k(n, p, gamma)
+// of NormalK and the Student t quantile t_(gamma, n-1) behind
+// MeanLowerBound. Each is computed once per key, on first use, and every
+// later call with the same key returns the same value (bit for bit the
+// value the uncached function returns). Callers that judge many lots create
+// one Factors (NewFactors or the zero value) and share it.
+//
+// A Factors is safe for concurrent use by many goroutines: a key being
+// computed by one goroutine makes the others asking for it wait for that
+// result rather than compute it again. The package keeps no cache of its
+// own; the caller owns the Factors and its lifetime. Memory grows by about
+// 100 bytes per distinct key (for lot acceptance: distinct lot sizes times
+// the levels in use), so it stays small; make a new Factors to drop it.
+type Factors struct {
+	mu sync.Mutex
+	k  map[factorKey]*factorEntry
+	t  map[factorKey]*factorEntry
+}
+
+type factorKey struct {
+	n        int
+	p, gamma float64
+}
+
+type factorEntry struct {
+	once sync.Once
+	v    float64
+	err  error
+}
+
+// NewFactors returns an empty cache (the zero value works as well).
+func NewFactors() *Factors { return &Factors{} }
+
+// get returns the entry for key in *m, creating it.
+func (c *Factors) get(m *map[factorKey]*factorEntry, key factorKey) *factorEntry {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if *m == nil {
+		*m = map[factorKey]*factorEntry{}
+	}
+	e := (*m)[key]
+	if e == nil {
+		e = &factorEntry{}
+		(*m)[key] = e
+	}
+	return e
+}
+
+// NormalK returns NormalK(n, p, gamma), computed once per (n, p, gamma).
+// Arguments NormalK rejects are passed through uncached (so that, e.g., NaN
+// levels cannot grow the cache).
+func (c *Factors) NormalK(n int, p, gamma float64) (float64, error) {
+	if n < 2 || checkLevels(p, gamma) != nil {
+		return NormalK(n, p, gamma)
+	}
+	e := c.get(&c.k, factorKey{n, p, gamma})
+	e.once.Do(func() { e.v, e.err = NormalK(n, p, gamma) })
+	return e.v, e.err
+}
+
+// MeanT returns t_(gamma, n-1), the gamma quantile of Student's t with n-1
+// degrees of freedom used by MeanLowerBound (same method and accuracy),
+// computed once per (n, gamma). Needs n >= 2 and gamma in (0, 1).
+func (c *Factors) MeanT(n int, gamma float64) (float64, error) {
+	if n < 2 {
+		return math.NaN(), fmt.Errorf("%w: t quantile needs n >= 2, got %d", ErrTooFew, n)
+	}
+	if !(gamma > 0 && gamma < 1) {
+		return math.NaN(), fmt.Errorf("%w: confidence %g not in (0, 1)", ErrDomain, gamma)
+	}
+	e := c.get(&c.t, factorKey{n, 0, gamma})
+	e.once.Do(func() { e.v, e.err = meanBoundT(n, gamma) })
+	return e.v, e.err
+}
+
+// MeanLowerBound returns MeanLowerBound(n, xbar, s, gamma) (the same value,
+// bit for bit) with the t quantile taken from the cache.
+func (c *Factors) MeanLowerBound(n int, xbar, s, gamma float64) (float64, error) {
+	return meanLowerBoundWith(n, xbar, s, gamma, c.MeanT)
+}
