@@ -1,6 +1,8 @@
 package reduce
 
 import (
+	"bufio"
+	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -8,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unsafe"
 
 	"lotproof/lots"
 )
@@ -33,9 +36,7 @@ type Record struct {
 	ForceUnitLine  int    // line of the force unit (for messages)
 	LengthUnitLine int    // line of the length unit
 
-	Force  []float64 // [N]
-	Strain []float64 // engineering strain (extension / Le), before toe compensation
-	Lines  []int     // file line of each data point
+	pts points // the data points in file order (see Len, Point, Add)
 }
 
 // Where returns "file:line:1" for a line of the record's file.
@@ -52,19 +53,20 @@ type metaKey struct {
 	val       string
 }
 
+// MaxPoints is the most data points one record may hold (10,000,000: a
+// 1 kHz logger over almost three hours). A record with more is refused
+// where the limit is passed, so memory stays bounded; the points are held
+// as float32 (see points).
+const MaxPoints = 10_000_000
+
+// maxLine is the longest line read (bytes); a longer line is refused.
+const maxLine = 64 << 10
+
 // Parse reads every record in r, a file in the raw record format (see
-// FORMAT.md). name is used in messages. Every problem found is reported as
+// FORMAT.md), streaming: only the current line and the points read so far
+// are held. name is used in messages. Every problem found is reported as
 // a located *lots.InputError (up to lots.MaxProblems of them).
 func Parse(r io.Reader, name string) ([]*Record, error) {
-	data, err := io.ReadAll(r)
-	if err != nil {
-		return nil, lots.Inputf(name, "check that the file can be read", "cannot read: %v", err)
-	}
-	return ParseBytes(data, name)
-}
-
-// ParseBytes is Parse over bytes in memory.
-func ParseBytes(data []byte, name string) ([]*Record, error) {
 	var (
 		probs   []lots.Problem
 		more    int
@@ -76,6 +78,7 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		strainU float64
 		lineNo  int
 		skip    bool
+		capped  bool
 	)
 	add := func(line, col int, what, fix string) {
 		if len(probs) >= lots.MaxProblems {
@@ -91,34 +94,100 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 		if !inData {
 			add(endLine, 1, fmt.Sprintf("record started on line %d has no @data section", cur.Line),
 				"write the metadata, then a line \"@data\", the data rows and \"@end\"")
-		} else if len(cur.Force) < 3 && !skip {
-			add(endLine, 1, fmt.Sprintf("record %q has %d data rows", cur.ID, len(cur.Force)),
+		} else if cur.Len() < 3 && !skip {
+			add(endLine, 1, fmt.Sprintf("record %q has %d data rows", cur.ID, cur.Len()),
 				"a record needs the whole test: at least the elastic part, the maximum force and the fracture")
 		}
 		recs = append(recs, cur)
 		cur = nil
 	}
-	// One copy of the whole input; lines and fields are substrings of it
-	// (metadata values are cloned so results do not keep it alive).
-	all := string(data)
-	var fields []string
+	br := bufio.NewReaderSize(r, maxLine)
+	var fields [][]byte
 	var cols []int
 	var fscale, lscale, egauge float64
-	for pos := 0; pos < len(all); {
-		var raw string
-		if end := strings.IndexByte(all[pos:], '\n'); end < 0 {
-			raw, pos = all[pos:], len(all)
-		} else {
-			raw, pos = all[pos:pos+end], pos+end+1
+	for {
+		rawB, err := br.ReadSlice('\n')
+		if err == bufio.ErrBufferFull {
+			lineNo++
+			add(lineNo, 1, fmt.Sprintf("line longer than %d bytes", maxLine), "write one data point or metadata key per line")
+			for err == bufio.ErrBufferFull {
+				_, err = br.ReadSlice('\n')
+			}
+			if err != nil && err != io.EOF {
+				add(lineNo, 1, fmt.Sprintf("cannot read: %v", err), "check that the file can be read")
+			}
+			if err != nil {
+				break
+			}
+			continue
 		}
-		raw = strings.TrimSuffix(raw, "\r")
+		if err != nil && err != io.EOF {
+			add(lineNo+1, 1, fmt.Sprintf("cannot read: %v", err), "check that the file can be read")
+			break
+		}
+		if len(rawB) == 0 && err == io.EOF {
+			break
+		}
+		rawB = bytes.TrimSuffix(bytes.TrimSuffix(rawB, []byte("\n")), []byte("\r"))
 		lineNo++
 		if lineNo == 1 {
-			raw = strings.TrimPrefix(raw, "\uFEFF")
+			rawB = bytes.TrimPrefix(rawB, []byte("\uFEFF"))
 		}
+		if inData && columns != nil && len(rawB) > 0 && rawB[0] != '@' && rawB[0] != '#' {
+			// The fast path for data rows.
+			fields, cols = splitFields(rawB, fields[:0], cols[:0])
+			if len(fields) > 0 && fields[0][0] != '#' && fields[0][0] != '@' {
+				if capped {
+					// already reported
+				} else if len(fields) != len(columns) {
+					c := 1
+					if len(cols) > 0 {
+						c = cols[len(cols)-1]
+					}
+					add(lineNo, c, fmt.Sprintf("data row has %d values, the columns are %s", len(fields), strings.Join(columns, ", ")),
+						"give every row one number per column; a short last row usually means the file was cut off")
+				} else {
+					var f, x float64
+					bad := false
+					for i, fb := range fields {
+						v, perr := parseNumber(fb)
+						if perr != "" {
+							add(lineNo, cols[i], fmt.Sprintf("%s %q %s", columns[i], clip(string(fb)), perr), "write decimal numbers such as 12.345 (point as decimal separator, no digit separators)")
+							bad = true
+							continue
+						}
+						switch columns[i] {
+						case "force":
+							f = v * fscale
+						case "extension":
+							x = v * lscale / egauge
+						case "strain":
+							x = v * strainU
+						}
+					}
+					if !bad {
+						if cur.Len() >= MaxPoints {
+							add(lineNo, 1, fmt.Sprintf("record %q has more than %d data points", cur.ID, MaxPoints),
+								"record at a lower sampling rate or average consecutive points before reducing")
+							capped = true
+						} else {
+							cur.pts.add(f, x, lineNo)
+						}
+					}
+				}
+				if err == io.EOF {
+					break
+				}
+				continue
+			}
+		}
+		raw := string(rawB)
 		text := strings.TrimSpace(raw)
 		indent := len(raw) - len(strings.TrimLeft(raw, " \t")) + 1
 		if text == "" || strings.HasPrefix(text, "#") {
+			if err == io.EOF {
+				break
+			}
 			continue
 		}
 		switch strings.ToLower(text) {
@@ -130,100 +199,60 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 			}
 			cur = &Record{Source: name, Line: lineNo, FinalGauge: math.NaN(), FinalArea: math.NaN()}
 			meta = map[string]metaKey{}
-			inData, skip = false, false
-			continue
+			inData, skip, capped = false, false, false
+			columns = nil
 		case "@data":
 			if cur == nil {
 				add(lineNo, indent, "@data outside a record", "start each record with a line \"@record\"")
-				continue
+				break
 			}
 			if inData {
 				add(lineNo, indent, "second @data in one record", "end the record with \"@end\" before starting another")
-				continue
+				break
 			}
 			var ok bool
 			fscale, lscale, egauge, strainU, columns, ok = cur.applyMeta(meta, lineNo, add)
-			// Size the data slices from the rows up to the next @end.
-			rest := all[pos:]
-			if k := strings.Index(rest, "@end"); k >= 0 {
-				rest = rest[:k]
-			}
-			rows := strings.Count(rest, "\n") + 1
-			cur.Force = make([]float64, 0, rows)
-			cur.Strain = make([]float64, 0, rows)
-			cur.Lines = make([]int, 0, rows)
 			skip = !ok
 			if !ok {
 				// The data cannot be read without its units; skip to @end.
 				columns = nil
 			}
 			inData = true
-			continue
 		case "@end":
 			if cur == nil {
 				add(lineNo, indent, "@end outside a record", "start each record with a line \"@record\"")
-				continue
+				break
 			}
 			finish(lineNo)
-			continue
-		}
-		if cur == nil {
-			add(lineNo, indent, fmt.Sprintf("unexpected line %q outside a record", clip(text)),
-				"start each record with a line \"@record\" (lines starting with # are comments)")
-			continue
-		}
-		if !inData {
-			k, v, ok := strings.Cut(text, ":")
-			if !ok {
-				add(lineNo, indent, fmt.Sprintf("metadata line %q has no colon", clip(text)), "write metadata as \"key: value\", e.g. \"gauge length: 40\"")
-				continue
-			}
-			key := strings.ToLower(strings.Join(strings.Fields(k), " "))
-			if prev, dup := meta[key]; dup {
-				add(lineNo, indent, fmt.Sprintf("%q given twice (first on line %d)", key, prev.line), "give each metadata key once per record")
-				continue
-			}
-			col := strings.Index(raw, ":") + 2 + len(v) - len(strings.TrimLeft(v, " \t"))
-			meta[key] = metaKey{lineNo, col, strings.Clone(strings.TrimSpace(v))}
-			continue
-		}
-		if columns == nil {
-			continue
-		}
-		fields, cols = splitFields(raw, fields[:0], cols[:0])
-		if len(fields) != len(columns) {
-			c := 1
-			if len(cols) > 0 {
-				c = cols[len(cols)-1]
-			}
-			add(lineNo, c, fmt.Sprintf("data row has %d values, the columns are %s", len(fields), strings.Join(columns, ", ")),
-				"give every row one number per column; a short last row usually means the file was cut off")
-			continue
-		}
-		var f, x float64
-		bad := false
-		for i, s := range fields {
-			v, err := strconv.ParseFloat(s, 64)
-			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				add(lineNo, cols[i], fmt.Sprintf("%s %q is not a finite number", columns[i], clip(s)), "write decimal numbers such as 12.345 (point as decimal separator)")
-				bad = true
-				continue
-			}
-			switch columns[i] {
-			case "force":
-				f = v * fscale
-			case "extension":
-				x = v * lscale / egauge
-			case "strain":
-				x = v * strainU
+			columns = nil
+			inData = false
+		default:
+			switch {
+			case cur == nil:
+				add(lineNo, indent, fmt.Sprintf("unexpected line %q outside a record", clip(text)),
+					"start each record with a line \"@record\" (lines starting with # are comments)")
+			case !inData:
+				k, v, ok := strings.Cut(text, ":")
+				if !ok {
+					add(lineNo, indent, fmt.Sprintf("metadata line %q has no colon", clip(text)), "write metadata as \"key: value\", e.g. \"gauge length: 40\"")
+					break
+				}
+				key := strings.ToLower(strings.Join(strings.Fields(k), " "))
+				if prev, dup := meta[key]; dup {
+					add(lineNo, indent, fmt.Sprintf("%q given twice (first on line %d)", key, prev.line), "give each metadata key once per record")
+					break
+				}
+				col := strings.Index(raw, ":") + 2 + len(v) - len(strings.TrimLeft(v, " \t"))
+				meta[key] = metaKey{lineNo, col, strings.TrimSpace(v)}
+			default:
+				// A data row of a record whose metadata was unusable
+				// (columns == nil): skipped, the metadata problem is
+				// reported.
 			}
 		}
-		if bad {
-			continue
+		if err == io.EOF {
+			break
 		}
-		cur.Force = append(cur.Force, f)
-		cur.Strain = append(cur.Strain, x)
-		cur.Lines = append(cur.Lines, lineNo)
 	}
 	if cur != nil {
 		add(lineNo, 1, fmt.Sprintf("record %q (started on line %d) ends without @end: the file looks truncated", cur.ID, cur.Line),
@@ -239,6 +268,28 @@ func ParseBytes(data []byte, name string) ([]*Record, error) {
 	return recs, nil
 }
 
+// ParseBytes is Parse over bytes in memory.
+func ParseBytes(data []byte, name string) ([]*Record, error) {
+	return Parse(bytes.NewReader(data), name)
+}
+
+// parseNumber reads a plain decimal number (optionally with an exponent).
+// Go's parser also reads hexadecimal floats (0x1p3), digit separators
+// (1_000), infinities and NaN; a record holds plain decimal numbers, as
+// the results CSV does, so those are refused: the second result says why.
+func parseNumber(b []byte) (float64, string) {
+	for _, c := range b {
+		if c == 'x' || c == 'X' || c == '_' {
+			return 0, "is not a plain decimal number (hexadecimal and digit separators are not read)"
+		}
+	}
+	v, err := strconv.ParseFloat(unsafe.String(unsafe.SliceData(b), len(b)), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, "is not a finite number"
+	}
+	return v, ""
+}
+
 func clip(s string) string {
 	if len(s) > 40 {
 		return s[:40] + "..."
@@ -248,13 +299,13 @@ func clip(s string) string {
 
 // splitFields splits a data row on blanks, tabs, commas or semicolons and
 // returns the fields with their 1-based byte columns, appended to f and c.
-func splitFields(line string, f []string, c []int) ([]string, []int) {
+func splitFields(line []byte, f [][]byte, c []int) ([][]byte, []int) {
 	start := -1
 	for i := 0; i <= len(line); i++ {
 		sep := i == len(line)
 		if !sep {
 			switch line[i] {
-			case ' ', '\t', ',', ';':
+			case ' ', '\t', ',', ';', '\r':
 				sep = true
 			}
 		}
@@ -362,9 +413,12 @@ func (r *Record) applyMeta(meta map[string]metaKey, dataLine int, add func(line,
 			}
 			return math.NaN()
 		}
-		v, err := strconv.ParseFloat(m.val, 64)
-		if err != nil || !(v > 0) || math.IsInf(v, 0) {
-			bad(m, fmt.Sprintf("%s %q is not a positive number", k, m.val), "write a positive decimal number in the length unit")
+		v, perr := parseNumber([]byte(m.val))
+		if perr != "" || !(v > 0) {
+			if perr == "" {
+				perr = "is not a positive number"
+			}
+			bad(m, fmt.Sprintf("%s %q %s", k, m.val, perr), "write a positive decimal number in the length unit")
 			return math.NaN()
 		}
 		return v * lscale

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/integrate"
 	"gonum.org/v1/gonum/stat"
@@ -38,6 +39,8 @@ type Fit struct {
 	FirstLine  int     // file line of the first point used
 	LastLine   int     // file line of the last point used
 	Auto       bool    // range found automatically
+
+	FromPercentProof, ToPercentProof float64 // the stress range as % of the proof strength
 }
 
 // Result is the reduction of one record. Stresses are in MPa, strains are
@@ -58,7 +61,23 @@ type Result struct {
 	Offset                                                        float64
 	ProofStrain, TensileStrain, FractureStrain                    float64 // on the toe-compensated curve
 	Fractured                                                     bool
-	Noise                                                         float64 // estimated stress noise SD [MPa]
+	Noise                                                         float64 // estimated stress noise SD of the working points [MPa]
+	RawNoise                                                      float64 // estimated stress noise SD of the raw points [MPa]
+	StrainNoise                                                   float64 // estimated strain noise SD of the raw points
+	Bin                                                           int     // raw points averaged per working point
+	Glitches                                                      []Glitch
+	RepeatedPoints                                                int // points of repeated data blocks left out
+
+	// TensileRaw is the highest raw stress (glitches left out); Tensile is
+	// from the smoothed curve at the maximum and never above it.
+	TensileRaw    float64
+	TensileMethod string // how Rm was found from the points near the maximum
+	TensileFrom   float64
+	TensileTo     float64 // strain window of the Rm fit
+	TensileN      int     // working points in the Rm fit
+	FitMethod     string  // how the elastic window was chosen
+
+	left, steps []Glitch // raw point ranges left out; lone extension steps
 	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
 	Notes, Warnings                                               []string
 
@@ -111,22 +130,11 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		Elongation: nan, ReductionOfArea: nan, Toughness: nan, Resilience: nan,
 		ExtensometerElongation: nan, ToeShift: nan, Offset: off,
 		ProofStrain: nan, TensileStrain: nan, FractureStrain: nan, Noise: nan,
-		Points: len(rec.Force),
+		Points: rec.Len(), TensileRaw: nan,
 	}
-	if len(rec.Force) < 3 || len(rec.Strain) != len(rec.Force) || (rec.Lines != nil && len(rec.Lines) != len(rec.Force)) {
-		return nil, lots.Inputf(res.Source, "give force and strain for every point, at least 3 points", "record %q has %d forces, %d strains and %d line numbers", rec.ID, len(rec.Force), len(rec.Strain), len(rec.Lines))
-	}
-	for i := range rec.Force {
-		if math.IsNaN(rec.Force[i]) || math.IsInf(rec.Force[i], 0) || math.IsNaN(rec.Strain[i]) || math.IsInf(rec.Strain[i], 0) {
-			return nil, lots.Inputf(res.Source, "remove or correct the point", "record %q: point %d is not finite", rec.ID, i+1)
-		}
-	}
-	lines := rec.Lines
-	if lines == nil {
-		lines = make([]int, len(rec.Force))
-		for i := range lines {
-			lines[i] = i + 1
-		}
+	n0 := rec.Len()
+	if n0 < 3 {
+		return nil, lots.Inputf(res.Source, "give force and strain for every point, at least 3 points", "record %q has %d data points", rec.ID, n0)
 	}
 	if !(rec.Area > 0) || !(rec.Gauge > 0) {
 		return nil, lots.Inputf(res.Source, "give the original cross-section and gauge length", "record %q has no usable cross-section or gauge length", rec.ID)
@@ -134,39 +142,71 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	if opt.Offset < 0 || opt.Offset > 0.05 {
 		return nil, lots.Inputf("options", "use an offset such as 0.002 (0.2 %)", "offset %g is outside 0 to 0.05", opt.Offset)
 	}
-	// 1. Engineering stress; exact duplicate points left out.
-	n0 := len(rec.Force)
-	x := make([]float64, 0, n0)
-	s := make([]float64, 0, n0)
-	ln := make([]int, 0, n0)
-	for i := range rec.Force {
-		st := rec.Force[i] / rec.Area
-		if i > 0 && rec.Force[i] == rec.Force[i-1] && rec.Strain[i] == rec.Strain[i-1] {
-			res.Duplicates++
-			continue
+	// 1. One pass over the raw points: finite values, extremes, exact
+	// repeats of the point before.
+	stressAt := func(i int) float64 { f, _, _ := rec.Point(i); return f / rec.Area }
+	strainAt := func(i int) float64 { _, x, _ := rec.Point(i); return x }
+	fMax, fMin, xMax, xMin := math.Inf(-1), math.Inf(1), math.Inf(-1), math.Inf(1)
+	var pf, px float64
+	for i := 0; i < n0; i++ {
+		f, x, line := rec.Point(i)
+		if math.IsNaN(f) || math.IsInf(f, 0) || math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, lots.Inputf(rec.Where(line), "remove or correct the point", "record %q: point %d is not finite", rec.ID, i+1)
 		}
-		x = append(x, rec.Strain[i])
-		s = append(s, st)
-		ln = append(ln, lines[i])
+		if i > 0 && f == pf && x == px {
+			res.Duplicates++
+		}
+		pf, px = f, x
+		fMax, fMin, xMax, xMin = math.Max(fMax, f), math.Min(fMin, f), math.Max(xMax, x), math.Min(xMin, x)
+	}
+	_, _, firstLine := rec.Point(0)
+	// 2. Plausibility of signs and units: a metal tensile test gives a
+	// maximum stress of 1 to 5000 MPa and strains below 200 % (common
+	// practice), with tension positive.
+	if fMax <= 0 && fMin < 0 {
+		return nil, lots.Inputf(rec.Where(firstLine), "record tension as positive force (reverse the sign of the force column)",
+			"record %q: every force is zero or negative (lowest %.4g %s): the force sign is reversed", rec.ID, fMin/forceScale(rec.ForceUnit), rec.ForceUnit)
+	}
+	if sm := fMax / rec.Area; !(sm >= 1 && sm <= 5000) {
+		return nil, lots.Inputf(rec.Where(firstNonZero(rec.ForceUnitLine, rec.Line)), "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
+			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force unit %q or the length unit %q is probably wrong", rec.ID, sm, rec.ForceUnit, rec.LengthUnit)
+	}
+	if xMax <= 0 && xMin < 0 {
+		return nil, lots.Inputf(rec.Where(firstLine), "record elongation as positive extension (reverse the sign of the extension or strain column) and check that the columns are in the order stated",
+			"record %q: every extension is zero or negative (lowest strain %.4g): the extension sign is reversed", rec.ID, xMin)
+	}
+	if !(xMax > 0) || xMax > 2 {
+		return nil, lots.Inputf(rec.Where(firstNonZero(rec.LengthUnitLine, rec.Line)), "check \"length unit\", \"extensometer gauge length\", \"strain unit\", the sign of the extension and that the columns are in the order stated",
+			"record %q: largest strain %.4g is implausible (expected between 0 and 2, i.e. up to 200 %%)", rec.ID, xMax)
 	}
 	if res.Duplicates > 0 {
 		res.note("%d repeated data points (same force and extension as the point before) left out", res.Duplicates)
 	}
+	// 3. Noise of the raw force and extension, and glitches.
+	res.RawNoise = rawNoise(n0, stressAt)
+	res.StrainNoise = rawNoise(n0, strainAt)
+	smRaw := fMax / rec.Area
+	res.glitches(rec, n0, stressAt, strainAt, smRaw, xMax)
+	// The force at the start: a negative force zero is an offset of the
+	// load cell that shifts every stress (ISO 6892-1 asks for the force
+	// zeroed before the test piece is gripped; from memory).
+	if f0 := startForce(rec, n0, res.left); f0/rec.Area < -math.Max(0.005*smRaw, 5*res.RawNoise) {
+		res.warn("the record starts at a force of %.2f %% of the maximum (line %d): the force zero is probably offset; every stress is off by about that much (not corrected); zero the force channel before gripping",
+			100*f0/fMax, firstLine)
+	}
+	// 4. Working points: duplicates and glitches left out; dense records
+	// averaged in bins of consecutive points (a bin mean of k points has
+	// 1/sqrt(k) of the noise and keeps the curve's shape where the bin is
+	// short against the curve's features).
+	x, s, ln, lnLast := res.workingPoints(rec, n0)
+	if len(x) < 3 {
+		return nil, lots.Inputf(res.Source, "record the whole test from zero force to fracture", "record %q has only %d usable points", rec.ID, len(x))
+	}
 	iMax := argmax(s)
 	sm := s[iMax]
-	// 2. Plausibility of the units: a metal tensile test gives a maximum
-	// stress of 1 to 5000 MPa and strains below 200 % (common practice).
-	if !(sm >= 1 && sm <= 5000) {
-		return nil, lots.Inputf(rec.Where(firstNonZero(rec.ForceUnitLine, rec.Line)), "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
-			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force unit %q or the length unit %q is probably wrong", rec.ID, sm, rec.ForceUnit, rec.LengthUnit)
-	}
-	if xm := x[argmax(x)]; !(xm > 0) || xm > 2 {
-		return nil, lots.Inputf(rec.Where(firstNonZero(rec.LengthUnitLine, rec.Line)), "check \"length unit\", \"extensometer gauge length\", \"strain unit\", the sign of the extension and that the columns are in the order stated",
-			"record %q: largest strain %.4g is implausible (expected between 0 and 2, i.e. up to 200 %%)", rec.ID, xm)
-	}
 	res.Noise = noiseSD(s)
 	delta := math.Max(0.005*sm, 6*res.Noise)
-	// 3. Fracture: the force falls to below 10 % of its maximum and stays
+	// 5. Fracture: the force falls to below 10 % of its maximum and stays
 	// there; the fracture point is the last point before the steep fall.
 	const tailFrac = 0.1
 	f := len(s) - 1
@@ -182,10 +222,10 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	} else {
 		res.warn("no fracture in the record (the force at the end is %.0f %% of the maximum): elongation from the record and toughness are not reported", 100*s[f]/sm)
 	}
-	x, s, ln = x[:f+1], s[:f+1], ln[:f+1]
-	// 4. Extension must increase: unload-reload loops and backward steps
+	x, s, ln, lnLast = x[:f+1], s[:f+1], ln[:f+1], lnLast[:f+1]
+	// 6. Extension must increase: unload-reload loops and backward steps
 	// are left out, so the curve is the monotonic loading envelope.
-	x, s, ln = res.monotonic(x, s, ln, delta, rec)
+	x, s, ln, lnLast = res.monotonic(x, s, ln, lnLast, delta, rec)
 	if len(x) < 10 {
 		return nil, lots.Inputf(res.Source, "record the whole test from zero force to fracture",
 			"record %q has only %d usable points with increasing extension (at least 10 needed)", rec.ID, len(x))
@@ -209,7 +249,7 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	lo, hi, ok := res.elasticRange(x, s, iEnd, opt)
 	if ok {
 		res.fitLine(x[lo:hi], s[lo:hi])
-		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], ln[hi-1]
+		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
 		res.Fit.Auto = !(opt.ModulusTo > opt.ModulusFrom)
 		if res.Fit.Slope <= 0 {
 			res.warn("no linear region found: the fitted slope is not positive")
@@ -262,12 +302,9 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	if !res.Fractured && cMax >= last-2 {
 		res.warn("tensile strength not reported: the force was still rising at the end of the record")
 	} else {
-		res.Tensile = cs[cMax]
-		res.TensileStrain = cx[cMax]
+		res.peak(cx, cs, cMax)
 		if ok {
-			xm := peakStrain(cx, cs, cMax, math.Max(3*res.Noise, 0.002*cs[cMax]))
-			res.TensileStrain = xm
-			res.Uniform = math.Max(0, xm-res.Tensile/E)
+			res.Uniform = math.Max(0, res.TensileStrain-res.Tensile/E)
 		} else {
 			res.warn("uniform elongation not reported: no elastic line to subtract")
 		}
@@ -318,7 +355,136 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	if ok && !math.IsNaN(res.Proof) {
 		res.Resilience = res.Proof * res.Proof / (2 * E)
 	}
+	if ok {
+		res.Fit.FromPercentProof, res.Fit.ToPercentProof = 100*res.Fit.From/res.Proof, 100*res.Fit.To/res.Proof
+	}
+	res.afterSteps(x[lo:], ok)
 	return res, nil
+}
+
+// afterSteps leaves out every property measured on strains beyond a lone
+// extension step (the extensometer slipped and every later strain is
+// shifted), with a warning naming the properties. fitX are the strains
+// (before toe compensation) from the first point of the elastic fit.
+func (res *Result) afterSteps(fitX []float64, fitOK bool) {
+	if len(res.steps) == 0 {
+		return
+	}
+	nan := math.NaN()
+	stepX := math.Inf(1)
+	for _, g := range res.steps {
+		stepX = math.Min(stepX, g.at)
+	}
+	shift := 0.0
+	if fitOK {
+		shift = res.ToeShift
+	}
+	var gone []string
+	drop := func(name string, v *float64) {
+		if !math.IsNaN(*v) {
+			*v = nan
+			gone = append(gone, name)
+		}
+	}
+	if fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > stepX {
+		drop("modulus", &res.Modulus)
+		drop("proof strength", &res.Proof)
+		drop("uniform elongation", &res.Uniform)
+		drop("resilience", &res.Resilience)
+		res.FitOK = false
+	}
+	if res.ProofStrain+shift > stepX {
+		drop("proof strength", &res.Proof)
+		drop("resilience", &res.Resilience)
+	}
+	if res.TensileStrain+shift > stepX {
+		drop("uniform elongation", &res.Uniform)
+	}
+	if res.ElongationMethod == "record at fracture less the elastic part" {
+		drop("elongation", &res.Elongation)
+	}
+	res.ExtensometerElongation = nan
+	drop("toughness", &res.Toughness)
+	if len(gone) > 0 {
+		res.warn("not reported because of the extension step: %s", strings.Join(gone, ", "))
+	}
+}
+
+// peak finds the tensile strength Rm = Fm/S0 (ISO 6892-1 clause 19) and
+// the strain at maximum force from the points near the highest working
+// point: those within a band of max(6 noise SD, 0.05 % of the maximum)
+// below it, contiguous around it. Through them a least-squares parabola
+// in strain is fitted on a window symmetric about the current estimate
+// and refined three times; Rm is the parabola's vertex value and the
+// strain its vertex, so that the noise does not lift Rm as the highest of
+// many noisy points would. Rm is never above the highest raw value. When
+// the top is flat (the parabola falls by less than a quarter of the band
+// across the window, or has no maximum inside it), Rm is the mean stress
+// of the band and the strain the middle of the flat, as ISO 6892-1 asks
+// for Ag on a plateau (clause 3.6.4 note; from memory). With fewer than 5
+// points in the band the highest point is taken. The smoothing is this
+// package's choice; the standards define Fm on the record.
+func (res *Result) peak(x, s []float64, iMax int) {
+	top := s[iMax]
+	band := math.Max(6*res.Noise, 0.0005*top)
+	l, h := iMax, iMax
+	for l > 0 && s[l-1] >= top-band {
+		l--
+	}
+	for h < len(s)-1 && s[h+1] >= top-band {
+		h++
+	}
+	res.TensileFrom, res.TensileTo, res.TensileN = x[l], x[h], h-l+1
+	raw := res.TensileRaw
+	if math.IsNaN(raw) {
+		raw = top
+	}
+	set := func(v, strain float64, method string) {
+		res.Tensile = math.Min(v, raw)
+		res.TensileStrain = strain
+		res.TensileMethod = method
+	}
+	if h-l+1 < 5 {
+		set(top, x[iMax], "highest working point (fewer than 5 points within the band below it)")
+		return
+	}
+	c := x[iMax]
+	hw := math.Min(c-x[l], x[h]-c)
+	if hw <= 0 {
+		hw = (x[h] - x[l]) / 2
+		c = (x[h] + x[l]) / 2
+	}
+	flat := func() {
+		sum := 0.0
+		for i := l; i <= h; i++ {
+			sum += s[i]
+		}
+		set(sum/float64(h-l+1), (x[l]+x[h])/2, fmt.Sprintf("flat top: mean of the %d points within %.3g MPa of the highest, strain at the middle of the flat", h-l+1, band))
+	}
+	var v float64
+	for it := 0; it < 4; it++ {
+		cf, ok := quadFit(x, s, c, hw)
+		if !ok {
+			set(top, x[iMax], "highest working point (no fit possible)")
+			return
+		}
+		if cf[2] > -0.25*band {
+			flat()
+			return
+		}
+		u := -cf[1] / (2 * cf[2])
+		if u < -1 || u > 1 {
+			flat()
+			return
+		}
+		c = c + u*hw
+		v = cf[0] - cf[1]*cf[1]/(4*cf[2])
+		hw = math.Min(hw, math.Min(c-x[l], x[h]-c))
+		if hw <= 0 {
+			break
+		}
+	}
+	set(v, c, fmt.Sprintf("vertex of a least-squares parabola in strain through the points within %.3g MPa of the highest (%d points, strain %.4g %% to %.4g %%)", band, h-l+1, 100*x[l], 100*x[h]))
 }
 
 // toughness is the area under the engineering stress-strain curve from the
@@ -329,11 +495,12 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 func toughness(x, s []float64) float64 { return integrate.Trapezoidal(x, s) }
 
 // monotonic keeps only points whose strain exceeds every earlier kept
-// point. A run of left-out points during which the stress fell by more
-// than delta is an unload-reload loop (noted); a run without unloading is
-// extension going backwards (a warning when it goes back by more than ten
-// typical steps).
-func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Record) ([]float64, []float64, []int) {
+// point. A run of left-out points that repeats an earlier run point for
+// point (same stress and strain) is a repeated data block (a warning); a
+// run during which the stress fell by more than delta is an unload-reload
+// loop (noted); a run without unloading is extension going backwards (a
+// warning when it goes back by more than ten typical steps).
+func (res *Result) monotonic(x, s []float64, ln, lnLast []int, delta float64, rec *Record) ([]float64, []float64, []int, []int) {
 	steps := make([]float64, 0, len(x))
 	for i := 1; i < len(x); i++ {
 		if d := x[i] - x[i-1]; d > 0 {
@@ -347,10 +514,11 @@ func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Recor
 	ox := append(make([]float64, 0, len(x)), x[0])
 	os := append(make([]float64, 0, len(x)), s[0])
 	ol := append(make([]int, 0, len(x)), ln[0])
+	oll := append(make([]int, 0, len(x)), lnLast[0])
 	back := 0
 	for i := 1; i < len(x); {
 		if x[i] > ox[len(ox)-1] {
-			ox, os, ol = append(ox, x[i]), append(os, s[i]), append(ol, ln[i])
+			ox, os, ol, oll = append(ox, x[i]), append(os, s[i]), append(ol, ln[i]), append(oll, lnLast[i])
 			i++
 			continue
 		}
@@ -363,6 +531,12 @@ func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Recor
 			j++
 		}
 		cnt := j - i
+		if p := repeatOf(x, s, i, j); p >= 0 {
+			res.RepeatedPoints += cnt
+			res.warn("lines %d to %d repeat lines %d to %d point for point (a data block written twice); the repeat is left out", ln[i], lnLast[j-1], ln[p], lnLast[p+cnt-1])
+			i = j
+			continue
+		}
 		switch {
 		case os[u]-minS > delta:
 			res.LoopPoints += cnt
@@ -379,7 +553,29 @@ func (res *Result) monotonic(x, s []float64, ln []int, delta float64, rec *Recor
 	if back > 0 {
 		res.note("%d points with extension not above the previous maximum left out", back)
 	}
-	return ox, os, ol
+	return ox, os, ol, oll
+}
+
+// repeatOf returns the start p of an earlier run x[p:p+(j-i)], s[...]
+// equal point for point to x[i:j], s[i:j] (at least 3 points), or -1.
+func repeatOf(x, s []float64, i, j int) int {
+	cnt := j - i
+	if cnt < 3 {
+		return -1
+	}
+	for p := i - cnt; p >= 0; p-- {
+		if x[p] != x[i] || s[p] != s[i] {
+			continue
+		}
+		same := true
+		for t := 1; t < cnt && same; t++ {
+			same = x[p+t] == x[i+t] && s[p+t] == s[i+t]
+		}
+		if same {
+			return p
+		}
+	}
+	return -1
 }
 
 func lineAt(ln []int, j int) int {
@@ -420,94 +616,8 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 		}
 		return lo, hi, true
 	}
-	top := s[iEnd]
-	n := iEnd + 1
-	linTol := 2*res.Noise + 0.001*top
-	// Prefix sums, centred for accuracy.
-	mx, ms := stat.Mean(x[:n], nil), stat.Mean(s[:n], nil)
-	px := make([]float64, n+1)
-	py := make([]float64, n+1)
-	pxx := make([]float64, n+1)
-	pxy := make([]float64, n+1)
-	pyy := make([]float64, n+1)
-	for i := 0; i < n; i++ {
-		dx, dy := x[i]-mx, s[i]-ms
-		px[i+1] = px[i] + dx
-		py[i+1] = py[i] + dy
-		pxx[i+1] = pxx[i] + dx*dx
-		pxy[i+1] = pxy[i] + dx*dy
-		pyy[i+1] = pyy[i] + dy*dy
-	}
-	// The first index whose stress reaches thr is the first index whose
-	// running maximum does; the running maximum is sorted.
-	runMax := make([]float64, n)
-	for i := 0; i < n; i++ {
-		runMax[i] = s[i]
-		if i > 0 && runMax[i-1] > s[i] {
-			runMax[i] = runMax[i-1]
-		}
-	}
-	first := func(thr float64) int { return sort.SearchFloat64s(runMax, thr) }
-	type win struct {
-		lo, hi    int
-		slope, se float64
-	}
-	cands := make([]win, 0, 29*33)
-	const step = 0.025
-	for ai := 0; ai <= 28; ai++ {
-		a := float64(ai) * step
-		l := first(a * top)
-		for bi := ai + 8; bi <= 40; bi++ {
-			b := float64(bi) * step
-			h := first(b*top + 1e-12)
-			if bi == 40 {
-				h = n
-			}
-			m := h - l
-			if m < 6 {
-				continue
-			}
-			fm := float64(m)
-			sx := px[h] - px[l]
-			sy := py[h] - py[l]
-			sxx := pxx[h] - pxx[l] - sx*sx/fm
-			sxy := pxy[h] - pxy[l] - sx*sy/fm
-			syy := pyy[h] - pyy[l] - sy*sy/fm
-			if sxx <= 0 || syy <= 0 {
-				continue
-			}
-			slope := sxy / sxx
-			r2 := sxy * sxy / (sxx * syy)
-			if r2 < 0.99 || slope <= 0 {
-				continue
-			}
-			sse := math.Max(0, syy-slope*sxy)
-			if math.Sqrt(sse/(fm-2)) > linTol {
-				continue
-			}
-			se := math.Sqrt(sse / (fm - 2) / sxx)
-			cands = append(cands, win{l, h, slope, se})
-		}
-	}
-	if len(cands) == 0 {
-		res.warn("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight to within the noise (R^2 >= 0.99 and residual SD below %.3g MPa over at least 6 points and 20 %% of the stress); give --modulus-range to fix it by hand", n, top, linTol)
-		return 0, 0, false
-	}
-	best := 0
-	for i, c := range cands {
-		if c.slope > cands[best].slope {
-			best = i
-		}
-	}
-	emax := cands[best].slope
-	tol := math.Max(0.001*emax, 2*cands[best].se)
-	pick := -1
-	for i, c := range cands {
-		if c.slope >= emax-tol && (pick < 0 || c.hi-c.lo > cands[pick].hi-cands[pick].lo) {
-			pick = i
-		}
-	}
-	return cands[pick].lo, cands[pick].hi, true
+	w, ok := res.autoElastic(x, s, iEnd)
+	return w.lo, w.hi, ok
 }
 
 // fitLine fits stress = beta*strain + alpha by ordinary least squares
@@ -802,7 +912,7 @@ func noiseSD(s []float64) float64 {
 // selectK returns the k-th smallest value of v (0-based), reordering v:
 // Hoare's selection algorithm FIND (Comm. ACM 4(7), 1961, Algorithm 65)
 // with a median-of-three pivot; expected O(n).
-func selectK(v []float64, k int) float64 {
+func selectK[T ~float32 | ~float64](v []T, k int) T {
 	lo, hi := 0, len(v)-1
 	for lo < hi {
 		mid := lo + (hi-lo)/2
@@ -840,6 +950,15 @@ func selectK(v []float64, k int) float64 {
 		}
 	}
 	return v[k]
+}
+
+// forceScale is the factor from the record's force unit to N (1 when
+// unknown).
+func forceScale(unit string) float64 {
+	if v, ok := forceUnits[strings.ToLower(unit)]; ok {
+		return v
+	}
+	return 1
 }
 
 func firstNonZero(a, b int) int {

@@ -403,6 +403,27 @@ func TestNoLinearRegion(t *testing.T) {
 	near(t, "tensile", r.Tensile, 800*math.Pow(0.2, 0.4), 1e-3)
 }
 
+// pointsOf copies a record's points out (force N, strain, line).
+func pointsOf(rec *Record) (f, x []float64, ln []int) {
+	for i := 0; i < rec.Len(); i++ {
+		a, b, c := rec.Point(i)
+		f, x, ln = append(f, a), append(x, b), append(ln, c)
+	}
+	return
+}
+
+// setPoints replaces a record's points (lines 1, 2, ... when ln is nil).
+func setPoints(rec *Record, f, x []float64, ln []int) {
+	rec.pts = points{}
+	for i := range f {
+		l := i + 1
+		if ln != nil {
+			l = ln[i]
+		}
+		rec.Add(f[i], x[i], l)
+	}
+}
+
 func synthRecord(t *testing.T, sp SynthSpec) *Record {
 	t.Helper()
 	b, err := Synthesize(sp)
@@ -430,29 +451,32 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 	}
 	// Every point twice.
 	rec := synthRecord(t, alu)
-	dup := *rec
-	dup.Force, dup.Strain, dup.Lines = nil, nil, nil
-	for i := range rec.Force {
+	f, x, ln := pointsOf(rec)
+	var df, dx []float64
+	var dl []int
+	for i := range f {
 		for k := 0; k < 2; k++ {
-			dup.Force = append(dup.Force, rec.Force[i])
-			dup.Strain = append(dup.Strain, rec.Strain[i])
-			dup.Lines = append(dup.Lines, rec.Lines[i])
+			df, dx, dl = append(df, f[i]), append(dx, x[i]), append(dl, ln[i])
 		}
 	}
+	dup := *rec
+	setPoints(&dup, df, dx, dl)
 	r, err := Reduce(&dup, Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	same("duplicates", r)
-	if r.Duplicates != len(rec.Force) || !hasNote(r, "repeated data points") {
+	if r.Duplicates != len(f) || !hasNote(r, "repeated data points") {
 		t.Errorf("duplicates %d notes %q", r.Duplicates, r.Notes)
 	}
 	// An extensometer glitch: 5 points at 2 % strain read 0.5 % low.
 	rec = synthRecord(t, alu)
-	k := indexAbove(rec.Strain, 0.02)
+	f, x, ln = pointsOf(rec)
+	k := indexAbove(x, 0.02)
 	for i := k; i < k+5; i++ {
-		rec.Strain[i] -= 0.005
+		x[i] -= 0.005
 	}
+	setPoints(rec, f, x, ln)
 	r, err = Reduce(rec, Options{})
 	if err != nil {
 		t.Fatal(err)
@@ -464,8 +488,9 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 	// An unload-reload loop at 3 % strain: down to 10 MPa and back up the
 	// elastic line.
 	rec = synthRecord(t, alu)
-	k = indexAbove(rec.Strain, 0.03)
-	f0, x0 := rec.Force[k], rec.Strain[k]
+	f, x, ln = pointsOf(rec)
+	k = indexAbove(x, 0.03)
+	f0, x0 := f[k], x[k]
 	var lf, lx []float64
 	var ll []int
 	for i := 1; i <= 40; i++ {
@@ -478,11 +503,10 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 		sig := f0/rec.Area - (f0/rec.Area-10)*frac
 		lf = append(lf, sig*rec.Area)
 		lx = append(lx, x0-(f0/rec.Area-sig)/alu.E)
-		ll = append(ll, rec.Lines[k])
+		ll = append(ll, ln[k])
 	}
-	rec.Force = append(rec.Force[:k+1], append(lf, rec.Force[k+1:]...)...)
-	rec.Strain = append(rec.Strain[:k+1], append(lx, rec.Strain[k+1:]...)...)
-	rec.Lines = append(rec.Lines[:k+1], append(ll, rec.Lines[k+1:]...)...)
+	setPoints(rec, append(f[:k+1:k+1], append(lf, f[k+1:]...)...), append(x[:k+1:k+1], append(lx, x[k+1:]...)...),
+		append(ln[:k+1:k+1], append(ll, ln[k+1:]...)...))
 	r, err = Reduce(rec, Options{})
 	if err != nil {
 		t.Fatal(err)
@@ -508,8 +532,9 @@ func indexAbove(v []float64, x float64) int {
 // the force still rises has no tensile strength either.
 func TestMissingFracture(t *testing.T) {
 	rec := synthRecord(t, alu)
-	k := indexAbove(rec.Strain, 0.10)
-	rec.Force, rec.Strain, rec.Lines = rec.Force[:k], rec.Strain[:k], rec.Lines[:k]
+	f, x, ln := pointsOf(rec)
+	k := indexAbove(x, 0.10)
+	setPoints(rec, f[:k], x[:k], ln[:k])
 	r, err := Reduce(rec, Options{})
 	if err != nil {
 		t.Fatal(err)
@@ -521,8 +546,9 @@ func TestMissingFracture(t *testing.T) {
 	near(t, "elongation (final gauge)", r.Elongation, alu.Elongation, 1e-4)
 	near(t, "proof", r.Proof, alu.Rp, 0.5)
 	rec = synthRecord(t, alu)
-	k = indexAbove(rec.Strain, 0.03)
-	rec.Force, rec.Strain, rec.Lines = rec.Force[:k], rec.Strain[:k], rec.Lines[:k]
+	f, x, ln = pointsOf(rec)
+	k = indexAbove(x, 0.03)
+	setPoints(rec, f[:k], x[:k], ln[:k])
 	r, err = Reduce(rec, Options{})
 	if err != nil {
 		t.Fatal(err)
@@ -605,11 +631,13 @@ func TestBadInput(t *testing.T) {
 	inputError(t, err, "e.rec:1:1", "no records")
 	// Extension running backwards throughout: a sign or column mix-up.
 	recs, _ = ParseBytes(good, "s.rec")
-	for i := range recs[0].Strain {
-		recs[0].Strain[i] = -recs[0].Strain[i]
+	f, x, ln := pointsOf(recs[0])
+	for i := range x {
+		x[i] = -x[i]
 	}
+	setPoints(recs[0], f, x, ln)
 	_, err = Reduce(recs[0], Options{})
-	inputError(t, err, "s.rec:10:1", "implausible")
+	inputError(t, err, "s.rec:14:1", "the extension sign is reversed")
 }
 
 // TestManyRecordsOneFile: records follow one another in one file.
@@ -719,11 +747,16 @@ func TestNoPanic(t *testing.T) {
 		try(c)
 	}
 	nan := math.NaN()
+	mk := func(area float64, f, x []float64) *Record {
+		r := &Record{Area: area, Gauge: area}
+		setPoints(r, f, x, nil)
+		return r
+	}
 	for _, rec := range []*Record{
-		{}, {Force: []float64{1, 2, 3}, Strain: []float64{0, 1}},
-		{Area: 1, Gauge: 1, Force: []float64{1, nan, 3}, Strain: []float64{0, 1, 2}},
-		{Area: 1, Gauge: 1, Force: []float64{0, 0, 0, 0}, Strain: []float64{0, 0, 0, 0}},
-		{Area: 1, Gauge: 1, Force: []float64{1, 2, 3, 4}, Strain: []float64{0.1, 0.1, 0.1, 0.1}},
+		{}, mk(0, []float64{1, 2}, []float64{0, 1}),
+		mk(1, []float64{1, nan, 3}, []float64{0, 1, 2}),
+		mk(1, []float64{0, 0, 0, 0}, []float64{0, 0, 0, 0}),
+		mk(1, []float64{1, 2, 3, 4}, []float64{0.1, 0.1, 0.1, 0.1}),
 	} {
 		func() {
 			defer func() {

@@ -1,0 +1,378 @@
+package reduce
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Glitch is a point, or a short run of points, that departs from its
+// neighbours by far more than the record's own noise: a force dropout or
+// spike, an extension spike, or an extension step (the extensometer
+// slipping).
+type Glitch struct {
+	Line, LastLine int     // file lines of the first and last point
+	Points         int     // points in the run
+	Series         string  // "force" or "extension"
+	Kind           string  // "spike", "dropout", "run" or "step"
+	Size           float64 // departure from the neighbours' trend [MPa or strain]
+	Noise          float64 // the series' noise SD [MPa or strain]
+	Threshold      float64 // the departure that counts as a glitch
+	from, to       int     // raw point indices [from, to)
+	at             float64 // strain before a step
+}
+
+// glitchSide is the number of neighbours on each side whose straight line
+// predicts a point.
+const glitchSide = 5
+
+// maxSpikeRun is the longest run of points treated as one spike; longer
+// departures are found as a pair of opposite steps (maxStepPair points
+// apart at most).
+const (
+	maxSpikeRun = 3
+	maxStepPair = 200
+)
+
+// sideLine fits a least-squares straight line to v(k), k in [a, b), with
+// the index as abscissa and returns its value at index t.
+func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
+	n := float64(b - a)
+	centre = float64(a+b-1) / 2
+	var sy, sxy, sxx float64
+	for k := a; k < b; k++ {
+		y := v(k)
+		d := float64(k) - centre
+		sy += y
+		sxy += d * y
+		sxx += d * d
+	}
+	return sy / n, sxy / sxx, centre
+}
+
+// findGlitches looks for glitches in the series v(0..n-1) (time order).
+// A point i is predicted twice: by the least-squares line through the
+// glitchSide points before it, extrapolated forward, and by the line
+// through the glitchSide points after the run, extrapolated back. A run
+// of 1 to maxSpikeRun points is a spike (or dropout) when every point of
+// it departs from both predictions by more than thr in the same
+// direction while the two predictions agree with each other to within
+// half that departure, i.e. the curve continues across the run as if it
+// were not there. A point that departs from the forward prediction while
+// the line after it, extrapolated back, misses the point before it by
+// about the same amount in the other direction, with both lines of
+// similar slope, is a step: the series jumped and stayed. Two opposite
+// steps of similar size at most maxStepPair points apart are one run to
+// be left out. Real features are not glitches under these rules: a yield
+// drop or the fracture changes the slope, a peak or a turn of an
+// unload-reload loop lies on the line before it, a change of the test
+// speed is a kink, not a jump. The rule is this package's own; the noise
+// SD is the robust estimate of noiseSD (median absolute second
+// difference).
+func findGlitches(n int, v func(int) float64, thr float64, series string) (spikes []Glitch, steps []Glitch) {
+	h := glitchSide
+	for i := h; i+h < n; i++ {
+		mL, bL, cL := sideLine(v, i-h, i)
+		predL := func(k int) float64 { return mL + bL*(float64(k)-cL) }
+		dL := v(i) - predL(i)
+		if math.Abs(dL) <= thr {
+			continue
+		}
+		found := false
+		for L := 1; L <= maxSpikeRun && i+L+h <= n; L++ {
+			mR, bR, cR := sideLine(v, i+L, i+L+h)
+			ok := true
+			minDev := math.Inf(1)
+			for k := i; k < i+L && ok; k++ {
+				pl, pr := predL(k), mR+bR*(float64(k)-cR)
+				a, b := v(k)-pl, v(k)-pr
+				if math.Signbit(a) != math.Signbit(dL) || math.Signbit(b) != math.Signbit(dL) ||
+					math.Abs(a) <= thr || math.Abs(b) <= thr || math.Abs(pl-pr) >= 0.5*math.Min(math.Abs(a), math.Abs(b)) {
+					ok = false
+				}
+				minDev = math.Min(minDev, math.Min(math.Abs(a), math.Abs(b)))
+			}
+			if ok {
+				kind := "spike"
+				if dL < 0 {
+					kind = "dropout"
+				}
+				spikes = append(spikes, Glitch{Points: L, Series: series, Kind: kind, Size: math.Copysign(minDev, dL), Threshold: thr, from: i, to: i + L})
+				i += L - 1
+				found = true
+				break
+			}
+		}
+		if found {
+			continue
+		}
+		// A step: the line after i, extrapolated back to i-1, misses v(i-1)
+		// by about -dL, and both lines have about the same slope.
+		mR, bR, cR := sideLine(v, i, i+h)
+		dR := v(i-1) - (mR + bR*(float64(i-1)-cR))
+		if math.Signbit(dR) != math.Signbit(dL) && math.Abs(dR) > thr && math.Abs(bL-bR) < 0.25*math.Abs(dL) &&
+			math.Abs(math.Abs(dR)-math.Abs(dL)) < 0.5*math.Abs(dL) {
+			steps = append(steps, Glitch{Points: 1, Series: series, Kind: "step", Size: dL, Threshold: thr, from: i, to: i + 1})
+			i += h - 1
+		}
+	}
+	// Pair opposite steps of similar size into runs.
+	var lone []Glitch
+	for k := 0; k < len(steps); k++ {
+		s := steps[k]
+		if k+1 < len(steps) {
+			t := steps[k+1]
+			if t.from-s.from <= maxStepPair && math.Signbit(t.Size) != math.Signbit(s.Size) &&
+				math.Abs(s.Size+t.Size) < 0.3*math.Abs(s.Size) {
+				spikes = append(spikes, Glitch{Points: t.from - s.from, Series: series, Kind: "run", Size: s.Size, Threshold: thr, from: s.from, to: t.from})
+				k++
+				continue
+			}
+		}
+		lone = append(lone, s)
+	}
+	return spikes, lone
+}
+
+// binTarget is the number of working points a dense record is averaged
+// down to (bins of k consecutive points, k = ceil(n / binTarget)).
+const binTarget = 20000
+
+// rawNoise is noiseSD over the raw series v(0..n-1), with the absolute
+// second differences held as float32 (4 bytes a point).
+func rawNoise(n int, v func(int) float64) float64 {
+	const normQ75 = 0.6744897501960817
+	if n < 3 {
+		return 0
+	}
+	d := make([]float32, n-2)
+	a, b := v(0), v(1)
+	for i := 2; i < n; i++ {
+		c := v(i)
+		d[i-2] = float32(math.Abs(a - 2*b + c))
+		a, b = b, c
+	}
+	return float64(selectK(d, len(d)/2)) / (normQ75 * math.Sqrt(6))
+}
+
+// glitches finds force and extension glitches in the raw points, leaves
+// spikes, dropouts and paired steps out (res.left) with a located warning
+// each, and records lone extension steps (res.steps), which shift every
+// later strain.
+func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) float64, smRaw, xMax float64) {
+	thrS := math.Max(10*res.RawNoise, 0.005*smRaw)
+	thrX := math.Max(10*res.StrainNoise, 1e-5)
+	fs, _ := findGlitches(n, stressAt, thrS, "force")
+	xs, xsteps := findGlitches(n, strainAt, thrX, "extension")
+	for i := range fs {
+		fs[i].Noise = res.RawNoise
+	}
+	for i := range xs {
+		xs[i].Noise = res.StrainNoise
+	}
+	for i := range xsteps {
+		xsteps[i].Noise = res.StrainNoise
+	}
+	all := append(fs, xs...)
+	// A backward extension step where the points repeat earlier points
+	// exactly is a data block written twice.
+	var lone []Glitch
+	for _, g := range xsteps {
+		if g.Size < 0 {
+			if p, L := rawRepeat(rec, g.from); L >= 3 {
+				_, _, pl := rec.Point(p)
+				_, _, pe := rec.Point(p + L - 1)
+				all = append(all, Glitch{Series: "data", Kind: "repeat", from: g.from, to: g.from + L, Size: float64(pl), Threshold: float64(pe)})
+				continue
+			}
+		}
+		lone = append(lone, g)
+	}
+	xsteps = lone
+	sortGlitches(all)
+	// Overlapping runs (a dropout that is also an extension spike) merge.
+	var left []Glitch
+	for _, g := range all {
+		if k := len(left) - 1; k >= 0 && g.from < left[k].to {
+			left[k].to = max(left[k].to, g.to)
+			continue
+		}
+		left = append(left, g)
+	}
+	for i := range left {
+		_, _, left[i].Line = rec.Point(left[i].from)
+		_, _, left[i].LastLine = rec.Point(left[i].to - 1)
+		left[i].Points = left[i].to - left[i].from
+	}
+	for i := range xsteps {
+		_, xsteps[i].at, _ = rec.Point(xsteps[i].from - 1)
+		_, _, xsteps[i].Line = rec.Point(xsteps[i].from)
+		xsteps[i].LastLine = xsteps[i].Line
+	}
+	res.left, res.steps = left, xsteps
+	res.Glitches = append(append([]Glitch{}, left...), xsteps...)
+	const listed = 10
+	for k, g := range left {
+		if g.Kind == "repeat" {
+			res.RepeatedPoints += g.Points
+			res.warn("lines %d to %d repeat lines %d to %d point for point (a data block written twice); the repeat is left out", g.Line, g.LastLine, int(g.Size), int(g.Threshold))
+			continue
+		}
+		if k == listed {
+			res.warn("%d more glitches left out (see the audit)", len(left)-listed)
+			break
+		}
+		where := fmt.Sprintf("line %d", g.Line)
+		if g.LastLine != g.Line {
+			where = fmt.Sprintf("lines %d to %d", g.Line, g.LastLine)
+		}
+		unit, size, noise, thr := "MPa", fmt.Sprintf("%+.4g", g.Size), fmt.Sprintf("%.3g", g.Noise), fmt.Sprintf("%.3g", g.Threshold)
+		if g.Series == "extension" {
+			unit, size, noise, thr = "% strain", fmt.Sprintf("%+.3g", 100*g.Size), fmt.Sprintf("%.3g", 100*g.Noise), fmt.Sprintf("%.3g", 100*g.Threshold)
+		}
+		res.warn("%s %s at %s: %s %s from the trend of its neighbours (noise SD %s, glitch threshold %s %s); left out of every property",
+			g.Series, g.Kind, where, size, unit, noise, thr, unit)
+	}
+	for _, g := range xsteps {
+		res.warn("extension step at line %d: the extension jumps by %+.3g %% strain and stays (noise SD %.3g %%, threshold %.3g %%): the extensometer probably slipped; properties measured beyond it are not reported",
+			g.Line, 100*g.Size, 100*g.Noise, 100*g.Threshold)
+	}
+}
+
+// rawRepeat looks for an earlier raw point equal (force and strain) to
+// point i and returns it and the number of points that repeat from there
+// (0 when none does).
+func rawRepeat(rec *Record, i int) (p, length int) {
+	f, x, _ := rec.Point(i)
+	for p = i - 1; p >= 0; p-- {
+		fp, xp, _ := rec.Point(p)
+		if fp != f || xp != x {
+			continue
+		}
+		L := 1
+		for i+L < rec.Len() && p+L < i {
+			a, b, _ := rec.Point(p + L)
+			c, d, _ := rec.Point(i + L)
+			if a != c || b != d {
+				break
+			}
+			L++
+		}
+		if L >= 3 {
+			return p, L
+		}
+	}
+	return 0, 0
+}
+
+func sortGlitches(g []Glitch) {
+	sort.Slice(g, func(i, j int) bool { return g[i].from < g[j].from })
+}
+
+// startForce is the median force of the first five points not left out.
+func startForce(rec *Record, n int, left []Glitch) float64 {
+	var v []float64
+	k := 0
+	for i := 0; i < n && len(v) < 5; i++ {
+		for k < len(left) && left[k].to <= i {
+			k++
+		}
+		if k < len(left) && i >= left[k].from {
+			continue
+		}
+		f, _, _ := rec.Point(i)
+		v = append(v, f)
+	}
+	sort.Float64s(v)
+	return v[len(v)/2]
+}
+
+// workingPoints builds the working curve: stress [MPa], strain and the
+// first and last file line of each working point, with repeated points
+// and glitches left out. With more than binTarget points, consecutive
+// points are averaged in bins of k (the mean force and the mean strain);
+// the points after the fracture (the final run below 10 % of the highest
+// force) are binned on their own so that no bin straddles the fracture.
+// The highest raw stress of the points kept is res.TensileRaw.
+func (res *Result) workingPoints(rec *Record, n int) (x, s []float64, ln, lnLast []int) {
+	left := res.left
+	kept := n - res.Duplicates
+	for _, g := range left {
+		kept -= g.to - g.from
+	}
+	k := (kept + binTarget - 1) / binTarget
+	if k < 1 {
+		k = 1
+	}
+	res.Bin = k
+	// The fracture tail in raw points.
+	top := math.Inf(-1)
+	isLeft := func() func(i int) bool {
+		j := 0
+		return func(i int) bool {
+			for j < len(left) && left[j].to <= i {
+				j++
+			}
+			return j < len(left) && i >= left[j].from
+		}
+	}
+	il := isLeft()
+	var pf, px float64
+	for i := 0; i < n; i++ {
+		f, xx, _ := rec.Point(i)
+		dup := i > 0 && f == pf && xx == px
+		pf, px = f, xx
+		if dup || il(i) {
+			continue
+		}
+		top = math.Max(top, f/rec.Area)
+	}
+	res.TensileRaw = top
+	tail := n
+	for tail > 0 {
+		f, _, _ := rec.Point(tail - 1)
+		if f/rec.Area >= 0.1*top {
+			break
+		}
+		tail--
+	}
+	size := kept/k + 2
+	x, s = make([]float64, 0, size), make([]float64, 0, size)
+	ln, lnLast = make([]int, 0, size), make([]int, 0, size)
+	var sf, sx float64
+	cnt, first, last := 0, 0, 0
+	flush := func() {
+		if cnt > 0 {
+			x, s = append(x, sx/float64(cnt)), append(s, sf/float64(cnt)/rec.Area)
+			ln, lnLast = append(ln, first), append(lnLast, last)
+		}
+		sf, sx, cnt = 0, 0, 0
+	}
+	il = isLeft()
+	inTail := false
+	for i := 0; i < n; i++ {
+		f, xx, line := rec.Point(i)
+		dup := i > 0 && f == pf && xx == px
+		pf, px = f, xx
+		if dup || il(i) {
+			continue
+		}
+		if i >= tail && !inTail {
+			flush()
+			inTail = true
+		}
+		if cnt == 0 {
+			first = line
+		}
+		sf, sx, last = sf+f, sx+xx, line
+		cnt++
+		if cnt == k {
+			flush()
+		}
+	}
+	flush()
+	if k > 1 {
+		res.note("%d points averaged in bins of %d consecutive points (%d working points)", kept, k, len(x))
+	}
+	return x, s, ln, lnLast
+}
