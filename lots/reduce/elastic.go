@@ -15,9 +15,14 @@ var elasticGrid = []float64{0, 0.01, 0.02, 0.03, 0.04, 0.05, 0.06, 0.07, 0.08, 0
 // Straightness limits of a window: the tangent slope may change across it
 // by at most linCurve (relative) or, when the noise hides more, by three
 // standard errors of that change but never more than linCurveMax.
+//
+// A window starts at most maxStart of the top stress up: above it lies
+// plastic flow for every metal (the elastic range of a sharply yielding
+// metal starts near zero; a toe rarely reaches a third of the top).
 const (
+	maxStart    = 0.35
 	linCurve    = 0.005
-	linCurveMax = 0.03
+	linCurveMax = 0.1
 )
 
 type window struct {
@@ -150,7 +155,7 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 	first := func(thr float64) int { return sort.SearchFloat64s(runMax, thr) }
 	best := -1
 	var cands []window
-	for ai := 0; ai < len(elasticGrid)-1; ai++ {
+	for ai := 0; ai < len(elasticGrid)-1 && elasticGrid[ai] <= maxStart; ai++ {
 		a := elasticGrid[ai]
 		l := first(a * top)
 		for bi := ai + 1; bi < len(elasticGrid); bi++ {

@@ -14,7 +14,7 @@ type Glitch struct {
 	Line, LastLine int     // file lines of the first and last point
 	Points         int     // points in the run
 	Series         string  // "force" or "extension"
-	Kind           string  // "spike", "dropout", "run" or "step"
+	Kind           string  // "spike", "dropout", "excursion" (a jump and back), "step" or "repeat"
 	Size           float64 // departure from the neighbours' trend [MPa or strain]
 	Noise          float64 // the series' noise SD [MPa or strain]
 	Threshold      float64 // the departure that counts as a glitch
@@ -124,7 +124,7 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 			t := steps[k+1]
 			if t.from-s.from <= maxStepPair && math.Signbit(t.Size) != math.Signbit(s.Size) &&
 				math.Abs(s.Size+t.Size) < 0.3*math.Abs(s.Size) {
-				spikes = append(spikes, Glitch{Points: t.from - s.from, Series: series, Kind: "run", Size: s.Size, Threshold: thr, from: s.from, to: t.from})
+				spikes = append(spikes, Glitch{Points: t.from - s.from, Series: series, Kind: "excursion", Size: s.Size, Threshold: thr, from: s.from, to: t.from})
 				k++
 				continue
 			}
@@ -176,8 +176,17 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 	all := append(fs, xs...)
 	// A backward extension step where the points repeat earlier points
 	// exactly is a data block written twice.
+	// An extension jump with the force falling or rising abruptly at the
+	// same point is the material yielding (a Lüders band, a yield drop),
+	// not the extensometer slipping.
 	var lone []Glitch
 	for _, g := range xsteps {
+		if g.from >= glitchSide {
+			m, b, c := sideLine(stressAt, g.from-glitchSide, g.from)
+			if math.Abs(stressAt(g.from)-(m+b*(float64(g.from)-c))) > thrS {
+				continue
+			}
+		}
 		if g.Size < 0 {
 			if p, L := rawRepeat(rec, g.from); L >= 3 {
 				_, _, pl := rec.Point(p)

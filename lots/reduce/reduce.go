@@ -414,8 +414,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 // the strain at maximum force from the points near the highest working
 // point: those within a band of max(6 noise SD, 0.05 % of the maximum)
 // below it, contiguous around it. Through them a least-squares parabola
-// in strain is fitted on a window symmetric about the current estimate
-// and refined three times; Rm is the parabola's vertex value and the
+// in strain is fitted on the window symmetric about the highest point; Rm is the parabola's vertex value and the
 // strain its vertex, so that the noise does not lift Rm as the highest of
 // many noisy points would. Rm is never above the highest raw value. When
 // the top is flat (the parabola falls by less than a quarter of the band
@@ -462,7 +461,7 @@ func (res *Result) peak(x, s []float64, iMax int) {
 		set(sum/float64(h-l+1), (x[l]+x[h])/2, fmt.Sprintf("flat top: mean of the %d points within %.3g MPa of the highest, strain at the middle of the flat", h-l+1, band))
 	}
 	var v float64
-	for it := 0; it < 4; it++ {
+	for it := 0; it < 1; it++ {
 		cf, ok := quadFit(x, s, c, hw)
 		if !ok {
 			set(top, x[iMax], "highest working point (no fit possible)")

@@ -95,8 +95,8 @@ func TestRambergOsgoodExact(t *testing.T) {
 
 // TestRambergOsgoodNoise: with normal noise of SD 1 MPa on the stress
 // (about 0.3 % of Rp for aluminium, 0.1 % for steel) over 20 seeds, every
-// seed stays within the stated tolerances (E 1 %, Rp 0.3 %, Rm 1.5 MPa
-// above the true value plus noise, Ag 1 % strain).
+// seed stays within the stated tolerances (E 1 %, Rp 0.3 %, Rm 0.3 % and
+// never above the highest raw point, Ag 1 % strain).
 func TestRambergOsgoodNoise(t *testing.T) {
 	for _, base := range []SynthSpec{alu, steel} {
 		for seed := uint64(1); seed <= 20; seed++ {
@@ -105,7 +105,10 @@ func TestRambergOsgoodNoise(t *testing.T) {
 			r := reduceSpec(t, sp, Options{})
 			near(t, sp.ID+" modulus", r.Modulus, sp.E, 0.01*sp.E)
 			near(t, sp.ID+" proof", r.Proof, sp.Rp, 0.003*sp.Rp)
-			near(t, sp.ID+" tensile", r.Tensile, sp.Rm+2, 2) // the highest of many noisy points lies above Rm
+			near(t, sp.ID+" tensile", r.Tensile, sp.Rm, 0.003*sp.Rm)
+			if !(r.Tensile <= r.TensileRaw) {
+				t.Errorf("%s tensile %g above the highest raw point %g", sp.ID, r.Tensile, r.TensileRaw)
+			}
 			near(t, sp.ID+" uniform", r.Uniform, sp.Uniform, 0.01)
 			near(t, sp.ID+" elongation from record", r.ExtensometerElongation, sp.Elongation, 0.002)
 			near(t, sp.ID+" toughness", r.Toughness, roToughness(sp), 0.005*roToughness(sp))
@@ -469,7 +472,8 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 	if r.Duplicates != len(f) || !hasNote(r, "repeated data points") {
 		t.Errorf("duplicates %d notes %q", r.Duplicates, r.Notes)
 	}
-	// An extensometer glitch: 5 points at 2 % strain read 0.5 % low.
+	// An extensometer glitch: 5 points at 2 % strain read 0.5 % low: a jump
+	// and back, left out with a located warning.
 	rec = synthRecord(t, alu)
 	f, x, ln = pointsOf(rec)
 	k := indexAbove(x, 0.02)
@@ -482,8 +486,8 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 		t.Fatal(err)
 	}
 	same("backwards", r)
-	if r.Backward < 5 || !hasWarning(r, "extension went backwards") {
-		t.Errorf("backward %d warnings %q", r.Backward, r.Warnings)
+	if len(r.Glitches) != 1 || r.Glitches[0].Points != 5 || r.Glitches[0].Line != ln[k] || !hasWarning(r, "extension excursion at lines") {
+		t.Errorf("glitches %+v warnings %q", r.Glitches, r.Warnings)
 	}
 	// An unload-reload loop at 3 % strain: down to 10 MPa and back up the
 	// elastic line.
