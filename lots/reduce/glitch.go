@@ -278,11 +278,10 @@ func sortGlitches(g []Glitch) {
 	sort.Slice(g, func(i, j int) bool { return g[i].from < g[j].from })
 }
 
-// startForce is the median force of the first five points not left out.
+// startForce is the force of the first point not left out.
 func startForce(rec *Record, n int, left []Glitch) float64 {
-	var v []float64
 	k := 0
-	for i := 0; i < n && len(v) < 5; i++ {
+	for i := 0; i < n; i++ {
 		for k < len(left) && left[k].to <= i {
 			k++
 		}
@@ -290,10 +289,9 @@ func startForce(rec *Record, n int, left []Glitch) float64 {
 			continue
 		}
 		f, _, _ := rec.Point(i)
-		v = append(v, f)
+		return f
 	}
-	sort.Float64s(v)
-	return v[len(v)/2]
+	return 0
 }
 
 // workingPoints builds the working curve: stress [MPa], strain and the
