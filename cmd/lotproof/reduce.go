@@ -90,64 +90,63 @@ func (o reduceOptions) reduceOpts() (reduce.Options, error) {
 	return opt, nil
 }
 
-// readRecords parses every record named by paths: files, folders (their
-// *.rec files in name order) or - for standard input. Problems from every
-// file are collected into one input error.
-func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
-	var all []*reduce.Record
-	var probs []lots.Problem
-	more := 0
-	collect := func(err error) error {
-		ie, ok := err.(*lots.InputError)
-		if !ok {
-			return err
-		}
-		for _, p := range ie.Problems {
-			if len(probs) < lots.MaxProblems {
-				probs = append(probs, p)
-			} else {
-				more++
-			}
-		}
-		more += ie.More
-		return nil
-	}
+// reduceInputs parses and reduces every record named by paths: files,
+// folders (their *.rec files in name order) or - for standard input, one
+// file at a time so that only one file's points are held. Problems from
+// every file are collected into one input error. fileDone, when set, is
+// called after each file (a progress display over the files of
+// inputFiles).
+func reduceInputs(paths []string, st streams, opt reduce.Options, fileDone func()) ([]*reduce.Result, error) {
+	b := reduce.NewBatch(opt)
 	parse := func(r io.Reader, name string) error {
 		recs, err := reduce.Parse(r, name)
 		if err != nil {
-			return collect(err)
+			if b.Problems(err) {
+				return nil
+			}
+			return err
 		}
-		all = append(all, recs...)
-		return nil
+		return b.Add(recs)
+	}
+	open := func(p string) error {
+		if fileDone != nil {
+			defer fileDone()
+		}
+		f, err := lots.OpenInput(p, input.Records, nil)
+		if err != nil {
+			if b.Problems(err) {
+				return nil
+			}
+			return err
+		}
+		defer f.Close()
+		return parse(f, p)
 	}
 	for _, p := range paths {
 		if p == "-" {
-			if err := parse(input.Limit(st.In, "-", input.Records), "-"); err != nil {
+			err := parse(input.Limit(st.In, "-", input.Records), "-")
+			if fileDone != nil {
+				fileDone()
+			}
+			if err != nil {
 				return nil, err
 			}
 			continue
 		}
 		fi, err := os.Stat(p)
 		if err != nil {
-			collect(lots.Inputf(p, "give an existing record file or folder", "cannot open: %v", unwrapPathErr(err)))
+			b.Problems(lots.Inputf(p, "give an existing record file or folder", "cannot open: %v", unwrapPathErr(err)))
 			continue
 		}
 		if !fi.IsDir() {
-			f, err := lots.OpenInput(p, input.Records, nil)
-			if err != nil {
-				collect(err)
-				continue
-			}
-			err = parse(f, p)
-			f.Close()
-			if err != nil {
+			if err := open(p); err != nil {
 				return nil, err
 			}
 			continue
 		}
 		ents, err := os.ReadDir(p)
 		if err != nil {
-			collect(lots.Inputf(p, "check the folder's permissions", "cannot read the folder: %v", unwrapPathErr(err)))
+			b.Problems(lots.Inputf(p, "check the folder's permissions", "cannot read the folder: %v", unwrapPathErr(err)))
 			continue
 		}
 		var names []string
@@ -158,26 +157,35 @@ func readRecords(paths []string, st streams) ([]*reduce.Record, error) {
 		}
 		sort.Strings(names)
 		if len(names) == 0 {
-			collect(lots.Inputf(p, "raw record files end in .rec", "no %s files in the folder", reduce.RecordExt))
+			b.Problems(lots.Inputf(p, "raw record files end in .rec", "no %s files in the folder", reduce.RecordExt))
 		}
 		for _, n := range names {
-			fp := filepath.Join(p, n)
-			f, err := lots.OpenInput(fp, input.Records, nil)
-			if err != nil {
-				collect(err)
-				continue
-			}
-			err = parse(f, fp)
-			f.Close()
-			if err != nil {
+			if err := open(filepath.Join(p, n)); err != nil {
 				return nil, err
 			}
 		}
 	}
-	if len(probs) > 0 {
-		return nil, &lots.InputError{Problems: probs, More: more}
+	return b.Results()
+}
+
+// inputFiles counts the record files named by paths (for a progress
+// display; a folder counts its *.rec files).
+func inputFiles(paths []string) int {
+	n := 0
+	for _, p := range paths {
+		fi, err := os.Stat(p)
+		if p == "-" || err != nil || !fi.IsDir() {
+			n++
+			continue
+		}
+		ents, _ := os.ReadDir(p)
+		for _, e := range ents {
+			if !e.IsDir() && strings.EqualFold(filepath.Ext(e.Name()), reduce.RecordExt) {
+				n++
+			}
+		}
 	}
-	return all, nil
+	return n
 }
 
 func unwrapPathErr(err error) error {
@@ -195,13 +203,8 @@ func runReduce(o reduceOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	recs, err := readRecords(o.Paths, st)
-	if err != nil {
-		return err
-	}
-	bar := progress.New(st.Err, st.ErrTerminal, int64(len(recs)), "reduce")
-	opt.Done = func() { bar.Add(1) }
-	rs, err := reduce.ReduceAll(recs, opt)
+	bar := progress.New(st.Err, st.ErrTerminal, int64(inputFiles(o.Paths)), "reduce")
+	rs, err := reduceInputs(o.Paths, st, opt, func() { bar.Add(1) })
 	bar.Finish()
 	if err != nil {
 		return err
@@ -286,23 +289,53 @@ type reduceFitJSON struct {
 	FirstLine  int        `json:"first_line"`
 	LastLine   int        `json:"last_line"`
 	Automatic  bool       `json:"automatic"`
+	Method     string     `json:"method"`
+	// The stress range as percentages of the proof strength.
+	FromPercentProof lots.Float `json:"from_percent_of_proof"`
+	ToPercentProof   lots.Float `json:"to_percent_of_proof"`
+}
+
+type reduceGlitchJSON struct {
+	FirstLine int        `json:"first_line"`
+	LastLine  int        `json:"last_line"`
+	Points    int        `json:"points"`
+	Series    string     `json:"series"` // force or extension
+	Kind      string     `json:"kind"`   // spike, dropout, excursion, step, repeat
+	Size      lots.Float `json:"size"`   // departure from the neighbours' trend: stress unit, or % strain
+	NoiseSD   lots.Float `json:"noise_sd"`
+	Threshold lots.Float `json:"threshold"`
+	LeftOut   bool       `json:"left_out"` // false for an extension step (later properties not reported)
+}
+
+type reduceTensileJSON struct {
+	Method            string     `json:"method"`
+	HighestRaw        lots.Float `json:"highest_raw"` // stress unit
+	StrainFromPercent lots.Float `json:"strain_from_percent"`
+	StrainToPercent   lots.Float `json:"strain_to_percent"`
+	PointsUsed        int        `json:"points_used"`
 }
 
 type reduceAuditJSON struct {
-	Points                  int            `json:"points"`
-	DuplicatesLeftOut       int            `json:"duplicates_left_out"`
-	BackwardLeftOut         int            `json:"backward_left_out"`
-	LoopPointsLeftOut       int            `json:"loop_points_left_out"`
-	NoiseSD                 lots.Float     `json:"noise_sd"`
-	ElasticFit              *reduceFitJSON `json:"elastic_fit"`
-	ToeShiftPercent         lots.Float     `json:"toe_shift_percent"`
-	OffsetPercent           float64        `json:"offset_percent"`
-	ProofStrainPercent      lots.Float     `json:"proof_strain_percent"`
-	TensileStrainPercent    lots.Float     `json:"tensile_strain_percent"`
-	Fractured               bool           `json:"fractured"`
-	FractureStrainPercent   lots.Float     `json:"fracture_strain_percent"`
-	ElongationMethod        string         `json:"elongation_method"`
-	ElongationRecordPercent lots.Float     `json:"elongation_from_record_percent"`
+	Points                  int                `json:"points"`
+	DuplicatesLeftOut       int                `json:"duplicates_left_out"`
+	BackwardLeftOut         int                `json:"backward_left_out"`
+	LoopPointsLeftOut       int                `json:"loop_points_left_out"`
+	NoiseSD                 lots.Float         `json:"noise_sd"`
+	RawNoiseSD              lots.Float         `json:"raw_noise_sd"`
+	StrainNoiseSDPercent    lots.Float         `json:"strain_noise_sd_percent"`
+	PointsPerWorkingPoint   int                `json:"points_per_working_point"`
+	RepeatedLeftOut         int                `json:"repeated_left_out"`
+	Glitches                []reduceGlitchJSON `json:"glitches"`
+	Tensile                 reduceTensileJSON  `json:"tensile"`
+	ElasticFit              *reduceFitJSON     `json:"elastic_fit"`
+	ToeShiftPercent         lots.Float         `json:"toe_shift_percent"`
+	OffsetPercent           float64            `json:"offset_percent"`
+	ProofStrainPercent      lots.Float         `json:"proof_strain_percent"`
+	TensileStrainPercent    lots.Float         `json:"tensile_strain_percent"`
+	Fractured               bool               `json:"fractured"`
+	FractureStrainPercent   lots.Float         `json:"fracture_strain_percent"`
+	ElongationMethod        string             `json:"elongation_method"`
+	ElongationRecordPercent lots.Float         `json:"elongation_from_record_percent"`
 }
 
 type reduceSpecimenJSON struct {
@@ -332,7 +365,7 @@ type reduceResultJSON struct {
 func reduceJSON(rs []*reduce.Result, sys units.System) reduceResultJSON {
 	out := reduceResultJSON{
 		Tool: "lotproof reduce", Version: lots.Version,
-		Method: "modulus: least squares over the linear region (ASTM E111); proof: offset method (ISO 6892-1 Rp, ASTM E8/E8M) after toe compensation; ReH/ReL, Rm, Ag, A, Z: ISO 6892-1; toughness: trapezoidal area under the engineering curve to fracture; resilience: Rp^2/(2E)",
+		Method: "glitches (points departing from both neighbouring trends by more than 10 noise SDs, noise from the median absolute second difference) left out; records over 20,000 points averaged in bins of consecutive points; modulus: least squares over the straight stress window with the smallest combined error (ASTM E111); proof: offset method (ISO 6892-1 Rp, ASTM E8/E8M) after toe compensation; ReH/ReL, Ag, A, Z: ISO 6892-1; Rm: vertex of a least-squares parabola through the points near the maximum force, never above the highest raw point; toughness: trapezoidal area under the engineering curve to fracture; resilience: Rp^2/(2E)",
 		Units:  map[string]string{}, Caution: reduceCaution, Specimens: []reduceSpecimenJSON{},
 	}
 	for _, c := range reduce.Columns {
@@ -355,12 +388,31 @@ func reduceJSON(rs []*reduce.Result, sys units.System) reduceResultJSON {
 		a := &sj.Audit
 		a.Points, a.DuplicatesLeftOut, a.BackwardLeftOut, a.LoopPointsLeftOut = r.Points, r.Duplicates, r.Backward, r.LoopPoints
 		a.NoiseSD = lots.Float(stress.FromInternal(r.Noise))
+		a.RawNoiseSD = lots.Float(stress.FromInternal(r.RawNoise))
+		a.StrainNoiseSDPercent = pct(r.StrainNoise)
+		a.PointsPerWorkingPoint, a.RepeatedLeftOut = r.Bin, r.RepeatedPoints
+		a.Glitches = []reduceGlitchJSON{}
+		for _, g := range r.Glitches {
+			gj := reduceGlitchJSON{FirstLine: g.Line, LastLine: g.LastLine, Points: g.Points, Series: g.Series, Kind: g.Kind, LeftOut: g.Kind != "step"}
+			switch g.Series {
+			case "force":
+				gj.Size, gj.NoiseSD, gj.Threshold = lots.Float(stress.FromInternal(g.Size)), lots.Float(stress.FromInternal(g.Noise)), lots.Float(stress.FromInternal(g.Threshold))
+			case "extension":
+				gj.Size, gj.NoiseSD, gj.Threshold = pct(g.Size), pct(g.Noise), pct(g.Threshold)
+			default: // a repeated block: no size
+				gj.Size, gj.NoiseSD, gj.Threshold = lots.Float(math.NaN()), lots.Float(math.NaN()), lots.Float(math.NaN())
+			}
+			a.Glitches = append(a.Glitches, gj)
+		}
+		a.Tensile = reduceTensileJSON{Method: r.TensileMethod, HighestRaw: lots.Float(stress.FromInternal(r.TensileRaw)),
+			StrainFromPercent: pct(r.TensileFrom), StrainToPercent: pct(r.TensileTo), PointsUsed: r.TensileN}
 		if r.FitOK {
 			a.ElasticFit = &reduceFitJSON{
 				Slope: lots.Float(mod.FromInternal(r.Fit.Slope)), Intercept: lots.Float(stress.FromInternal(r.Fit.Intercept)),
 				R2: lots.Float(r.Fit.R2), ResidualSD: lots.Float(stress.FromInternal(r.Fit.ResidualSD)), PointsUsed: r.Fit.N,
 				StressFrom: lots.Float(stress.FromInternal(r.Fit.From)), StressTo: lots.Float(stress.FromInternal(r.Fit.To)),
-				FirstLine: r.Fit.FirstLine, LastLine: r.Fit.LastLine, Automatic: r.Fit.Auto,
+				FirstLine: r.Fit.FirstLine, LastLine: r.Fit.LastLine, Automatic: r.Fit.Auto, Method: r.FitMethod,
+				FromPercentProof: lots.Float(r.Fit.FromPercentProof), ToPercentProof: lots.Float(r.Fit.ToPercentProof),
 			}
 		}
 		a.ToeShiftPercent = pct(r.ToeShift)

@@ -250,11 +250,8 @@ func runReport(o reportOptions, st streams) error {
 		bar.Add(1)
 	}
 	if len(o.Records) > 0 {
-		recs, err := readRecords(o.Records, st)
-		if err != nil {
-			return err
-		}
-		if in.Reduced, err = reduce.ReduceAll(recs, reduce.Options{}); err != nil {
+		var err error
+		if in.Reduced, err = reduceInputs(o.Records, st, reduce.Options{}, nil); err != nil {
 			return err
 		}
 		bar.Add(1)

@@ -124,85 +124,109 @@ func ReduceFS(fsys fs.FS, dir string, opt Options) ([]*Result, error) {
 	if len(names) == 0 {
 		return nil, lots.Inputf(dir, "raw record files end in .rec (see FORMAT.md)", "no %s files in the folder", RecordExt)
 	}
-	var all []*Record
-	var probs []lots.Problem
-	more := 0
-	collect := func(err error) bool {
-		if ie, ok := err.(*lots.InputError); ok {
-			for _, p := range ie.Problems {
-				if len(probs) < lots.MaxProblems {
-					probs = append(probs, p)
-				} else {
-					more++
-				}
-			}
-			more += ie.More
-			return true
-		}
-		return false
-	}
+	b := NewBatch(opt)
 	for _, n := range names {
 		p := path.Join(dir, n)
-		data, err := fs.ReadFile(fsys, p)
+		f, err := fsys.Open(p)
 		if err != nil {
-			collect(lots.Inputf(p, "check that the file can be read", "cannot read: %v", err))
+			b.Problems(lots.Inputf(p, "check that the file can be read", "cannot read: %v", err))
 			continue
 		}
-		recs, err := ParseBytes(data, p)
+		recs, err := Parse(f, p)
+		f.Close()
 		if err != nil {
-			if !collect(err) {
+			if !b.Problems(err) {
 				return nil, err
 			}
 			continue
 		}
-		all = append(all, recs...)
+		if err := b.Add(recs); err != nil {
+			return nil, err
+		}
 	}
-	if len(probs) > 0 {
-		return nil, &lots.InputError{Problems: probs, More: more}
+	return b.Results()
+}
+
+// Batch reduces records as they are read, file by file, so that only
+// one file's points are held at a time; it checks that specimen ids are
+// unique across everything added and collects every unusable record
+// into one *lots.InputError.
+type Batch struct {
+	opt   Options
+	seen  map[string]string
+	out   []*Result
+	probs []lots.Problem
+	more  int
+}
+
+// NewBatch starts an empty batch.
+func NewBatch(opt Options) *Batch { return &Batch{opt: opt, seen: map[string]string{}} }
+
+// Add reduces records in order. It returns an error only for a failure
+// that is not a problem of the input.
+func (b *Batch) Add(recs []*Record) error {
+	for _, rec := range recs {
+		where := rec.Where(rec.Line)
+		if first, dup := b.seen[rec.ID]; dup {
+			b.problem(lots.Problem{Where: where, What: "duplicate specimen id " + strconv.Quote(rec.ID) + " (first at " + first + ")", Fix: "specimen ids must be unique; rename one of the records"})
+			continue
+		}
+		b.seen[rec.ID] = where
+		r, err := Reduce(rec, b.opt)
+		if b.opt.Done != nil {
+			b.opt.Done()
+		}
+		if err != nil {
+			ie, ok := err.(*lots.InputError)
+			if !ok {
+				return err
+			}
+			for _, p := range ie.Problems {
+				b.problem(p)
+			}
+			b.more += ie.More
+			continue
+		}
+		b.out = append(b.out, r)
 	}
-	return ReduceAll(all, opt)
+	return nil
+}
+
+// Problems adds located input problems found elsewhere (reading a file).
+func (b *Batch) Problems(err error) bool {
+	ie, ok := err.(*lots.InputError)
+	if !ok {
+		return false
+	}
+	for _, p := range ie.Problems {
+		b.problem(p)
+	}
+	b.more += ie.More
+	return true
+}
+
+func (b *Batch) problem(p lots.Problem) {
+	if len(b.probs) < lots.MaxProblems {
+		b.probs = append(b.probs, p)
+	} else {
+		b.more++
+	}
+}
+
+// Results returns the results in order, or every problem found.
+func (b *Batch) Results() ([]*Result, error) {
+	if len(b.probs) > 0 {
+		return nil, &lots.InputError{Problems: b.probs, More: b.more}
+	}
+	return b.out, nil
 }
 
 // ReduceAll reduces records in order, checks that specimen ids are unique
 // and collects every unusable record into one *lots.InputError.
 func ReduceAll(recs []*Record, opt Options) ([]*Result, error) {
-	var probs []lots.Problem
-	more := 0
-	seen := map[string]string{}
-	out := make([]*Result, 0, len(recs))
-	for _, rec := range recs {
-		where := rec.Where(rec.Line)
-		if first, dup := seen[rec.ID]; dup {
-			probs = append(probs, lots.Problem{Where: where, What: "duplicate specimen id " + strconv.Quote(rec.ID) + " (first at " + first + ")", Fix: "specimen ids must be unique; rename one of the records"})
-			continue
-		}
-		seen[rec.ID] = where
-		r, err := Reduce(rec, opt)
-		if opt.Done != nil {
-			opt.Done()
-		}
-		if err != nil {
-			ie, ok := err.(*lots.InputError)
-			if !ok {
-				return nil, err
-			}
-			for _, p := range ie.Problems {
-				if len(probs) < lots.MaxProblems {
-					probs = append(probs, p)
-				} else {
-					more++
-				}
-			}
-			continue
-		}
-		out = append(out, r)
+	b := NewBatch(opt)
+	if err := b.Add(recs); err != nil {
+		return nil, err
 	}
-	if len(probs) > lots.MaxProblems {
-		more += len(probs) - lots.MaxProblems
-		probs = probs[:lots.MaxProblems]
-	}
-	if len(probs) > 0 {
-		return nil, &lots.InputError{Problems: probs, More: more}
-	}
-	return out, nil
+	return b.Results()
 }

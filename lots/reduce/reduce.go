@@ -50,23 +50,23 @@ type Result struct {
 	ID, Lot, Heat, Supplier, Material, Tested, Condition string
 	Source                                               string // file:line of the record
 
-	Modulus, Proof, UpperYield, LowerYield, Tensile               float64
-	Uniform, Elongation, ReductionOfArea                          float64
-	Toughness, Resilience                                         float64
-	ElongationMethod                                              string  // how the elongation was found
-	ExtensometerElongation                                        float64 // plastic strain at fracture from the record (audit)
-	Fit                                                           Fit
-	FitOK                                                         bool
-	ToeShift                                                      float64 // strain origin shift (toe compensation)
-	Offset                                                        float64
-	ProofStrain, TensileStrain, FractureStrain                    float64 // on the toe-compensated curve
-	Fractured                                                     bool
-	Noise                                                         float64 // estimated stress noise SD of the working points [MPa]
-	RawNoise                                                      float64 // estimated stress noise SD of the raw points [MPa]
-	StrainNoise                                                   float64 // estimated strain noise SD of the raw points
-	Bin                                                           int     // raw points averaged per working point
-	Glitches                                                      []Glitch
-	RepeatedPoints                                                int // points of repeated data blocks left out
+	Modulus, Proof, UpperYield, LowerYield, Tensile float64
+	Uniform, Elongation, ReductionOfArea            float64
+	Toughness, Resilience                           float64
+	ElongationMethod                                string  // how the elongation was found
+	ExtensometerElongation                          float64 // plastic strain at fracture from the record (audit)
+	Fit                                             Fit
+	FitOK                                           bool
+	ToeShift                                        float64 // strain origin shift (toe compensation)
+	Offset                                          float64
+	ProofStrain, TensileStrain, FractureStrain      float64 // on the toe-compensated curve
+	Fractured                                       bool
+	Noise                                           float64 // estimated stress noise SD of the working points [MPa]
+	RawNoise                                        float64 // estimated stress noise SD of the raw points [MPa]
+	StrainNoise                                     float64 // estimated strain noise SD of the raw points
+	Bin                                             int     // raw points averaged per working point
+	Glitches                                        []Glitch
+	RepeatedPoints                                  int // points of repeated data blocks left out
 
 	// TensileRaw is the highest raw stress (glitches left out); Tensile is
 	// from the smoothed curve at the maximum and never above it.
@@ -77,7 +77,7 @@ type Result struct {
 	TensileN      int     // working points in the Rm fit
 	FitMethod     string  // how the elastic window was chosen
 
-	left, steps []Glitch // raw point ranges left out; lone extension steps
+	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
 	Notes, Warnings                                               []string
 
@@ -609,6 +609,7 @@ func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi i
 				break
 			}
 		}
+		res.FitMethod = fmt.Sprintf("least squares over the stress range given, %.4g to %.4g MPa", opt.ModulusFrom, opt.ModulusTo)
 		if lo < 0 || hi-lo < 3 {
 			res.warn("no linear region found: the modulus range %.4g to %.4g MPa holds %d points of the loading branch (3 needed)", opt.ModulusFrom, opt.ModulusTo, max(0, hi-lo))
 			return 0, 0, false
