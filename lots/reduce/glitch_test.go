@@ -245,3 +245,23 @@ func TestRepeatedBlock(t *testing.T) {
 	relNear(t, "proof", r.Proof, ref.Proof, 1e-9)
 	relNear(t, "tensile", r.Tensile, ref.Tensile, 1e-9)
 }
+
+// TestMaxPoints: a record with more than MaxPoints data points is refused
+// at the line where the limit is passed (a bound on memory; common
+// practice). Left out with -short (it writes 10,000,001 points).
+func TestMaxPoints(t *testing.T) {
+	if testing.Short() {
+		t.Skip("10,000,001-point record: left out with -short")
+	}
+	path := filepath.Join(t.TempDir(), "big.rec")
+	if err := writeDense(path, MaxPoints+1); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	_, err = Parse(f, "big.rec")
+	inputError(t, err, fmt.Sprintf("big.rec:%d:1", 8+MaxPoints+1), "more than 10000000 data points")
+}

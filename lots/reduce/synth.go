@@ -20,6 +20,7 @@ type SynthSpec struct {
 	Uniform, Elongation, ReductionOfArea float64
 	Points                               int     // data rows (at least 50)
 	Noise                                float64 // SD of normal noise added to the stress [MPa]
+	StrainNoise                          float64 // SD of normal noise added to the strain (extensometer noise)
 	Toe                                  float64 // initial slack as a strain (0: none)
 	Seed                                 uint64
 }
@@ -36,7 +37,8 @@ type SynthSpec struct {
 // tangent to the shifted elastic line. A quarter of the points lie in the
 // elastic and early plastic range. The final gauge length L0 (1 + A) and
 // the final diameter d sqrt(1 - Z) are written in the metadata. The same
-// spec and seed give the same bytes.
+// spec and seed give the same bytes. Noise (stress) and StrainNoise are
+// added as independent normal deviates.
 func Synthesize(sp SynthSpec) ([]byte, error) {
 	for _, v := range []float64{sp.Diameter, sp.Gauge, sp.E, sp.Rp, sp.Rm, sp.Uniform, sp.Elongation} {
 		if !(v > 0) || math.IsInf(v, 0) {
@@ -56,7 +58,7 @@ func Synthesize(sp SynthSpec) ([]byte, error) {
 		return nil, errors.New("synthesize: reduction of area must be in [0, 1)")
 	case sp.Points < 50 || sp.Points > 10_000_000:
 		return nil, errors.New("synthesize: points must be between 50 and 10,000,000")
-	case !(sp.Noise >= 0) || math.IsInf(sp.Noise, 0) || !(sp.Toe >= 0) || sp.Toe*sp.E > 0.5*sp.Rp:
+	case !(sp.Noise >= 0) || math.IsInf(sp.Noise, 0) || !(sp.StrainNoise >= 0) || sp.StrainNoise > 0.001 || !(sp.Toe >= 0) || sp.Toe*sp.E > 0.5*sp.Rp:
 		return nil, errors.New("synthesize: noise and toe must be non-negative, the toe below half the proof strength")
 	}
 	m := math.Log(sp.Uniform/0.002) / math.Log(sp.Rm/sp.Rp)
@@ -117,6 +119,9 @@ func Synthesize(sp SynthSpec) ([]byte, error) {
 			em = math.Sqrt(4 * sp.Toe * sig / sp.E)
 		}
 		sig += sp.Noise * rng.NormFloat64()
+		if sp.StrainNoise > 0 {
+			em += sp.StrainNoise * rng.NormFloat64()
+		}
 		force = append(force, sig*area/1000)
 		ext = append(ext, em*sp.Gauge)
 	}
