@@ -112,8 +112,8 @@ func accLimits(c accCase, gradual bool) limits {
 // 0, 0.1 % and 0.2 % of Rm, and checks the largest errors against
 // accLimits; nothing may be missing. The properties checked are those of
 // ASTM E111 (modulus, least squares over the straight range), ISO 6892-1
-// clause 13 / ASTM E8/E8M 7.7 (offset proof strength), ISO 6892-1 clause
-// 18 (Rm from the maximum force), clause 16 (Ag, plastic extension at
+// clause 12 / ASTM E8/E8M 7.7 (offset proof strength), ISO 6892-1 clause
+// 19 (Rm from the maximum force), clause 16 (Ag, plastic extension at
 // maximum force; no target, shown in % of Ag) and clause 20 (A, here from
 // the record at fracture less the elastic part); clause numbers from
 // memory. With LOTPROOF_ACCURACY_TABLE=1 the table is printed. The cases
@@ -161,8 +161,8 @@ func TestAccuracyTable(t *testing.T) {
 // noise of 0.2 % of Rm and extensometer noise of 2e-6 strain (0.1 um on a
 // 50 mm gauge length; ISO 9513 class 0.5 allows 1.5 um of resolution, so
 // this is a quiet extensometer, from memory) keeps every property: E
-// within 1 % (ASTM E111), Rp0.2 within 0.5 % (ISO 6892-1 clause 13), Rm
-// within 0.5 % (clause 18). Points whose binned extension steps back are
+// within 1 % (ASTM E111), Rp0.2 within 0.5 % (ISO 6892-1 clause 12), Rm
+// within 0.5 % (clause 19). Points whose binned extension steps back are
 // left out as before; the bins keep them few. Left out with -short.
 func TestDenseWithExtensometerNoise(t *testing.T) {
 	if testing.Short() {

@@ -40,8 +40,8 @@ func relNear(t *testing.T, what string, got, want, tol float64) {
 // TestDemoRecordGlitches: the two single-point glitches of the issue in a
 // demo record (force of data line 160 set to 0; of line 400 set to 25 kN)
 // are found, named by line and left out: the 0.2 % proof strength (ISO
-// 6892-1 clause 13) and the tensile strength (clause 18) stay within
-// 0.5 % of the unglitched record's.
+// 6892-1 clause 12) and the tensile strength (clause 19) stay within
+// 0.5 % of the unglitched record's (clause numbers from memory).
 func TestDemoRecordGlitches(t *testing.T) {
 	b, err := os.ReadFile(filepath.Join("..", "demo", "data", "raw", "LF-2604-2-1.rec"))
 	if err != nil {
@@ -87,10 +87,10 @@ func plant(base *Record, k int, ff, dx float64, run int) (*Record, int) {
 // the maximum force: a force dropout to zero, a spike of +30 %, a
 // three-point dropout, an extension spike and a small force spike below
 // the glitch threshold. Each either moves E (ASTM E111), Rp0.2 (ISO
-// 6892-1 clause 13), Rm (clause 18) and A (clause 20) by less than 0.5 %,
+// 6892-1 clause 12), Rm (clause 19) and A (clause 20) by less than 0.5 %,
 // or is named by its line in a warning (the large ones must be). A lone
 // extension step (the extensometer slips) leaves the properties beyond
-// it empty with a located warning.
+// it empty with a located warning. ISO clause numbers from memory.
 func TestPlantedGlitches(t *testing.T) {
 	for _, mt := range []roMaterial{roMaterials[0], roMaterials[3], roMaterials[4]} {
 		for _, pts := range []int{2000, 20000} {

@@ -93,14 +93,24 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 
 // Reduce computes the properties of one record:
 //   - engineering stress F/S0 and strain (extension/Le);
-//   - the modulus E as the least-squares slope over the linear region
-//     (ASTM E111, see elasticRange and fitLine), with toe compensation
+//   - glitches (force spikes and dropouts, extension spikes, jumps and
+//     back, repeated data blocks) found on the raw points against the
+//     record's own noise and left out, each named by its line in a
+//     warning; a lone extension step (the extensometer slipped) leaves
+//     the properties measured beyond it empty (see findGlitches);
+//   - a record of more than binTarget points is averaged in bins of
+//     consecutive points, so that the noise of the working curve falls
+//     with the sampling rate (see workingPoints);
+//   - the modulus E as the least-squares slope over the straight stress
+//     window (ASTM E111, see autoElastic and fitLine), with toe compensation
 //     (the strain origin moved to the strain intercept of that line, as
 //     in ASTM E111 and the ASTM E8/E8M offset-method figure);
 //   - proof strength by the offset method (ISO 6892-1 clause 12; ASTM
 //     E8/E8M offset method), ReH and ReL (ISO 6892-1 clauses 10, 11);
-//   - tensile strength Rm = Fm/S0 (ISO 6892-1 clause 19) and the plastic
-//     extension at maximum force Ag = e(Fm) - Rm/E (clause 16);
+//   - tensile strength Rm = Fm/S0 (ISO 6892-1 clause 19) from a parabola
+//     fitted to the points near the maximum, never above the highest raw
+//     point, and the plastic extension at maximum force Ag = e(Fm) - Rm/E
+//     (clause 16; the middle of a flat top), see peak;
 //   - elongation after fracture A = (Lu - L0)/L0 from the final gauge
 //     length, or from the record as the strain at fracture less the
 //     elastic part stress/E (clause 20; ASTM E8/E8M elongation);
@@ -586,16 +596,7 @@ func lineAt(ln []int, j int) int {
 
 // elasticRange picks the index range [lo, hi) of the elastic fit on the
 // loading branch x[0..iEnd]. With a stress range in opt, the range is the
-// points within it. Otherwise windows between fractions a and b of the
-// branch's top stress (a from 0 to 0.7, b-a at least 0.2, steps of 0.025)
-// are fitted; among windows of at least 6 points with R^2 >= 0.99 and a
-// residual SD below 2 noise SD + 0.1 % of the top stress (straight to
-// within the noise), the steepest slope Emax is found, and the window with
-// the most points whose slope is within max(0.1 %, 2 standard errors) of
-// Emax is taken. Toe
-// slack and plastic flow both lower the slope, so the steepest wide
-// window is the linear region (ASTM E111 asks for the range where stress
-// is proportional to strain; this search is this package's own).
+// points within it; otherwise autoElastic finds the straight window.
 func (res *Result) elasticRange(x, s []float64, iEnd int, opt Options) (lo, hi int, ok bool) {
 	if opt.ModulusTo > opt.ModulusFrom {
 		lo, hi = -1, -1
