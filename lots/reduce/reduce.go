@@ -82,7 +82,8 @@ type Result struct {
 	Notes, Warnings                                               []string
 
 	// Curve is the engineering stress-strain curve used: toe-compensated
-	// strain and stress, loops left out, ending at fracture.
+	// strain and stress, loops and glitches left out, ending at fracture,
+	// thinned to at most about 4,000 points.
 	Strain, Stress []float64
 }
 
@@ -173,17 +174,17 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	// 2. Plausibility of signs and units: a metal tensile test gives a
 	// maximum stress of 1 to 5000 MPa and strains below 200 % (common
 	// practice), with tension positive.
-	if fMax <= 0 && fMin < 0 {
+	if fMin < 0 && -fMin > 10*math.Max(fMax, 0) {
 		return nil, lots.Inputf(rec.Where(firstLine), "record tension as positive force (reverse the sign of the force column)",
-			"record %q: every force is zero or negative (lowest %.4g %s): the force sign is reversed", rec.ID, fMin/forceScale(rec.ForceUnit), rec.ForceUnit)
+			"record %q: the forces are negative (lowest %.4g %s, highest %.4g %s): the force sign is reversed", rec.ID, fMin/forceScale(rec.ForceUnit), rec.ForceUnit, fMax/forceScale(rec.ForceUnit), rec.ForceUnit)
 	}
 	if sm := fMax / rec.Area; !(sm >= 1 && sm <= 5000) {
 		return nil, lots.Inputf(rec.Where(firstNonZero(rec.ForceUnitLine, rec.Line)), "check \"force unit\" (N, kN, lbf, kip), \"length unit\" and the cross-section dimensions",
 			"record %q: maximum stress %.4g MPa is implausible for a metal tensile test (expected 1 to 5000 MPa): the force unit %q or the length unit %q is probably wrong", rec.ID, sm, rec.ForceUnit, rec.LengthUnit)
 	}
-	if xMax <= 0 && xMin < 0 {
+	if xMin < 0 && -xMin > 10*math.Max(xMax, 0) {
 		return nil, lots.Inputf(rec.Where(firstLine), "record elongation as positive extension (reverse the sign of the extension or strain column) and check that the columns are in the order stated",
-			"record %q: every extension is zero or negative (lowest strain %.4g): the extension sign is reversed", rec.ID, xMin)
+			"record %q: the extensions are negative (lowest strain %.4g, highest %.4g): the extension sign is reversed", rec.ID, xMin, xMax)
 	}
 	if !(xMax > 0) || xMax > 2 {
 		return nil, lots.Inputf(rec.Where(firstNonZero(rec.LengthUnitLine, rec.Line)), "check \"length unit\", \"extensometer gauge length\", \"strain unit\", the sign of the extension and that the columns are in the order stated",
@@ -369,7 +370,29 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		res.Fit.FromPercentProof, res.Fit.ToPercentProof = 100*res.Fit.From/res.Proof, 100*res.Fit.To/res.Proof
 	}
 	res.afterSteps(x[lo:], ok)
+	res.Strain, res.Stress = thin(res.Strain, res.Stress, keptCurve)
 	return res, nil
+}
+
+// keptCurve is the most points of the curve a Result keeps (for plots;
+// every property is computed before the curve is thinned).
+const keptCurve = 4000
+
+// thin keeps every k-th point of the curve, the highest point and the
+// last, so that at most about max points remain.
+func thin(x, s []float64, most int) ([]float64, []float64) {
+	if len(x) <= most {
+		return x, s
+	}
+	k := (len(x) + most - 1) / most
+	im := argmax(s)
+	ox, os := make([]float64, 0, most+2), make([]float64, 0, most+2)
+	for i := range x {
+		if i%k == 0 || i == im || i == len(x)-1 {
+			ox, os = append(ox, x[i]), append(os, s[i])
+		}
+	}
+	return ox, os
 }
 
 // afterSteps leaves out every property measured on strains beyond a lone
