@@ -179,3 +179,65 @@ func TestRunReduceTable(t *testing.T) {
 		t.Errorf("table:\n%s", out.String())
 	}
 }
+
+// TestReduceGlitchAudit: a force dropout planted in a record is named by
+// its line on standard error and in the JSON audit, and left out; the
+// audit keeps the highest raw stress beside the tensile strength and
+// states how Rm and the elastic window were found.
+func TestReduceGlitchAudit(t *testing.T) {
+	b, err := reduce.Synthesize(reduceSpecs[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(b), "\n")
+	const bad = 300
+	f := strings.Fields(lines[bad-1])
+	lines[bad-1] = "0.00000 " + f[1]
+	dir := t.TempDir()
+	path := filepath.Join(dir, "g.rec")
+	if err := os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := run(t, "", "reduce", path)
+	if code != 0 || !strings.Contains(errs, "force dropout at line 300") {
+		t.Fatalf("exit %d, stderr %s", code, errs)
+	}
+	code, out, errs = run(t, "", "reduce", path, "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var got struct {
+		Specimens []struct {
+			Properties map[string]float64
+			Audit      struct {
+				Glitches []struct {
+					FirstLine int    `json:"first_line"`
+					Kind      string `json:"kind"`
+					LeftOut   bool   `json:"left_out"`
+				}
+				Tensile struct {
+					Method     string  `json:"method"`
+					HighestRaw float64 `json:"highest_raw"`
+				}
+				ElasticFit struct {
+					Method           string  `json:"method"`
+					ToPercentOfProof float64 `json:"to_percent_of_proof"`
+				} `json:"elastic_fit"`
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	a := got.Specimens[0].Audit
+	if len(a.Glitches) != 1 || a.Glitches[0].FirstLine != bad || a.Glitches[0].Kind != "dropout" || !a.Glitches[0].LeftOut {
+		t.Errorf("glitches %+v", a.Glitches)
+	}
+	rm := got.Specimens[0].Properties["tensile"]
+	if !(rm <= a.Tensile.HighestRaw) || math.Abs(rm-reduceSpecs[0].Rm) > 0.001*reduceSpecs[0].Rm || !strings.Contains(a.Tensile.Method, "parabola") {
+		t.Errorf("tensile %g highest raw %g method %q", rm, a.Tensile.HighestRaw, a.Tensile.Method)
+	}
+	if !strings.Contains(a.ElasticFit.Method, "straight window") || !(a.ElasticFit.ToPercentOfProof > 20) {
+		t.Errorf("elastic fit %+v", a.ElasticFit)
+	}
+}

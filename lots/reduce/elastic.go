@@ -184,12 +184,25 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 	for _, c := range cands {
 		emax = math.Max(emax, c.slope-2*c.se)
 	}
-	score := func(c window) float64 { r := c.se / c.slope; b := c.curve / 2; return r*r + b*b }
+	// The combined error: the relative standard error of the slope (at
+	// least 0.01 %, so that on clean records the widest of the exact
+	// windows wins) and half the relative slope change across the window
+	// (the bias of a least-squares slope on a curved stretch).
+	score := func(c window) float64 {
+		r := math.Max(c.se/c.slope, 1e-4)
+		b := c.curve / 2
+		return r*r + b*b
+	}
 	for i, c := range cands {
 		if c.slope < 0.7*emax {
 			continue
 		}
-		if best < 0 || score(c) < score(cands[best]) {
+		if best < 0 {
+			best = i
+			continue
+		}
+		sc, sb := score(c), score(cands[best])
+		if sc < sb*(1-1e-3) || (sc <= sb*(1+1e-3) && c.hi-c.lo > cands[best].hi-cands[best].lo) {
 			best = i
 		}
 	}
