@@ -34,6 +34,12 @@ const (
 	maxStepPair = 200
 )
 
+// maxGlitches is the most glitches (spikes, dropouts and steps of one
+// series, or all of them together) a record may hold; a record with more
+// is refused (it is not a clean tensile record, and every glitch is
+// listed in the audit).
+const maxGlitches = 1000
+
 // sideLine fits a least-squares straight line to v(k), k in [a, b), with
 // the index as abscissa and returns its value at index t.
 func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
@@ -69,9 +75,9 @@ func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
 // speed is a kink, not a jump. The rule is this package's own; the noise
 // SD is the robust estimate of noiseSD (median absolute second
 // difference).
-func findGlitches(n int, v func(int) float64, thr float64, series string) (spikes []Glitch, steps []Glitch) {
+func findGlitches(n int, v func(int) float64, thr float64, series string) (spikes []Glitch, steps []Glitch, over bool) {
 	h := glitchSide
-	for i := h; i+h < n; i++ {
+	for i := h; i+h < n && len(spikes)+len(steps) <= maxGlitches; i++ {
 		mL, bL, cL := sideLine(v, i-h, i)
 		predL := func(k int) float64 { return mL + bL*(float64(k)-cL) }
 		dL := v(i) - predL(i)
@@ -116,6 +122,9 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 			i += h - 1
 		}
 	}
+	if len(spikes)+len(steps) > maxGlitches {
+		return nil, nil, true
+	}
 	// Pair opposite steps of similar size into runs.
 	var lone []Glitch
 	for k := 0; k < len(steps); k++ {
@@ -131,7 +140,7 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 		}
 		lone = append(lone, s)
 	}
-	return spikes, lone
+	return spikes, lone, false
 }
 
 // binTarget is the number of working points a dense record is averaged
@@ -162,8 +171,12 @@ func rawNoise(n int, v func(int) float64) float64 {
 func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) float64, smRaw, xMax float64) {
 	thrS := math.Max(10*res.RawNoise, 0.005*smRaw)
 	thrX := math.Max(10*res.StrainNoise, 1e-5)
-	fs, _ := findGlitches(n, stressAt, thrS, "force")
-	xs, xsteps := findGlitches(n, strainAt, thrX, "extension")
+	fs, _, over1 := findGlitches(n, stressAt, thrS, "force")
+	xs, xsteps, over2 := findGlitches(n, strainAt, thrX, "extension")
+	if over1 || over2 || len(fs)+len(xs)+len(xsteps) > maxGlitches {
+		res.tooMany = true
+		return
+	}
 	for i := range fs {
 		fs[i].Noise = res.RawNoise
 	}
@@ -252,8 +265,9 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 // point i and returns it and the number of points that repeat from there
 // (0 when none does).
 func rawRepeat(rec *Record, i int) (p, length int) {
+	const lookBack = 1_000_000 // points searched back
 	f, x, _ := rec.Point(i)
-	for p = i - 1; p >= 0; p-- {
+	for p = i - 1; p >= 0 && p >= i-lookBack; p-- {
 		fp, xp, _ := rec.Point(p)
 		if fp != f || xp != x {
 			continue

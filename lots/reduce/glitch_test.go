@@ -265,3 +265,18 @@ func TestMaxPoints(t *testing.T) {
 	_, err = Parse(f, "big.rec")
 	inputError(t, err, fmt.Sprintf("big.rec:%d:1", 8+MaxPoints+1), "more than 10000000 data points")
 }
+
+// TestTooManyGlitches: a record whose force jumps every 20th point (1,490
+// spikes) is refused with a located error rather than reduced with a
+// thousand warnings (common practice: such a record is not a clean test).
+func TestTooManyGlitches(t *testing.T) {
+	sp := roMaterials[3].spec(30000, 0, 1)
+	base := synthRecord(t, sp)
+	f, x, ln := pointsOf(base)
+	for i := 100; i < len(f)-100; i += 20 {
+		f[i] *= 1.3
+	}
+	setPoints(base, f, x, ln)
+	_, err := Reduce(base, Options{})
+	inputError(t, err, "t.rec:1:1", "more than 1000 glitches")
+}

@@ -78,6 +78,7 @@ type Result struct {
 	FitMethod     string  // how the elastic window was chosen
 
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
+	tooMany                                                       bool     // more than maxGlitches glitches
 	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
 	Notes, Warnings                                               []string
 
@@ -198,6 +199,10 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	res.StrainNoise = rawNoise(n0, strainAt)
 	smRaw := fMax / rec.Area
 	res.glitches(rec, n0, stressAt, strainAt, smRaw, xMax)
+	if res.tooMany {
+		return nil, lots.Inputf(res.Source, "check the force and extension channels and the columns; a record whose points jump about this often cannot be reduced",
+			"record %q has more than %d glitches (points that depart from their neighbours' trend by more than ten times the noise or 0.5 %% of the maximum stress)", rec.ID, maxGlitches)
+	}
 	// The force at the start: a negative force zero is an offset of the
 	// load cell that shifts every stress (ISO 6892-1 asks for the force
 	// zeroed before the test piece is gripped; from memory).
