@@ -421,10 +421,10 @@ func hostileCases() []hostileCase {
 			sparse(t, filepath.Join(d, "big.json"), 100<<20)
 			return []string{"size", "--from", "big.json", "--property", "tensile", "--load", "10", "--load-unit", "kN", "--safety", "1.5"}
 		}, []string{"big.json", "limit of 16 MiB"}},
-		{"record file of 100 MB", func(t *testing.T, d string) []string {
-			sparse(t, filepath.Join(d, "big.rec"), 100<<20)
+		{"record file of 300 MB", func(t *testing.T, d string) []string {
+			sparse(t, filepath.Join(d, "big.rec"), 300<<20)
 			return []string{"reduce", "big.rec"}
-		}, []string{"big.rec", "limit of 32 MiB"}},
+		}, []string{"big.rec", "limit of 256 MiB"}},
 		// Text.
 		{"NUL in a CSV cell", func(t *testing.T, d string) []string {
 			put(t, d, "nul.csv", "specimen,lot,tensile [MPa]\nA-1,L\x00-1,1000\nA-2,L-1,1001\n")

@@ -48,7 +48,7 @@ var (
 	Spec = Kind{What: "specification", MaxBytes: 1 << 20,
 		Fix: "a specification is a short YAML file (see spec/SCHEMA.md); check that the right file was named"}
 	// Records is one raw tensile record file (a folder is read file by file).
-	Records = Kind{What: "raw record file", MaxBytes: 32 << 20, Stdin: true,
+	Records = Kind{What: "raw record file", MaxBytes: 256 << 20, Stdin: true, // the parser streams and holds at most 10,000,000 points (about 210 MiB peak)
 		Fix: "split the records over several .rec files in a folder"}
 	// AllowablesJSON is the JSON written by lotproof allowables --format json.
 	AllowablesJSON = Kind{What: "allowables result", MaxBytes: 16 << 20,

@@ -59,6 +59,10 @@ type metaKey struct {
 // as float32 (see points).
 const MaxPoints = 10_000_000
 
+// maxValue bounds a force [N] or strain held as float32 (whose largest
+// value is 3.4e38); nothing near it comes from a tensile test.
+const maxValue = 1e30
+
 // maxLine is the longest line read (bytes); a longer line is refused.
 const maxLine = 64 << 10
 
@@ -164,6 +168,11 @@ func Parse(r io.Reader, name string) ([]*Record, error) {
 						case "strain":
 							x = v * strainU
 						}
+					}
+					if !bad && (math.Abs(f) > maxValue || math.Abs(x) > maxValue) {
+						add(lineNo, 1, fmt.Sprintf("data row holds a force of %.4g N or a strain of %.4g, beyond any tensile test", f, x),
+							"check the columns, the force unit and the length unit")
+						bad = true
 					}
 					if !bad {
 						if cur.Len() >= MaxPoints {
