@@ -230,7 +230,7 @@ func PeriodOf(date, every string) (string, bool) {
 
 // Compute reads the lot history from st and computes the trend.
 func Compute(ctx context.Context, st *store.Store, o Options) (*Result, error) {
-	data, err := st.LotData(ctx, store.Filter{Property: o.Property})
+	data, err := st.LotSamples(ctx, store.Filter{Property: o.Property})
 	if err != nil {
 		return nil, err
 	}
