@@ -28,7 +28,7 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 	if err != nil {
 		return nil, err
 	}
-	units, names, err := s.propertyUnits(ctx)
+	units, err := s.propertyUnits(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -43,7 +43,7 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 		return nil
 	}
 	if s.backend == Postgres {
-		err = s.samplesPostgres(ctx, f, names, add)
+		err = s.samplesPostgres(ctx, f, add)
 	} else {
 		err = s.samplesSQLite(ctx, f, add)
 	}
@@ -99,26 +99,22 @@ func (s *Store) lotMeta(ctx context.Context) (map[string]*lotInfo, error) {
 	return meta, rows.Err()
 }
 
-// propertyUnits reads the unit of every property and the property names,
-// sorted bytewise.
-func (s *Store) propertyUnits(ctx context.Context) (map[string]string, []string, error) {
+// propertyUnits reads the unit of every property.
+func (s *Store) propertyUnits(ctx context.Context) (map[string]string, error) {
 	rows, err := s.db.QueryContext(ctx, `SELECT property, unit FROM properties`)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	defer rows.Close()
 	units := map[string]string{}
-	var names []string
 	for rows.Next() {
 		var p, u string
 		if err := rows.Scan(&p, &u); err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		units[p] = u
-		names = append(names, p)
 	}
-	sort.Strings(names)
-	return units, names, rows.Err()
+	return units, rows.Err()
 }
 
 // samplesSQLite groups by lot with the aggregate lotValuesFunc. The join
@@ -151,81 +147,60 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, add func(lot, prop 
 	return rows.Err()
 }
 
-// samplesPostgres groups by lot in PostgreSQL (hash aggregate, no sort of
-// the measurements): per lot one bytea of records (property ordinal in
-// names, specimen id, value as IEEE 754 binary64), in no particular order;
-// they are put in property and specimen order here.
-func (s *Store) samplesPostgres(ctx context.Context, f Filter, names []string, add func(lot, prop string, vals []float64) error) error {
-	query := `SELECT s.lot, string_agg(int2send(array_position($1::text[], m.property)::int2)
-			|| int4send(octet_length(textsend(s.specimen))) || textsend(s.specimen) || float8send(m.value), ''::bytea)
+// samplesPostgres groups by lot and property in PostgreSQL (a hash
+// aggregate: no sort of the measurements): per group the values as
+// concatenated IEEE 754 binary64 and the specimen ids joined by NUL (text
+// never holds NUL), in the same row order (every row feeds both
+// aggregates). They are put in specimen-id order here.
+func (s *Store) samplesPostgres(ctx context.Context, f Filter, add func(lot, prop string, vals []float64) error) error {
+	query := `SELECT s.lot, m.property, COUNT(*), string_agg(float8send(m.value), ''::bytea), string_agg(textsend(s.specimen), '\x00'::bytea)
 		FROM measurements m JOIN specimens s ON s.specimen = m.specimen`
-	args := []any{names}
+	var args []any
 	if f.Property != "" {
-		query += ` WHERE m.property = $2`
+		query += ` WHERE m.property = $1`
 		args = append(args, f.Property)
 	}
-	query += ` GROUP BY s.lot`
+	query += ` GROUP BY s.lot, m.property`
 	rows, err := s.db.QueryContext(ctx, query, args...)
 	if err != nil {
 		return err
 	}
 	defer rows.Close()
-	var recs []pgRec
+	var ids [][]byte
+	var idx []int
 	for rows.Next() {
-		var lot string
-		var blob []byte
-		if err := rows.Scan(&lot, &blob); err != nil {
+		var lot, prop string
+		var n int
+		var vb, ib []byte
+		if err := rows.Scan(&lot, &prop, &n, &vb, &ib); err != nil {
 			return err
 		}
-		recs, err = decodePGRecords(blob, len(names), recs[:0])
-		if err != nil {
-			return fmt.Errorf("store: lot %q: %w", lot, err)
+		ids = ids[:0]
+		for k := 0; k < n; k++ {
+			i := bytes.IndexByte(ib, 0)
+			if i < 0 {
+				i = len(ib)
+			}
+			ids = append(ids, ib[:i])
+			ib = ib[min(i+1, len(ib)):]
 		}
-		sort.Slice(recs, func(i, j int) bool {
-			if recs[i].prop != recs[j].prop {
-				return recs[i].prop < recs[j].prop
-			}
-			return bytes.Compare(recs[i].id, recs[j].id) < 0
-		})
-		for i := 0; i < len(recs); {
-			j := i
-			for j < len(recs) && recs[j].prop == recs[i].prop {
-				j++
-			}
-			vals := make([]float64, j-i)
-			for k := i; k < j; k++ {
-				vals[k-i] = recs[k].v
-			}
-			if err := add(lot, names[recs[i].prop], vals); err != nil {
-				return err
-			}
-			i = j
+		if len(vb) != 8*n || len(ids) != n || len(ib) != 0 {
+			return fmt.Errorf("store: lot %q, %s: packed values malformed", lot, prop)
+		}
+		idx = idx[:0]
+		for k := 0; k < n; k++ {
+			idx = append(idx, k)
+		}
+		sort.SliceStable(idx, func(i, j int) bool { return bytes.Compare(ids[idx[i]], ids[idx[j]]) < 0 })
+		vals := make([]float64, n)
+		for k, i := range idx {
+			vals[k] = math.Float64frombits(binary.BigEndian.Uint64(vb[8*i:]))
+		}
+		if err := add(lot, prop, vals); err != nil {
+			return err
 		}
 	}
 	return rows.Err()
-}
-
-type pgRec struct {
-	prop int
-	id   []byte // into the row's blob
-	v    float64
-}
-
-func decodePGRecords(b []byte, nprops int, recs []pgRec) ([]pgRec, error) {
-	for len(b) > 0 {
-		if len(b) < 6 {
-			return nil, fmt.Errorf("packed values cut short")
-		}
-		ord := int(int16(binary.BigEndian.Uint16(b)))
-		n := int(int32(binary.BigEndian.Uint32(b[2:])))
-		b = b[6:]
-		if ord < 1 || ord > nprops || n < 0 || len(b) < n+8 {
-			return nil, fmt.Errorf("packed values malformed")
-		}
-		recs = append(recs, pgRec{prop: ord - 1, id: b[:n:n], v: math.Float64frombits(binary.BigEndian.Uint64(b[n:]))})
-		b = b[n+8:]
-	}
-	return recs, nil
 }
 
 // lotValuesFunc is the SQLite aggregate lotValues(specimen, property,
