@@ -24,7 +24,8 @@ import (
 // specimen order here (SQLite: in the aggregate function; PostgreSQL: after
 // decoding), which spares the database a sort of every measurement.
 func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
-	meta, err := s.lotMeta(ctx)
+	// SQLite finds the test dates in the same pass as the values.
+	meta, err := s.lotMeta(ctx, s.backend == Postgres)
 	if err != nil {
 		return nil, err
 	}
@@ -45,7 +46,7 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 	if s.backend == Postgres {
 		err = s.samplesPostgres(ctx, f, add)
 	} else {
-		err = s.samplesSQLite(ctx, f, add)
+		err = s.samplesSQLite(ctx, f, meta, add)
 	}
 	if err != nil {
 		return nil, err
@@ -61,9 +62,9 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 
 type lotInfo struct{ supplier, material, tested string }
 
-// lotMeta reads supplier, material and earliest test date (empty dates
-// ignored, as in LotData) of every lot.
-func (s *Store) lotMeta(ctx context.Context) (map[string]*lotInfo, error) {
+// lotMeta reads supplier and material of every lot and, with tested, the
+// earliest test date of its specimens (empty dates ignored, as in LotData).
+func (s *Store) lotMeta(ctx context.Context, tested bool) (map[string]*lotInfo, error) {
 	meta := map[string]*lotInfo{}
 	rows, err := s.db.QueryContext(ctx, `SELECT lot, supplier, material FROM lots`)
 	if err != nil {
@@ -78,8 +79,8 @@ func (s *Store) lotMeta(ctx context.Context) (map[string]*lotInfo, error) {
 		}
 		meta[lot] = m
 	}
-	if err := rows.Close(); err != nil {
-		return nil, err
+	if err := rows.Close(); err != nil || !tested {
+		return meta, err
 	}
 	rows, err = s.db.QueryContext(ctx, `SELECT lot, MIN(tested) FROM specimens WHERE tested <> '' GROUP BY lot`)
 	if err != nil {
@@ -119,16 +120,19 @@ func (s *Store) propertyUnits(ctx context.Context) (map[string]string, error) {
 
 // samplesSQLite groups by lot with the aggregate lotValuesFunc. The join
 // runs from the lot index of specimens to the measurements' primary key,
-// so SQLite neither sorts nor builds a temporary table.
-func (s *Store) samplesSQLite(ctx context.Context, f Filter, add func(lot, prop string, vals []float64) error) error {
-	query := `SELECT s.lot, ` + lotValuesFunc + `(s.specimen, m.property, m.value)
-		FROM specimens s CROSS JOIN measurements m ON m.specimen = s.specimen`
+// so SQLite neither sorts nor builds a temporary table. The left join
+// keeps specimens without measurements, whose test dates count towards
+// their lot's as in lotMeta.
+func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
+	on := ``
 	var args []any
 	if f.Property != "" {
-		query += ` WHERE m.property = ?`
+		on = ` AND m.property = ?`
 		args = append(args, f.Property)
 	}
-	query += ` GROUP BY s.lot`
+	query := `SELECT s.lot, MIN(NULLIF(s.tested, '')), ` + lotValuesFunc + `(s.specimen, m.property, m.value)
+		FROM specimens s LEFT JOIN measurements m ON m.specimen = s.specimen` + on + `
+		GROUP BY s.lot`
 	rows, err := s.db.QueryContext(ctx, query, args...)
 	if err != nil {
 		return err
@@ -136,9 +140,13 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, add func(lot, prop 
 	defer rows.Close()
 	for rows.Next() {
 		var lot string
+		var tested sql.NullString
 		var blob []byte
-		if err := rows.Scan(&lot, &blob); err != nil {
+		if err := rows.Scan(&lot, &tested, &blob); err != nil {
 			return err
+		}
+		if m, ok := meta[lot]; ok {
+			m.tested = tested.String
 		}
 		if err := decodeLotValues(blob, func(prop string, vals []float64) error { return add(lot, prop, vals) }); err != nil {
 			return fmt.Errorf("store: lot %q: %w", lot, err)
@@ -238,6 +246,9 @@ type lotValues struct {
 }
 
 func (a *lotValues) Step(_ *sqlite.FunctionContext, args []driver.Value) error {
+	if args[1] == nil {
+		return nil // a specimen without measurements (left join)
+	}
 	id, ok1 := args[0].(string)
 	prop, ok2 := args[1].(string)
 	v, ok3 := args[2].(float64)
