@@ -24,8 +24,7 @@ import (
 // specimen order here (SQLite: in the aggregate function; PostgreSQL: after
 // decoding), which spares the database a sort of every measurement.
 func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
-	// SQLite finds the test dates in the same pass as the values.
-	meta, err := s.lotMeta(ctx, s.backend == Postgres)
+	meta, err := s.lotMeta(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -39,17 +38,20 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 		if !ok {
 			return fmt.Errorf("store: lot %q has measurements but no lot record", lot)
 		}
-		out = append(out, LotValues{Lot: lot, Supplier: m.supplier, Material: m.material, Tested: m.tested,
+		out = append(out, LotValues{Lot: lot, Supplier: m.supplier, Material: m.material,
 			Property: prop, Unit: units[prop], Values: vals})
 		return nil
 	}
 	if s.backend == Postgres {
-		err = s.samplesPostgres(ctx, f, add)
+		err = s.samplesPostgres(ctx, f, meta, add)
 	} else {
 		err = s.samplesSQLite(ctx, f, meta, add)
 	}
 	if err != nil {
 		return nil, err
+	}
+	for i := range out {
+		out[i].Tested = meta[out[i].Lot].tested
 	}
 	sort.SliceStable(out, func(i, j int) bool {
 		if out[i].Lot != out[j].Lot {
@@ -60,11 +62,15 @@ func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
 	return out, nil
 }
 
+// pgWorkMem is the work_mem of the PostgreSQL LotSamples query.
+const pgWorkMem = "64MB"
+
 type lotInfo struct{ supplier, material, tested string }
 
-// lotMeta reads supplier and material of every lot and, with tested, the
-// earliest test date of its specimens (empty dates ignored, as in LotData).
-func (s *Store) lotMeta(ctx context.Context, tested bool) (map[string]*lotInfo, error) {
+// lotMeta reads supplier and material of every lot. The earliest test date
+// of a lot's specimens (empty dates ignored, as in LotData) comes with the
+// values.
+func (s *Store) lotMeta(ctx context.Context) (map[string]*lotInfo, error) {
 	meta := map[string]*lotInfo{}
 	rows, err := s.db.QueryContext(ctx, `SELECT lot, supplier, material FROM lots`)
 	if err != nil {
@@ -79,25 +85,14 @@ func (s *Store) lotMeta(ctx context.Context, tested bool) (map[string]*lotInfo, 
 		}
 		meta[lot] = m
 	}
-	if err := rows.Close(); err != nil || !tested {
-		return meta, err
+	return meta, rows.Close()
+}
+
+// earlier records the earliest non-empty test date of a lot.
+func (m *lotInfo) earlier(t string) {
+	if t != "" && (m.tested == "" || t < m.tested) {
+		m.tested = t
 	}
-	rows, err = s.db.QueryContext(ctx, `SELECT lot, MIN(tested) FROM specimens WHERE tested <> '' GROUP BY lot`)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	for rows.Next() {
-		var lot string
-		var t sql.NullString
-		if err := rows.Scan(&lot, &t); err != nil {
-			return nil, err
-		}
-		if m, ok := meta[lot]; ok {
-			m.tested = t.String
-		}
-	}
-	return meta, rows.Err()
 }
 
 // propertyUnits reads the unit of every property.
@@ -146,7 +141,7 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lo
 			return err
 		}
 		if m, ok := meta[lot]; ok {
-			m.tested = tested.String
+			m.earlier(tested.String)
 		}
 		if err := decodeLotValues(blob, func(prop string, vals []float64) error { return add(lot, prop, vals) }); err != nil {
 			return fmt.Errorf("store: lot %q: %w", lot, err)
@@ -160,16 +155,33 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lo
 // concatenated IEEE 754 binary64 and the specimen ids joined by NUL (text
 // never holds NUL), in the same row order (every row feeds both
 // aggregates). They are put in specimen-id order here.
-func (s *Store) samplesPostgres(ctx context.Context, f Filter, add func(lot, prop string, vals []float64) error) error {
-	query := `SELECT s.lot, m.property, COUNT(*), string_agg(float8send(m.value), ''::bytea), string_agg(textsend(s.specimen), '\x00'::bytea)
-		FROM measurements m JOIN specimens s ON s.specimen = m.specimen`
+func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
+	on := ``
 	var args []any
 	if f.Property != "" {
-		query += ` WHERE m.property = $1`
+		on = ` AND m.property = $1`
 		args = append(args, f.Property)
 	}
-	query += ` GROUP BY s.lot, m.property`
-	rows, err := s.db.QueryContext(ctx, query, args...)
+	// Specimens without measurements form a group of property NULL: it
+	// only gives its test dates to the lot's.
+	query := `SELECT s.lot, m.property, MIN(NULLIF(s.tested, '')), COUNT(*),
+			string_agg(float8send(m.value), ''::bytea), string_agg(textsend(s.specimen), '\x00'::bytea)
+		FROM specimens s LEFT JOIN measurements m ON m.specimen = s.specimen` + on + `
+		GROUP BY s.lot, m.property`
+	// One read-only transaction whose work_mem lets the hash join and the
+	// hash aggregate of a large history stay in memory (hash tables may
+	// use hash_mem_multiplier times this); with the server's default of
+	// 4 MB they spill to temporary files. Any role may set work_mem, and
+	// SET LOCAL ends with the transaction.
+	tx, err := s.db.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
+	if err != nil {
+		return err
+	}
+	defer tx.Rollback()
+	if _, err := tx.ExecContext(ctx, `SET LOCAL work_mem = '`+pgWorkMem+`'`); err != nil {
+		return err
+	}
+	rows, err := tx.QueryContext(ctx, query, args...)
 	if err != nil {
 		return err
 	}
@@ -177,11 +189,18 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, add func(lot, pro
 	var ids [][]byte
 	var idx []int
 	for rows.Next() {
-		var lot, prop string
+		var lot string
+		var prop, tested sql.NullString
 		var n int
 		var vb, ib []byte
-		if err := rows.Scan(&lot, &prop, &n, &vb, &ib); err != nil {
+		if err := rows.Scan(&lot, &prop, &tested, &n, &vb, &ib); err != nil {
 			return err
+		}
+		if m, ok := meta[lot]; ok {
+			m.earlier(tested.String)
+		}
+		if !prop.Valid {
+			continue
 		}
 		ids = ids[:0]
 		for k := 0; k < n; k++ {
@@ -193,7 +212,7 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, add func(lot, pro
 			ib = ib[min(i+1, len(ib)):]
 		}
 		if len(vb) != 8*n || len(ids) != n || len(ib) != 0 {
-			return fmt.Errorf("store: lot %q, %s: packed values malformed", lot, prop)
+			return fmt.Errorf("store: lot %q, %s: packed values malformed", lot, prop.String)
 		}
 		idx = idx[:0]
 		for k := 0; k < n; k++ {
@@ -204,7 +223,7 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, add func(lot, pro
 		for k, i := range idx {
 			vals[k] = math.Float64frombits(binary.BigEndian.Uint64(vb[8*i:]))
 		}
-		if err := add(lot, prop, vals); err != nil {
+		if err := add(lot, prop.String, vals); err != nil {
 			return err
 		}
 	}
