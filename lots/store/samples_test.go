@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"testing"
 )
 
@@ -101,6 +102,13 @@ func sameSamples(t *testing.T, what string, want, got []LotValues) {
 		if g.Lot != w.Lot || g.Supplier != w.Supplier || g.Material != w.Material || g.Tested != w.Tested ||
 			g.Property != w.Property || g.Unit != w.Unit || g.IDs != nil {
 			t.Fatalf("%s: group %d is %+v, want %+v", what, i, g, w)
+		}
+		// Every other field too (a field added to LotValues must be
+		// filled by LotSamples as well).
+		wc, gc := w, g
+		wc.IDs, wc.Values, gc.Values = nil, nil, nil
+		if !reflect.DeepEqual(wc, gc) {
+			t.Fatalf("%s: group %d is %+v, want %+v", what, i, gc, wc)
 		}
 		if len(g.Values) != len(w.Values) {
 			t.Fatalf("%s: %s %s has %d values, want %d", what, w.Lot, w.Property, len(g.Values), len(w.Values))
