@@ -18,9 +18,10 @@ import (
 // by lot and property. The values are bit for bit those LotData returns,
 // in the same order, so that any statistic computed from them is the same.
 //
-// The database groups the measurements by lot and sends one row per lot
-// with its values packed in binary, instead of one row per measurement
-// with every text column repeated. Within a lot the values are put in
+// The database groups the measurements and sends one row per lot
+// (SQLite) or per lot and property (PostgreSQL) with the values packed in
+// binary, instead of one row per measurement with every text column
+// repeated. Within a lot the values are put in
 // specimen order here (SQLite: in the aggregate function; PostgreSQL: after
 // decoding), which spares the database a sort of every measurement.
 func (s *Store) LotSamples(ctx context.Context, f Filter) ([]LotValues, error) {
