@@ -3,13 +3,11 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
 
-	"lotproof/lots"
 	"lotproof/lots/acceptance"
 	"lotproof/lots/render"
 	"lotproof/spec"
@@ -123,16 +121,16 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 			case p.NeededN > 0:
 				need = strconv.Itoa(p.NeededN)
 			}
-			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.Num(float64(p.Limit), 4), strconv.Itoa(p.N),
-				render.Num(float64(p.Mean), 4), render.Num(float64(p.SD), 3), render.Num(float64(p.Extreme), 4),
-				render.Num(float64(p.MeanBound), 4), render.Fixed(float64(p.K), 3), render.Num(float64(p.ToleranceBound), 4),
-				fraction(p.FractionEstimate), fraction(p.FractionUpper), p.Verdict, need)
+			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.N(float64(p.Limit), 4), strconv.Itoa(p.N),
+				render.N(float64(p.Mean), 4), render.N(float64(p.SD), 3), render.N(float64(p.Extreme), 4),
+				render.N(float64(p.MeanBound), 4), render.F(float64(p.K), 3), render.N(float64(p.ToleranceBound), 4),
+				render.N(float64(p.FractionEstimate), 3), render.N(float64(p.FractionUpper), 3), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
 			if ot == nil {
 				ot = render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
 			}
-			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.Num(float64(f.Value), 4), render.Fixed(f.MNR, 3), render.Fixed(f.Critical, 3), strconv.Itoa(f.Line))
+			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.N(float64(f.Value), 4), render.F(f.MNR, 3), render.F(f.Critical, 3), strconv.Itoa(f.Line))
 		}
 	}
 	c := r.Counts
@@ -151,13 +149,4 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 		last.Note("Caution: %s", c)
 	}
 	return out
-}
-
-// fraction shows a fraction with 3 significant digits ("-" when missing).
-func fraction(f lots.Float) string {
-	v := float64(f)
-	if math.IsNaN(v) {
-		return "-"
-	}
-	return strconv.FormatFloat(v, 'g', 3, 64)
 }

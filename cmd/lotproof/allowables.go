@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -143,13 +144,13 @@ func runAllowables(o allowablesOptions, st streams) error {
 func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 	t := render.NewTable("", "property", "condition", "unit", ">n", ">lots", "method", ">A-basis", ">B-basis", ">pooled A", ">pooled B", ">mean", ">sd", ">min")
 	for _, r := range rep.Results {
-		pa, pb := "-", "-"
+		pa, pb := render.N(math.NaN(), 4), render.N(math.NaN(), 4)
 		if r.Pooled != nil {
-			pa, pb = render.Num(float64(r.Pooled.ABasis), 4), render.Num(float64(r.Pooled.BBasis), 4)
+			pa, pb = render.N(float64(r.Pooled.ABasis), 4), render.N(float64(r.Pooled.BBasis), 4)
 		}
 		t.Add(r.Property, r.Condition, r.Unit, strconv.Itoa(r.N), strconv.Itoa(r.Lots), r.Method,
-			render.Num(float64(r.ABasis), 4), render.Num(float64(r.BBasis), 4), pa, pb,
-			render.Num(float64(r.Mean), 4), render.Num(float64(r.SD), 3), render.Num(float64(r.Min), 4))
+			render.N(float64(r.ABasis), 4), render.N(float64(r.BBasis), 4), pa, pb,
+			render.N(float64(r.Mean), 4), render.N(float64(r.SD), 3), render.N(float64(r.Min), 4))
 	}
 	if !text {
 		return []*render.Table{t}
@@ -171,10 +172,10 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 			if s.Step == "input" {
 				continue
 			}
-			d.Add(s.Step, s.Decision, render.Num(float64(s.Statistic), 4), render.Num(float64(s.Threshold), 4))
+			d.Add(s.Step, s.Decision, render.N(float64(s.Statistic), 4), render.N(float64(s.Threshold), 4))
 		}
-		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", render.Num(float64(r.ABasis), 5), render.Num(float64(r.A.Factor), 4),
-			render.Num(float64(r.BBasis), 5), render.Num(float64(r.B.Factor), 4), r.Method)
+		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", render.N(float64(r.ABasis), 5), render.N(float64(r.A.Factor), 4),
+			render.N(float64(r.BBasis), 5), render.N(float64(r.B.Factor), 4), r.Method)
 		for _, wn := range r.Warnings {
 			d.Note("Warning: %s", wn)
 		}

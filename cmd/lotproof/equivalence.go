@@ -260,8 +260,8 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		}
 		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k_min", ">k_mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {
-			ft.Add(strconv.Itoa(f.N), strconv.FormatFloat(o.Alpha, 'g', 4, 64), render.Fixed(f.KMin, 4), render.Fixed(f.KMean, 4), render.Fixed(f.AlphaEach, 5),
-				render.Num(float64(f.MinLimit), 5), render.Num(float64(f.MeanLimit), 5), res.Unit)
+			ft.Add(strconv.Itoa(f.N), render.N(o.Alpha, 4), render.F(f.KMin, 4), render.F(f.KMean, 4), render.F(f.AlphaEach, 5),
+				render.N(float64(f.MinLimit), 5), render.N(float64(f.MeanLimit), 5), res.Unit)
 		}
 		ft.Note("Baseline mean %.5g %s, SD %.4g %s.", res.BaselineMean, res.Unit, res.BaselineSD, res.Unit)
 		ft.Note("Method: %s.", res.Method)
@@ -269,8 +269,8 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		if d != nil {
 			lt := render.NewTable("Lots ("+res.Property+")", string(by), "supplier", ">n", ">mean", ">min", ">mean limit", ">min limit", "verdict", "reasons")
 			for _, l := range res.Lots {
-				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), render.Num(float64(l.Mean), 5), render.Num(float64(l.Min), 5),
-					render.Num(float64(l.MeanLimit), 5), render.Num(float64(l.MinLimit), 5), l.Verdict, joinReasons(l.Reasons))
+				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), render.N(float64(l.Mean), 5), render.N(float64(l.Min), 5),
+					render.N(float64(l.MeanLimit), 5), render.N(float64(l.MinLimit), 5), l.Verdict, joinReasons(l.Reasons))
 			}
 			lt.Note("Source %s, SHA-256 %s.", res.Source, res.Digest)
 			tables = append(tables, lt)

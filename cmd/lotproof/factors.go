@@ -289,18 +289,17 @@ func runFactors(o factorsOptions, st streams) error {
 		}
 		t := render.NewTable("", cols...)
 		for _, r := range res.Rows {
-			rank, se := "", ""
+			var rank, se, factor any = "", "", render.N(r.Factor, 8)
 			if r.Rank > 0 {
 				rank = strconv.Itoa(r.Rank)
 			}
 			if r.MCStdErr != nil {
-				se = render.Num(*r.MCStdErr, 3)
+				se = render.N(*r.MCStdErr, 3)
 			}
-			factor := render.Num(r.Factor, 8)
 			if r.Method == "order-statistic" {
 				factor = strconv.Itoa(int(math.Round(r.Factor)))
 			}
-			cells := []string{strconv.Itoa(r.N), render.Num(r.Content, 4), render.Num(r.Confidence, 4), r.Method, factor, rank, se}
+			cells := []any{strconv.Itoa(r.N), render.N(r.Content, 4), render.N(r.Confidence, 4), r.Method, factor, rank, se}
 			if withFails {
 				fails := ""
 				if r.FailedFits != nil {

@@ -166,15 +166,15 @@ func runPlan(o planOptions, st streams) error {
 			return render.WriteJSON(w, res)
 		}
 		pt := render.NewTable("Sampling plans", "plan", ">n", ">k or c", ">risk at AQL", ">Pa at RQL")
-		pt.Add("variables, sigma unknown (exact)", strconv.Itoa(v.N), render.Fixed(v.K, 4), render.Fixed(v.ProducerRisk, 4), render.Fixed(v.ConsumerRisk, 4))
-		pt.Add("variables, Wallis approximation", render.Fixed(wn, 1), render.Fixed(wk, 4), "", "")
-		pt.Add("attributes (binomial)", strconv.Itoa(a.N), strconv.Itoa(a.C), render.Fixed(a.ProducerRisk, 4), render.Fixed(a.ConsumerRisk, 4))
+		pt.Add("variables, sigma unknown (exact)", strconv.Itoa(v.N), render.F(v.K, 4), render.F(v.ProducerRisk, 4), render.F(v.ConsumerRisk, 4))
+		pt.Add("variables, Wallis approximation", render.F(wn, 1), render.F(wk, 4), "", "")
+		pt.Add("attributes (binomial)", strconv.Itoa(a.N), strconv.Itoa(a.C), render.F(a.ProducerRisk, 4), render.F(a.ConsumerRisk, 4))
 		pt.Note("AQL %g with producer's risk %g; RQL %g with consumer's risk %g.", p1, o.Producer, p2, o.Cons)
 		pt.Note("Variables plan: test n items, accept when (mean - L)/SD >= k (or (U - mean)/SD >= k); any k in [%.4f, %.4f] meets both risks at n = %d.", v.KMin, v.KMax, v.N)
 		pt.Note("Attributes plan: test n items, accept when at most c are nonconforming.")
 		oc := render.NewTable("Operating characteristic (probability of acceptance)", ">fraction nonconforming", ">variables", ">attributes")
 		for _, q := range res.OC {
-			oc.Add(strconv.FormatFloat(q.P, 'g', 4, 64), render.Fixed(float64(q.PaVariables), 4), render.Fixed(float64(q.PaAttributes), 4))
+			oc.Add(render.N(q.P, 4), render.F(float64(q.PaVariables), 4), render.F(float64(q.PaAttributes), 4))
 		}
 		oc.Note("Method: %s.", res.Method)
 		oc.Note("Caution: %s", planCaution)

@@ -267,9 +267,9 @@ func reduceTable(rs []*reduce.Result, sys units.System) *render.Table {
 	cols = append(cols, ">warnings")
 	t := render.NewTable("", cols...)
 	for _, r := range rs {
-		row := []string{r.ID, r.Lot}
+		row := []any{r.ID, r.Lot}
 		for _, c := range reduce.Columns {
-			row = append(row, render.Num(c.Unit.Display(sys).FromInternal(c.Value(r)), 4))
+			row = append(row, render.N(c.Unit.Display(sys).FromInternal(c.Value(r)), 4))
 		}
 		row = append(row, strconv.Itoa(len(r.Warnings)))
 		t.Add(row...)

@@ -59,7 +59,7 @@ func TestReduceCSVFeedsSummary(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("summary exit %d: %s", code, errs)
 	}
-	if !strings.Contains(sum, "TL-1,Test Mill,proof,MPa,2,0,280.0") {
+	if !strings.Contains(sum, "TL-1,Test Mill,proof,MPa,2,0,280,") {
 		t.Errorf("summary:\n%s", sum)
 	}
 	// US units.

@@ -158,23 +158,23 @@ func runSize(o sizeOptions, st streams) error {
 			return render.WriteJSON(w, res)
 		}
 		t := render.NewTable("", "quantity", ">value", "unit")
-		t.Add("design value ("+res.Source+")", render.Num(res.DesignValue, 5), res.StressUnit)
-		t.Add("factor of safety", render.Num(res.Safety, 4), "")
-		t.Add("allowable stress", render.Num(res.Allowable, 5), res.StressUnit)
-		t.Add("axial load", render.Num(res.Load, 5), res.LoadUnit)
+		t.Add("design value ("+res.Source+")", render.N(res.DesignValue, 5), res.StressUnit)
+		t.Add("factor of safety", render.N(res.Safety, 4), "")
+		t.Add("allowable stress", render.N(res.Allowable, 5), res.StressUnit)
+		t.Add("axial load", render.N(res.Load, 5), res.LoadUnit)
 		s := res.Section
 		switch s.Shape {
 		case sizing.Round:
-			t.Add("round bar diameter", render.Num(s.Diameter, 5), lengthUnit)
+			t.Add("round bar diameter", render.N(s.Diameter, 5), lengthUnit)
 		case sizing.Rectangle:
-			t.Add("rectangle width", render.Num(s.Width, 5), lengthUnit)
-			t.Add("rectangle thickness", render.Num(s.Thickness, 5), lengthUnit)
+			t.Add("rectangle width", render.N(s.Width, 5), lengthUnit)
+			t.Add("rectangle thickness", render.N(s.Thickness, 5), lengthUnit)
 		case sizing.Tube:
-			t.Add("tube outer diameter", render.Num(s.Diameter, 5), lengthUnit)
-			t.Add("tube inner diameter", render.Num(s.Inner, 5), lengthUnit)
-			t.Add("tube wall", render.Num(s.Wall, 5), lengthUnit)
+			t.Add("tube outer diameter", render.N(s.Diameter, 5), lengthUnit)
+			t.Add("tube inner diameter", render.N(s.Inner, 5), lengthUnit)
+			t.Add("tube wall", render.N(s.Wall, 5), lengthUnit)
 		}
-		t.Add("area", render.Num(s.Area, 5), lengthUnit+"^2")
+		t.Add("area", render.N(s.Area, 5), lengthUnit+"^2")
 		if o.Out.Format == render.Text {
 			t.Title = "Axial member: " + res.Mode
 			for _, c := range res.Cautions {

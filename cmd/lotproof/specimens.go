@@ -310,7 +310,7 @@ func runSpecimens(o specimensOptions, st streams) error {
 			if r.N == res.SmallestN {
 				mark = "<- target reached"
 			}
-			t.Add(strconv.Itoa(r.N), render.Fixed(float64(r.K), 4), render.Fixed(float64(r.Prob), 4), mark)
+			t.Add(strconv.Itoa(r.N), render.F(float64(r.K), 4), render.F(float64(r.Prob), 4), mark)
 		}
 		word := "minimum"
 		if side == "max" {

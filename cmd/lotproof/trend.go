@@ -92,7 +92,7 @@ func runTrend(o trendOptions, st streams) error {
 }
 
 func trendTables(r *trend.Result) []*render.Table {
-	num := func(v lots.Float, sig int) string { return render.Num(float64(v), sig) }
+	num := func(v lots.Float, sig int) render.Number { return render.N(float64(v), sig) }
 	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
 		">lots", ">specimens", ">mean", ">sd", ">minimum", ">ppk", ">ppk_lower", ">ppm_below", ">judged", ">rejected")
 	for _, p := range r.Periods {

@@ -35,11 +35,17 @@ func ParseFormat(s string) (Format, error) {
 }
 
 // Table is a titled grid of text cells with optional notes below it.
+// Rows hold the text shown to people (numbers rounded for reading); Exact
+// holds, for the cells added as numbers, the full-precision form written to
+// CSV (shortest text that reads back to the same float64; empty when the
+// value is missing).
 type Table struct {
+	Name    string // the table's name for --table (e.g. "lots"); "" for a command's only table
 	Title   string
 	Columns []string
 	Right   []bool // right-align column i (numbers)
 	Rows    [][]string
+	Exact   [][]string // per row: nil, or the machine form of every cell
 	Notes   []string
 }
 
@@ -55,11 +61,70 @@ func NewTable(title string, columns ...string) *Table {
 	return t
 }
 
-// Add appends a row; missing cells are left empty.
-func (t *Table) Add(cells ...string) {
+// Number is a table cell holding a number: people read it rounded, CSV
+// carries it in full.
+type Number struct {
+	V     float64
+	Digit int  // significant digits (Sig) or decimals (Fixed) shown to people
+	Fixed bool // Digit counts decimals, not significant digits
+}
+
+// N is a number shown with sig significant digits and written in full to CSV.
+func N(v float64, sig int) Number { return Number{V: v, Digit: sig} }
+
+// F is a number shown with dec decimals and written in full to CSV.
+func F(v float64, dec int) Number { return Number{V: v, Digit: dec, Fixed: true} }
+
+// Text is the number as people read it ("-" when missing).
+func (n Number) Text() string {
+	if n.Fixed {
+		return Fixed(n.V, n.Digit)
+	}
+	return Num(n.V, n.Digit)
+}
+
+// Exact is the shortest text that reads back (strconv.ParseFloat) to exactly
+// the same float64; a missing value (NaN) is the empty string.
+func Exact(v float64) string {
+	if math.IsNaN(v) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// Add appends a row; missing cells are left empty. A cell is a string, an
+// int or a Number.
+func (t *Table) Add(cells ...any) {
 	row := make([]string, len(t.Columns))
-	copy(row, cells)
+	var exact []string
+	for i, c := range cells {
+		if i >= len(row) {
+			panic(fmt.Sprintf("render: %d cells for %d columns", len(cells), len(row)))
+		}
+		switch v := c.(type) {
+		case string:
+			row[i] = v
+		case int:
+			row[i] = strconv.Itoa(v)
+		case Number:
+			row[i] = v.Text()
+			if exact == nil {
+				exact = make([]string, len(row))
+			}
+			exact[i] = Exact(v.V)
+		default:
+			panic(fmt.Sprintf("render: cell of type %T", c))
+		}
+	}
+	if exact != nil {
+		for i, c := range cells {
+			if _, isNum := c.(Number); !isNum {
+				exact[i] = row[i]
+			}
+		}
+	}
 	t.Rows = append(t.Rows, row)
+	t.Exact = append(t.Exact, exact)
 }
 
 // Note appends a line shown under the table.
@@ -118,11 +183,16 @@ func (t *Table) WriteText(w io.Writer) error {
 	return err
 }
 
-// WriteCSV writes the header and rows as CSV (title and notes are left out).
+// WriteCSV writes the header and rows as CSV (title and notes are left
+// out). Numbers are written in full (see Exact), a missing number as an
+// empty field.
 func (t *Table) WriteCSV(w io.Writer) error {
 	cw := csv.NewWriter(w)
 	cw.Write(t.Columns)
-	for _, r := range t.Rows {
+	for i, r := range t.Rows {
+		if i < len(t.Exact) && t.Exact[i] != nil {
+			r = t.Exact[i]
+		}
 		cw.Write(r)
 	}
 	cw.Flush()
@@ -170,3 +240,6 @@ func Fixed(v float64, dec int) string {
 	}
 	return strconv.FormatFloat(v, 'f', dec, 64)
 }
+
+// String is Text, so a Number can be printed in a sentence.
+func (n Number) String() string { return n.Text() }

@@ -2,7 +2,9 @@ package units
 
 import (
 	"fmt"
+	"math"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -138,8 +140,25 @@ func Known() []Unit {
 // ToInternal converts a value in unit u to the internal unit of its quantity.
 func (u Unit) ToInternal(v float64) float64 { return v * u.Factor }
 
-// FromInternal converts a value in the internal unit to unit u.
-func (u Unit) FromInternal(v float64) float64 { return v / u.Factor }
+// FromInternal converts a value in the internal unit to unit u. Division
+// leaves representation noise in the last digit (0.149 from 14.9 % gives
+// 14.899999999999999), so when the value rounded to 15 or 16 significant
+// digits converts back (ToInternal) to exactly v, that rounded value is
+// returned: the result is then the cleanest decimal that still reads back
+// to the same internal value, and nothing is lost.
+func (u Unit) FromInternal(v float64) float64 {
+	x := v / u.Factor
+	if u.Factor == 1 || math.IsNaN(x) || math.IsInf(x, 0) || x == 0 {
+		return x
+	}
+	for _, p := range [...]int{15, 16} {
+		r, err := strconv.ParseFloat(strconv.FormatFloat(x, 'g', p, 64), 64)
+		if err == nil && r*u.Factor == v {
+			return r
+		}
+	}
+	return x
+}
 
 // Display returns the unit in which a property entered as u is shown in
 // system s. Stresses entered in GPa or Msi (moduli) are shown in GPa or

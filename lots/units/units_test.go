@@ -2,6 +2,7 @@ package units
 
 import (
 	"math"
+	"strconv"
 	"testing"
 )
 
@@ -58,5 +59,36 @@ func TestDisplayAndCompatibility(t *testing.T) {
 	}
 	if CheckValue(Stress, -1) == "" || CheckValue(Strain, 0) != "" || CheckValue(Strain, -0.1) == "" {
 		t.Error("value checks wrong")
+	}
+}
+
+// TestFromInternalRoundTrip: a value entered in a unit and shown again in
+// that unit is the value entered (14.9 %, not 14.899999999999999), and what
+// FromInternal returns always converts back to exactly the internal value
+// when the plain quotient does.
+func TestFromInternalRoundTrip(t *testing.T) {
+	for _, sym := range []string{"%", "ksi", "psi", "GPa", "Msi", "kPa", "ft-lbf", "in-lbf/in^3"} {
+		u, err := Parse(sym)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, text := range []string{"14.9", "0.1", "0.3", "1002.5", "70.11", "12.34", "165.7", "0.007", "99.99", "1e-05", "123456.789"} {
+			in, _ := strconv.ParseFloat(text, 64)
+			back := u.FromInternal(u.ToInternal(in))
+			if got := strconv.FormatFloat(back, 'g', -1, 64); got != text && strconv.FormatFloat(in, 'g', -1, 64) == text {
+				t.Errorf("%s %s: shown as %s", text, sym, got)
+			}
+		}
+		// Computed values (not entered): the result reads back exactly.
+		for i := 1; i < 2000; i++ {
+			v := float64(i)*0.7310585786300049 + 1/float64(i)
+			x := v / u.Factor
+			if x*u.Factor != v {
+				continue
+			}
+			if got := u.FromInternal(v); u.ToInternal(got) != v {
+				t.Fatalf("%s: %v shown as %v, which converts back to %v", sym, v, got, u.ToInternal(got))
+			}
+		}
 	}
 }
