@@ -17,6 +17,7 @@ type acceptOptions struct {
 	Data  string
 	Specs []string
 	Input inputOptions
+	Table tableOption
 	Out   output
 }
 
@@ -58,6 +59,7 @@ nonconforming, undecided or not judged, 2 on bad input.`,
 	}
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
 	addInputFlags(cmd, &o.Input)
+	addTableFlag(cmd, &o.Table, "lots", "limits", "outliers")
 	return cmd
 }
 
@@ -72,6 +74,9 @@ func readSpecs(names []string) ([]*spec.Spec, error) {
 }
 
 func runAccept(o acceptOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	specs, err := readSpecs(o.Specs)
 	if err != nil {
 		return err
@@ -89,7 +94,11 @@ func runAccept(o acceptOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, shown)
 		}
-		return writeTables(w, o.Out.Format, acceptTables(shown)...)
+		tables, err := o.Table.pick(o.Out.Format, acceptTables(shown))
+		if err != nil {
+			return err
+		}
+		return writeTables(w, o.Out.Format, tables...)
 	})
 	if err != nil {
 		return err
@@ -102,13 +111,15 @@ func runAccept(o acceptOptions, st streams) error {
 	return nil
 }
 
-// acceptTables lays the result out as a lot table, a limit table and (when
-// any value was flagged) an outlier table.
+// acceptTables lays the result out as a lot table, a limit table and an
+// outlier table (hidden in text when no value was flagged).
 func acceptTables(r *acceptance.Result) []*render.Table {
 	by := r.GroupBy
 	lt := render.NewTable("Lot verdicts", by, "supplier", "material", "spec", ">n", "verdict", "reasons")
 	pt := render.NewTable("Limits", by, "property", "side", "unit", ">limit", ">n", ">mean", ">sd", ">extreme", ">mean bound", ">k", ">tol. bound", ">frac. est", ">frac. upper", "verdict", ">needed n")
-	var ot *render.Table
+	lt.Name, pt.Name = "lots", "limits"
+	ot := render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
+	ot.Name = "outliers"
 	for _, l := range r.Lots {
 		lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, strings.Join(l.Reasons, "; "))
 		for _, p := range l.Properties {
@@ -127,9 +138,6 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 				render.N(float64(p.FractionEstimate), 3), render.N(float64(p.FractionUpper), 3), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
-			if ot == nil {
-				ot = render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
-			}
 			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.N(float64(f.Value), 4), render.F(f.MNR, 3), render.F(f.Critical, 3), strconv.Itoa(f.Line))
 		}
 	}
@@ -140,13 +148,13 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 	}
 	lt.Note("Source %s, SHA-256 %s.", r.Source, r.Digest)
 	pt.Note("Method: %s.", r.Method)
-	out := []*render.Table{lt, pt}
-	if ot != nil {
-		out = append(out, ot)
+	ot.Hidden = len(ot.Rows) == 0
+	last := ot
+	if ot.Hidden {
+		last = pt
 	}
-	last := out[len(out)-1]
 	for _, c := range r.Cautions {
 		last.Note("Caution: %s", c)
 	}
-	return out
+	return []*render.Table{lt, pt, ot}
 }

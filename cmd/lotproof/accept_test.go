@@ -154,7 +154,7 @@ func TestAcceptBadInput(t *testing.T) {
 // runAccept is usable without cobra.
 func TestRunAcceptDirect(t *testing.T) {
 	var out, errb bytes.Buffer
-	err := runAccept(acceptOptions{Data: testLots, Specs: []string{testSpec}, Out: output{Format: render.CSV, System: units.US}}, streams{Out: &out, Err: &errb})
+	err := runAccept(acceptOptions{Data: testLots, Specs: []string{testSpec}, Table: tableOption{Name: "limits"}, Out: output{Format: render.CSV, System: units.US}}, streams{Out: &out, Err: &errb})
 	if exitStatus(err) != exitVerdict {
 		t.Fatalf("%v", err)
 	}

@@ -29,6 +29,7 @@ type allowablesOptions struct {
 	Seed       uint64
 	Sims       int
 	Date       string
+	Table      tableOption
 	Out        output
 }
 
@@ -74,6 +75,7 @@ specification, regulations, local codes and licensed engineering judgement.`,
 	f.Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bound (weibull-exact)")
 	f.IntVar(&o.Sims, "simulations", o.Sims, "Monte Carlo samples of the weibull-exact bound")
 	f.StringVar(&o.Date, "date", "", "date written into the audit trail (default: today, or SOURCE_DATE_EPOCH)")
+	addTableFlag(cmd, &o.Table, "values", "decisions")
 	return cmd
 }
 
@@ -95,6 +97,9 @@ func runDate(flag string) (string, error) {
 }
 
 func runAllowables(o allowablesOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	opt := allowables.DefaultOptions()
 	opt.Properties = o.Properties
 	opt.A.Content, opt.B.Content = o.AContent, o.BContent
@@ -135,13 +140,25 @@ func runAllowables(o allowablesOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, rep)
 		}
-		return writeTables(w, o.Out.Format, allowablesTables(rep, o.Out.Format == render.Text)...)
+		tables, err := o.Table.pick(o.Out.Format, allowablesTables(rep, o.Out.Format == render.Text))
+		if err != nil {
+			return err
+		}
+		return writeTables(w, o.Out.Format, tables...)
 	})
 }
 
-// allowablesTables lays the essentials out: the design values, then (in
-// text) the decisions, outliers and warnings of each result.
+// allowablesTables lays the essentials out: the design values, all
+// decisions in one table (for CSV and --table decisions), then (in text)
+// the decisions and warnings of each result.
 func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
+	all := render.NewTable("Decisions", "property", "condition", "step", "decision", ">statistic", ">threshold", "reason")
+	all.Name, all.Hidden = "decisions", true
+	for _, r := range rep.Results {
+		for _, s := range r.Steps {
+			all.Add(r.Property, r.Condition, s.Step, s.Decision, render.N(float64(s.Statistic), 4), render.N(float64(s.Threshold), 4), s.Reason)
+		}
+	}
 	t := render.NewTable("", "property", "condition", "unit", ">n", ">lots", "method", ">A-basis", ">B-basis", ">pooled A", ">pooled B", ">mean", ">sd", ">min")
 	for _, r := range rep.Results {
 		pa, pb := render.N(math.NaN(), 4), render.N(math.NaN(), 4)
@@ -152,8 +169,9 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 			render.N(float64(r.ABasis), 4), render.N(float64(r.BBasis), 4), pa, pb,
 			render.N(float64(r.Mean), 4), render.N(float64(r.SD), 3), render.N(float64(r.Min), 4))
 	}
+	t.Name = "values"
 	if !text {
-		return []*render.Table{t}
+		return []*render.Table{t, all}
 	}
 	t.Title = fmt.Sprintf("Design values from %s (sha256 %s)\nlotproof %s, seed %d, %s; A-basis %g%%/%g%%, B-basis %g%%/%g%% content/confidence",
 		rep.Input, short(rep.SHA256), rep.Version, rep.Seed, rep.Date,
@@ -161,7 +179,7 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 	for _, c := range rep.Cautions {
 		t.Note("Note: %s", c)
 	}
-	out := []*render.Table{t}
+	out := []*render.Table{t, all}
 	for _, r := range rep.Results {
 		name := r.Property
 		if r.Condition != "" {

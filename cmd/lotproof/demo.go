@@ -30,6 +30,7 @@ type demoOptions struct {
 	DB     string // database file the history is recorded in; "" for a temporary one
 	Date   string
 	Seed   uint64
+	Table  tableOption
 	Out    output
 }
 
@@ -71,6 +72,7 @@ Every company, material, specification and number in it is invented.`,
 	cmd.Flags().StringVar(&o.DB, "db", "", "record the demo history in this SQLite file (kept, e.g. for lotproof serve --db FILE)")
 	cmd.Flags().StringVar(&o.Date, "date", "", "date written into the results (default: today, or SOURCE_DATE_EPOCH)")
 	cmd.Flags().Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bounds")
+	addTableFlag(cmd, &o.Table, "reduced", "lots", "allowables", "signals")
 	return cmd
 }
 
@@ -102,6 +104,9 @@ type demoReduced struct {
 const demoScenario = "Orrin Hollow Pumpworks (invented): steel bar and aluminium plate from five invented mills, 2025-Q1 to 2026-Q4"
 
 func runDemo(o demoOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	date, err := runDate(o.Date)
 	if err != nil {
 		return err
@@ -203,7 +208,11 @@ func runDemo(o demoOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		return writeTables(w, o.Out.Format, demoTables(res, o.Out.Format == render.Text)...)
+		tables, err := o.Table.pick(o.Out.Format, demoTables(res, o.Out.Format == render.Text))
+		if err != nil {
+			return err
+		}
+		return writeTables(w, o.Out.Format, tables...)
 	})
 }
 
@@ -387,6 +396,9 @@ func demoTables(res demoResult, text bool) []*render.Table {
 		}
 	}
 	out = append(out, sig)
+	for i, n := range []string{"reduced", "lots", "allowables", "signals"} {
+		out[i].Name = n
+	}
 	return out
 }
 

@@ -25,6 +25,7 @@ type equivalenceOptions struct {
 	N        int
 	Alpha    float64
 	Input    inputOptions
+	Table    tableOption
 	Out      output
 }
 
@@ -73,6 +74,7 @@ Exit status 1 when any lot fails.`,
 	cmd.Flags().StringVar(&o.Property, "property", "", "property column to test (with DATA)")
 	cmd.Flags().StringVar(&o.Material, "material", "", "test only lots of this material (with DATA)")
 	addInputFlags(cmd, &o.Input)
+	addTableFlag(cmd, &o.Table, "limits", "lots")
 	return cmd
 }
 
@@ -116,6 +118,9 @@ type equivalenceResult struct {
 const equivalenceCaution = "An equivalence result is statistical support for the engineer's decision; it does not replace the governing specification, the qualification program's rules, regulations or licensed engineering judgement. The baseline mean and SD are treated as known, and values are assumed normal."
 
 func runEquivalence(o equivalenceOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	if !(o.Alpha > 0 && o.Alpha < 0.5) {
 		return usageError{fmt.Errorf("--alpha %g: expected a probability between 0 and 0.5", o.Alpha)}
 	}
@@ -265,6 +270,7 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		}
 		ft.Note("Baseline mean %.5g %s, SD %.4g %s.", res.BaselineMean, res.Unit, res.BaselineSD, res.Unit)
 		ft.Note("Method: %s.", res.Method)
+		ft.Name = "limits"
 		tables := []*render.Table{ft}
 		if d != nil {
 			lt := render.NewTable("Lots ("+res.Property+")", string(by), "supplier", ">n", ">mean", ">min", ">mean limit", ">min limit", "verdict", "reasons")
@@ -273,9 +279,16 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 					render.N(float64(l.MeanLimit), 5), render.N(float64(l.MinLimit), 5), l.Verdict, joinReasons(l.Reasons))
 			}
 			lt.Note("Source %s, SHA-256 %s.", res.Source, res.Digest)
+			lt.Name = "lots"
 			tables = append(tables, lt)
+		} else if o.Table.Name == "lots" {
+			return usageError{fmt.Errorf("--table lots needs a results file and --property")}
 		}
 		tables[len(tables)-1].Note("Caution: %s", equivalenceCaution)
+		tables, err := o.Table.pick(o.Out.Format, tables)
+		if err != nil {
+			return err
+		}
 		return writeTables(w, o.Out.Format, tables...)
 	})
 	if err != nil {

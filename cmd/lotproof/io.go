@@ -2,9 +2,13 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
+
+	"github.com/spf13/cobra"
 
 	"lotproof/lots"
 	"lotproof/lots/progress"
@@ -50,9 +54,82 @@ func emit(w io.Writer, render func(io.Writer) error) error {
 	return err
 }
 
-// writeTables writes tables as text (separated by blank lines) or CSV (the
-// first table only, or all with a blank line between them).
+// tableOption is the --table flag of a command that lays its result out
+// as several tables: a CSV stream is one table with one header, so CSV
+// writes the table named here (default: the first); text writes them all
+// unless one is named.
+type tableOption struct {
+	Name  string
+	names []string
+}
+
+// addTableFlag adds --table NAME; names are the command's table names, the
+// first being the default for CSV.
+func addTableFlag(cmd *cobra.Command, o *tableOption, names ...string) {
+	o.names = names
+	cmd.Flags().StringVar(&o.Name, "table", "", "which table to write: "+orList(names)+
+		" (CSV writes one table per stream, by default the "+names[0]+"; a table shows them all unless one is named; JSON has everything)")
+}
+
+// check refuses a table name the command does not have (a usage error).
+func (o tableOption) check() error {
+	if o.Name == "" || o.names == nil {
+		return nil
+	}
+	for _, n := range o.names {
+		if n == o.Name {
+			return nil
+		}
+	}
+	return usageError{fmt.Errorf("unknown table %q: expected %s", o.Name, orList(o.names))}
+}
+
+func orList(s []string) string {
+	if len(s) < 2 {
+		return strings.Join(s, "")
+	}
+	return strings.Join(s[:len(s)-1], ", ") + " or " + s[len(s)-1]
+}
+
+// pick returns the tables to write: the named one; else, for CSV, the
+// first; else (text) every table not hidden.
+func (o tableOption) pick(f render.Format, tables []*render.Table) ([]*render.Table, error) {
+	if err := o.check(); err != nil {
+		return nil, err
+	}
+	if o.Name != "" {
+		for _, t := range tables {
+			if t.Name == o.Name {
+				t.Hidden = false
+				return []*render.Table{t}, nil
+			}
+		}
+		var names []string
+		for _, t := range tables {
+			if t.Name != "" {
+				names = append(names, t.Name)
+			}
+		}
+		return nil, usageError{fmt.Errorf("unknown table %q: expected %s", o.Name, orList(names))}
+	}
+	if f == render.CSV {
+		return tables[:1], nil
+	}
+	var out []*render.Table
+	for _, t := range tables {
+		if !t.Hidden {
+			out = append(out, t)
+		}
+	}
+	return out, nil
+}
+
+// writeTables writes tables as text (separated by blank lines) or as CSV:
+// one table per stream, so only the first (choose with tableOption.pick).
 func writeTables(w io.Writer, f render.Format, tables ...*render.Table) error {
+	if f == render.CSV && len(tables) > 1 {
+		tables = tables[:1]
+	}
 	for i, t := range tables {
 		if i > 0 {
 			if _, err := io.WriteString(w, "\n"); err != nil {

@@ -18,6 +18,7 @@ import (
 type planOptions struct {
 	AQL, RQL       string
 	Producer, Cons float64
+	Table          tableOption
 	Out            output
 }
 
@@ -45,6 +46,7 @@ Fractions may be written as 0.01 or 1%.`,
 	cmd.Flags().StringVar(&o.RQL, "rql", "", "rejectable quality level: fraction nonconforming accepted with probability at most the consumer risk (required)")
 	cmd.Flags().Float64Var(&o.Producer, "producer-risk", 0.05, "producer's risk alpha: probability of rejecting a lot at the AQL")
 	cmd.Flags().Float64Var(&o.Cons, "consumer-risk", 0.10, "consumer's risk beta: probability of accepting a lot at the RQL")
+	addTableFlag(cmd, &o.Table, "plans", "oc")
 	return cmd
 }
 
@@ -112,6 +114,9 @@ type planOCPoint struct {
 const planCaution = "A sampling plan and its OC curve support, and never replace, the governing specification, contract terms and the inspector's judgement; the variables plan assumes a normal distribution of the property in the lot."
 
 func runPlan(o planOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	p1, err := parseFraction("aql", o.AQL)
 	if err != nil {
 		return err
@@ -178,7 +183,12 @@ func runPlan(o planOptions, st streams) error {
 		}
 		oc.Note("Method: %s.", res.Method)
 		oc.Note("Caution: %s", planCaution)
-		return writeTables(w, o.Out.Format, pt, oc)
+		pt.Name, oc.Name = "plans", "oc"
+		tables, err := o.Table.pick(o.Out.Format, []*render.Table{pt, oc})
+		if err != nil {
+			return err
+		}
+		return writeTables(w, o.Out.Format, tables...)
 	})
 }
 

@@ -158,3 +158,54 @@ func TestAllowablesCSVRoundTrip(t *testing.T) {
 		t.Log("every result pooled: the empty-field case is not exercised by this campaign")
 	}
 }
+
+// TestAcceptCSVRoundTrip: the limit table in CSV reads back to exactly the
+// JSON values, in both unit systems.
+func TestAcceptCSVRoundTrip(t *testing.T) {
+	for _, sys := range []string{"si", "us"} {
+		_, c, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "csv", "--table", "limits", "--units", sys)
+		_, j, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "json", "--units", sys)
+		var res struct {
+			Lots []struct {
+				Lot        string
+				Properties []struct {
+					Property, Side              string
+					Limit, Mean, SD, Extreme, K *float64
+					MeanBound                   *float64 `json:"mean_bound"`
+					ToleranceBound              *float64 `json:"tolerance_bound"`
+					FractionEstimate            *float64 `json:"fraction_estimate"`
+					FractionUpper               *float64 `json:"fraction_upper"`
+				}
+			}
+		}
+		if err := json.Unmarshal([]byte(j), &res); err != nil {
+			t.Fatal(err)
+		}
+		rows := csvRows(t, c)
+		i := 0
+		for _, l := range res.Lots {
+			for _, p := range l.Properties {
+				if i >= len(rows) {
+					t.Fatalf("%d CSV rows only", len(rows))
+				}
+				r := rows[i]
+				i++
+				if r["lot"] != l.Lot || r["property"] != p.Property || r["side"] != p.Side {
+					t.Fatalf("row %v is not %s %s %s", r, l.Lot, p.Property, p.Side)
+				}
+				for col, v := range map[string]*float64{"limit": p.Limit, "mean": p.Mean, "sd": p.SD, "extreme": p.Extreme, "k": p.K,
+					"mean bound": p.MeanBound, "tol. bound": p.ToleranceBound, "frac. est": p.FractionEstimate, "frac. upper": p.FractionUpper} {
+					if _, ok := r[col]; !ok {
+						t.Fatalf("no column %q", col)
+					}
+					if !same(r[col], v) {
+						t.Errorf("%s %s %s %s %s: CSV %q, JSON %v", sys, l.Lot, p.Property, p.Side, col, r[col], v)
+					}
+				}
+			}
+		}
+		if i != len(rows) || i == 0 {
+			t.Errorf("%d CSV rows, %d limits in JSON", len(rows), i)
+		}
+	}
+}

@@ -304,11 +304,11 @@ func runSpecimens(o specimensOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		t := render.NewTable("Probability of a conforming verdict", ">n", ">k", ">probability", "")
+		t := render.NewTable("Probability of a conforming verdict", ">n", ">k", ">probability", "target")
 		for _, r := range res.Rows {
 			mark := ""
 			if r.N == res.SmallestN {
-				mark = "<- target reached"
+				mark = "reached"
 			}
 			t.Add(strconv.Itoa(r.N), render.F(float64(r.K), 4), render.F(float64(r.Prob), 4), mark)
 		}

@@ -19,6 +19,7 @@ type trendOptions struct {
 	DB    string
 	Specs []string
 	Trend trend.Options
+	Table tableOption
 	Out   output
 }
 
@@ -57,12 +58,16 @@ regulations, local codes and licensed engineering judgement.`,
 	f.StringVar(&o.Trend.Until, "until", "", "last test date included (YYYY-MM-DD)")
 	f.StringVar(&o.Trend.Baseline, "baseline", "", "periods the control limits come from, FROM..TO (e.g. 2025-Q1..2025-Q4; default: the first four periods)")
 	f.Float64Var(&o.Trend.Confidence, "confidence", trend.DefaultConfidence, "confidence of the Ppk lower bound")
+	addTableFlag(cmd, &o.Table, "periods", "signals", "limits")
 	return cmd
 }
 
 func init() { register(newTrendCmd) }
 
 func runTrend(o trendOptions, st streams) error {
+	if err := o.Table.check(); err != nil {
+		return err
+	}
 	specs, err := spec.ReadFiles(o.Specs)
 	if err != nil {
 		return err
@@ -87,7 +92,11 @@ func runTrend(o trendOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		return writeTables(w, o.Out.Format, trendTables(res)...)
+		tables, err := o.Table.pick(o.Out.Format, trendTables(res))
+		if err != nil {
+			return err
+		}
+		return writeTables(w, o.Out.Format, tables...)
 	})
 }
 
@@ -130,5 +139,6 @@ func trendTables(r *trend.Result) []*render.Table {
 	for _, w := range r.Warnings {
 		lt.Note("warning: %s", w)
 	}
+	pt.Name, st.Name, lt.Name = "periods", "signals", "limits"
 	return []*render.Table{pt, st, lt}
 }

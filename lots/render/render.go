@@ -41,6 +41,7 @@ func ParseFormat(s string) (Format, error) {
 // value is missing).
 type Table struct {
 	Name    string // the table's name for --table (e.g. "lots"); "" for a command's only table
+	Hidden  bool   // left out of the text output unless asked for by name (e.g. an empty list)
 	Title   string
 	Columns []string
 	Right   []bool // right-align column i (numbers)
