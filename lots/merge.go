@@ -5,6 +5,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"lotproof/lots/units"
@@ -41,7 +42,7 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 	np := len(out.Properties)
 	byID := map[string]int{}
 	var probs problems
-	for _, d := range ds {
+	for di, d := range ds {
 		cols := make([]int, len(d.Properties))
 		for j, p := range d.Properties {
 			cols[j] = propIndex[strings.ToLower(p.Name)]
@@ -73,7 +74,8 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 				case *f.dst == "":
 					*f.dst = *f.src
 				default:
-					probs.add(where, fmt.Sprintf("specimen %q: %s %q differs from %q given earlier", s.ID, f.name, *f.src, *f.dst), "make the files agree")
+					probs.add(where, fmt.Sprintf("specimen %q: %s %q differs from %q given at %s", s.ID, f.name, *f.src, *f.dst,
+						givenAt(ds[:di+1], s.ID, func(e *Specimen, _ []int) bool { return identity(e, f.name) == *f.dst })), "make the files agree")
 				}
 			}
 			for j, v := range s.Values {
@@ -83,7 +85,17 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 				case math.IsNaN(t.Values[k]):
 					t.Values[k] = v
 				case t.Values[k] != v:
-					probs.add(where, fmt.Sprintf("specimen %q: %s given twice with different values", s.ID, out.Properties[k].Name), "keep one value")
+					u := out.Properties[k].Unit
+					probs.add(where, fmt.Sprintf("specimen %q: %s is %s %s here but %s %s at %s", s.ID, out.Properties[k].Name,
+						strconv.FormatFloat(u.FromInternal(v), 'g', -1, 64), u.Symbol, strconv.FormatFloat(u.FromInternal(t.Values[k]), 'g', -1, 64), u.Symbol,
+						givenAt(ds[:di+1], s.ID, func(e *Specimen, c []int) bool {
+							for jj, ci := range c {
+								if ci == k && e.Values[jj] == t.Values[k] {
+									return true
+								}
+							}
+							return false
+						}, propIndex)), "keep one value")
 				}
 			}
 		}

@@ -28,8 +28,16 @@ func TestMerge(t *testing.T) {
 		t.Errorf("missing hardness not counted: %v", m.Missing)
 	}
 	c, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [MPa]\nS1,L9,300\n"), "c.csv")
-	if _, err := Merge("m", a, c); err == nil || !strings.Contains(err.Error(), `c.csv:2: specimen "S1": lot "L9" differs from "L1" given earlier`) {
+	if _, err := Merge("m", a, c); err == nil || !strings.Contains(err.Error(), `c.csv:2: specimen "S1": lot "L9" differs from "L1" given at a.csv:2`) {
 		t.Errorf("lot conflict: %v", err)
+	}
+	// A value given twice differently: located in both files.
+	v, _ := ReadCSV(strings.NewReader("specimen,lot,hardness [HBW],tensile [MPa]\nS3,L2,96,\nS2,L1,95,312.5\n"), "v.csv")
+	if _, err := Merge("m", a, b, v); err == nil || !strings.Contains(err.Error(), `v.csv:3: specimen "S2": tensile is 312.5 MPa here but 310 MPa at a.csv:3; keep one value`) {
+		t.Errorf("value conflict: %v", err)
+	}
+	if _, err := Merge("m", b, v); err != nil {
+		t.Errorf("same values in two files: %v", err)
 	}
 	e, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [%]\nS9,L9,3\n"), "e.csv")
 	if _, err := Merge("m", a, e); err == nil || !strings.Contains(err.Error(), "is in % here but in MPa") {

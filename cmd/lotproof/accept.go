@@ -24,7 +24,7 @@ type acceptOptions struct {
 func newAcceptCmd(g *globalOptions, st streams) *cobra.Command {
 	var o acceptOptions
 	cmd := &cobra.Command{
-		Use:   "accept DATA --spec SPEC.yaml [--spec SPEC2.yaml ...]",
+		Use:   "accept DATA [DATA...] --spec SPEC.yaml [--spec SPEC2.yaml ...]",
 		Short: "Judge every lot against its purchase specification with stated confidence",
 		Long: `accept judges every lot (or heat) of a specimen results file against the
 specification whose material matches the lot's material (see spec/SCHEMA.md).
@@ -51,13 +51,14 @@ The lot's verdict is its worst limit's. Each lot is screened with the
 maximum normed residual test (alpha 0.05); flagged values are reported and
 kept. Exit status: 0 when every lot conforms, 1 when any lot is
 nonconforming, undecided or not judged, 2 on bad input.`,
-		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			o.Data = args[0]
+			o.Data, o.Input.More = args[0], args[1:]
 			return runAccept(o, st)
 		}),
 	}
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
+	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
 	addTableFlag(cmd, &o.Table, "lots", "limits", "outliers")
 	return cmd

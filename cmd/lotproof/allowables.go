@@ -39,7 +39,7 @@ func newAllowablesCmd(g *globalOptions, st streams) *cobra.Command {
 	def := allowables.DefaultOptions()
 	o := allowablesOptions{AContent: def.A.Content, BContent: def.B.Content, Confidence: def.A.Confidence, Seed: def.Seed, Sims: def.Sims}
 	cmd := &cobra.Command{
-		Use:   "allowables DATA",
+		Use:   "allowables DATA [DATA...]",
 		Short: "Derive A- and B-basis design values from a multi-lot test campaign",
 		Long: `allowables derives one-sided lower tolerance bounds (A-basis: 99% content,
 B-basis: 90% content, both at 95% confidence) per property and test condition
@@ -57,12 +57,13 @@ specification, regulations, local codes and licensed engineering judgement.`,
 		Example: `  lotproof allowables campaign.csv
   lotproof allowables campaign.xlsx --property tensile --group-by heat --format json
   lotproof allowables campaign.csv --exclude QB-Q03-RT-2 --reason "void at fracture origin"`,
-		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			o.Data = args[0]
+			o.Data, o.Input.More = args[0], args[1:]
 			return runAllowables(o, st)
 		}),
 	}
+	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
 	f := cmd.Flags()
 	f.StringArrayVar(&o.Properties, "property", nil, "analyse this property (repeat for several; default: all)")

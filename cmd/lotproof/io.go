@@ -18,15 +18,54 @@ import (
 // inputOptions are the flags of every command that reads a specimen
 // results file.
 type inputOptions struct {
-	Sheet   string // xlsx sheet
-	GroupBy string // lot or heat
+	Sheet   string   // xlsx sheet
+	GroupBy string   // lot or heat
+	More    []string // further results files, combined with the first by specimen id
 }
 
-// readData reads a results file ("-" is standard input).
+// dataArgs accepts one or more results files.
+func dataArgs(cmd *cobra.Command, args []string) error {
+	if len(args) == 0 {
+		return usageError{fmt.Errorf("%s expects one or more results files (CSV, .xlsx or - for standard input); several files are combined by specimen id; see lotproof %s --help", cmd.Name(), cmd.Name())}
+	}
+	stdin := 0
+	for _, a := range args {
+		if a == "-" {
+			stdin++
+		}
+	}
+	if stdin > 1 {
+		return usageError{fmt.Errorf("standard input (-) can be read only once")}
+	}
+	return nil
+}
+
+// readData reads a results file ("-" is standard input) and, when
+// in.More names further files, combines them all by specimen id
+// (lots.Merge): a specimen's properties may come from different files, and
+// a value given differently in two files is an error located in both.
 func readData(name string, in inputOptions, st streams) (*lots.Dataset, lots.GroupBy, error) {
 	by, err := lots.ParseGroupBy(in.GroupBy)
 	if err != nil {
 		return nil, "", usageError{err}
+	}
+	if len(in.More) > 0 {
+		names := append([]string{name}, in.More...)
+		ds := make([]*lots.Dataset, len(names))
+		for i, n := range names {
+			if ds[i], _, err = readData(n, inputOptions{Sheet: in.Sheet, GroupBy: in.GroupBy}, st); err != nil {
+				return nil, "", err
+			}
+		}
+		var src []string
+		for _, d := range ds {
+			src = append(src, d.Source)
+		}
+		d, err := lots.Merge(strings.Join(src, " + "), ds...)
+		if err != nil {
+			return nil, "", err
+		}
+		return d, by, nil
 	}
 	ro := lots.ReadOptions{Sheet: in.Sheet, Stdin: st.In}
 	// A bar over the bytes of a large file, on a terminal only.
@@ -148,3 +187,12 @@ func writeTables(w io.Writer, f render.Format, tables ...*render.Table) error {
 	}
 	return nil
 }
+
+// multiFileHelp ends the help of the commands that take several results
+// files.
+const multiFileHelp = `
+
+Several results files (for example hardness results and the tensile results
+reduced from raw records, of the same specimens) are combined by specimen
+id: each specimen gets the properties every file gives it; a value given
+differently in two files is an error that names both places.`

@@ -32,7 +32,7 @@ type recordOptions struct {
 func newRecordCmd(g *globalOptions, st streams) *cobra.Command {
 	var o recordOptions
 	cmd := &cobra.Command{
-		Use:   "record DATA [--spec S.yaml ...] [--db URL]",
+		Use:   "record DATA [DATA...] [--spec S.yaml ...] [--db URL]",
 		Short: "Add a results file (and, with a specification, its lot verdicts) to the lot history",
 		Long: `record stores the specimens and lots of a results file in the lot history
 database, with the time, the user and the file's SHA-256. With --spec it also
@@ -48,12 +48,13 @@ Recording the same file again changes nothing (matched on its SHA-256); a
 specimen already stored with identical values is skipped. A specimen id
 already stored with different values is a conflict: both values are shown,
 nothing is written and the exit status is 2.`,
-		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			o.Data = args[0]
+			o.Data, o.Input.More = args[0], args[1:]
 			return runRecord(o, st)
 		}),
 	}
+	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "purchase specification file (YAML); repeat for several materials")
 	cmd.Flags().StringVar(&o.DB, "db", "", "database: a SQLite file or postgres://... URL (default: $LOTPROOF_DB or lotproof.db)")
@@ -132,8 +133,8 @@ func runRecord(o recordOptions, st streams) error {
 	if r.AlreadyRecorded {
 		fmt.Fprintf(st.Err, "lotproof: %s (SHA-256 %s) was already recorded on %s by %s; nothing changed\n", d.Source, d.Digest[:12], r.ImportedAt, r.User)
 	} else {
-		fmt.Fprintf(st.Err, "lotproof: recorded %s in %s: %d new specimens, %d already stored, %d new lots, %d verdicts\n",
-			d.Source, s.Where(), r.SpecimensNew, r.SpecimensSame, r.LotsNew, r.Verdicts)
+		fmt.Fprintf(st.Err, "lotproof: recorded %s in %s: %d new specimens, %d already stored (%d of them given %d new values), %d new lots, %d verdicts\n",
+			d.Source, s.Where(), r.SpecimensNew, r.SpecimensSame, r.SpecimensAdded, r.ValuesAdded, r.LotsNew, r.Verdicts)
 	}
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
@@ -168,6 +169,8 @@ func recordTable(r recordResult) *render.Table {
 	t.Add("recorded by", r.User)
 	t.Add("specimens new", strconv.Itoa(r.SpecimensNew))
 	t.Add("specimens already stored", strconv.Itoa(r.SpecimensSame))
+	t.Add("of them given new values", strconv.Itoa(r.SpecimensAdded))
+	t.Add("values added", strconv.Itoa(r.ValuesAdded))
 	t.Add("lots new", strconv.Itoa(r.LotsNew))
 	t.Add("verdicts stored", strconv.Itoa(r.Verdicts))
 	t.Add("spec limits stored", strconv.Itoa(r.SpecLimits))

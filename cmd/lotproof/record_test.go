@@ -60,7 +60,7 @@ func TestRecordThenAgainThenConflict(t *testing.T) {
 	// shown, nothing on stdout, nothing written.
 	bad := writeFile(t, "bad.csv", strings.Replace(recordCSV, "998.0", "989.0", 1)+"C-1,L-3,H3,North Mill,bar,2025-07-01,1000,880\n")
 	code, stdout, stderr := run(t, "", "record", bad, "--db", db)
-	if code != 2 || stdout != "" || !strings.Contains(stderr, `specimen "A-2": tensile is 998 MPa in the database but 989 MPa in the file`) || !strings.Contains(stderr, "bad.csv:3") {
+	if code != 2 || stdout != "" || !strings.Contains(stderr, `specimen "A-2": tensile is 998 MPa in the database (specimen first recorded from `+data+`) but 989 MPa in the file`) || !strings.Contains(stderr, "bad.csv:3") {
 		t.Fatalf("conflict: exit %d\nstdout %q\nstderr %s", code, stdout, stderr)
 	}
 	s, err := store.Open(t.Context(), db)

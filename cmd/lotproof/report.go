@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -43,7 +44,7 @@ func init() { register(newReportCmd) }
 func newReportCmd(g *globalOptions, st streams) *cobra.Command {
 	o := reportOptions{Seed: allowables.DefaultOptions().Seed}
 	cmd := &cobra.Command{
-		Use:   "report DATA --spec SPEC.yaml [--campaign CAMPAIGN.csv] [--db URL] [--out FILE]",
+		Use:   "report DATA [DATA...] --spec SPEC.yaml [--campaign CAMPAIGN.csv] [--db URL] [--out FILE]",
 		Short: "Write one self-contained HTML report: verdicts, design values, trend and figures",
 		Long: `report judges every lot of DATA against its specification (as lotproof
 accept does) and writes a single HTML file with inline figures and no
@@ -72,12 +73,13 @@ Statistical results support, and never replace, the governing
 specification, regulations, local codes and licensed engineering judgement.`,
 		Example: `  lotproof report receipts.csv --spec steel.yaml --out receipts.html
   lotproof report receipts.csv --spec steel.yaml --spec plate.yaml --campaign campaign.csv --db lotproof.db --out full.html`,
-		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			o.Data = args[0]
+			o.Data, o.Input.More = args[0], args[1:]
 			return runReport(o, st)
 		}),
 	}
+	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
 	f := cmd.Flags()
 	f.StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
@@ -187,7 +189,7 @@ func dedupe(xs []string) []string {
 }
 
 func runReport(o reportOptions, st streams) error {
-	if o.Data == "-" && o.Campaign == "-" {
+	if o.Campaign == "-" && (o.Data == "-" || slices.Contains(o.Input.More, "-")) {
 		return usageError{fmt.Errorf("DATA and --campaign cannot both be standard input")}
 	}
 	specs, err := readSpecs(o.Specs)

@@ -129,7 +129,7 @@ func TestReportBadInput(t *testing.T) {
 		"bad out dir":    {"report", data, "--spec", sp, "--out", filepath.Join(t.TempDir(), "no", "such", "dir", "r.html")},
 		"two stdins":     {"report", "-", "--spec", sp, "--campaign", "-"},
 		"bad units":      {"report", data, "--spec", sp, "--units", "imperial"},
-		"extra argument": {"report", data, data, "--spec", sp},
+		"no data":        {"report", "--spec", sp},
 	} {
 		code, out, errs := run(t, "", args...)
 		if code != exitInput {

@@ -19,18 +19,19 @@ type summaryOptions struct {
 func newSummaryCmd(g *globalOptions, st streams) *cobra.Command {
 	var o summaryOptions
 	cmd := &cobra.Command{
-		Use:   "summary DATA",
+		Use:   "summary DATA [DATA...]",
 		Short: "Describe every lot: count, mean, SD, minimum and maximum per property",
 		Long: `summary reads a specimen results file (CSV, .xlsx, or - for standard input)
 and prints, for every lot (or heat) and property, the number of values, the
 number missing, the mean, the sample standard deviation, the minimum and the
 maximum.`,
-		Args: exactArgs(1, "one results file (CSV, .xlsx or -)"),
+		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			o.Data = args[0]
+			o.Data, o.Input.More = args[0], args[1:]
 			return runSummary(o, st)
 		}),
 	}
+	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
 	return cmd
 }

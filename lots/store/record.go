@@ -46,7 +46,9 @@ type RecordResult struct {
 	Source          string `json:"source"`
 	AlreadyRecorded bool   `json:"already_recorded"` // the same file (SHA-256) was recorded before: nothing changed
 	SpecimensNew    int    `json:"specimens_new"`
-	SpecimensSame   int    `json:"specimens_same"` // already stored with identical values
+	SpecimensSame   int    `json:"specimens_same"`     // already stored; values agree (additions aside)
+	SpecimensAdded  int    `json:"specimens_extended"` // already stored, and this file adds properties (or heat, date, condition) they had not
+	ValuesAdded     int    `json:"values_added"`       // property values added to specimens already stored
 	LotsNew         int    `json:"lots_new"`
 	Verdicts        int    `json:"verdicts"`
 	SpecLimits      int    `json:"spec_limits"`
@@ -62,11 +64,16 @@ type Conflict struct {
 	Field    string `json:"field"`
 	Stored   string `json:"stored"`
 	Incoming string `json:"incoming"`
-	Line     int    `json:"line,omitempty"` // line of the incoming file
+	Line     int    `json:"line,omitempty"`      // line of the incoming file
+	StoredIn string `json:"stored_in,omitempty"` // the recorded file the specimen was first recorded from
 }
 
 func (c Conflict) String() string {
-	return fmt.Sprintf("%s %q: %s is %s in the database but %s in the file", c.Kind, c.Key, c.Field, c.Stored, c.Incoming)
+	from := ""
+	if c.StoredIn != "" {
+		from = " (specimen first recorded from " + c.StoredIn + ")"
+	}
+	return fmt.Sprintf("%s %q: %s is %s in the database%s but %s in the file", c.Kind, c.Key, c.Field, c.Stored, from, c.Incoming)
 }
 
 // ConflictError reports conflicts found during an import; nothing of the
@@ -166,8 +173,11 @@ func fmtValue(v float64, present bool, unit string) string {
 // Record stores the dataset's specimens and lots, the verdicts and the
 // specification limits used, in one transaction. When the file's SHA-256
 // was recorded before, nothing changes and the result says so. A specimen
-// stored before with identical values is skipped; with different values it
-// is a conflict: Record returns a *ConflictError and writes nothing.
+// stored before is compared: a property (or heat, test date, condition) it
+// has no value for yet is an addition and is stored (hardness recorded
+// first, tensile results of the same specimens later); an empty cell adds
+// nothing; a different value is a conflict: Record returns a
+// *ConflictError and writes nothing.
 func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
 	if d == nil {
 		return nil, fmt.Errorf("store: no dataset")
@@ -303,11 +313,18 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 			return nil, err
 		}
 		line := d.Specimens[g.Specimens[0]].Line
-		if sup != g.Supplier {
-			conf.add(Conflict{Kind: "lot", Key: g.Key, Field: "supplier", Stored: strconv.Quote(sup), Incoming: strconv.Quote(g.Supplier), Line: line})
-		}
-		if mat != g.Material {
-			conf.add(Conflict{Kind: "lot", Key: g.Key, Field: "material", Stored: strconv.Quote(mat), Incoming: strconv.Quote(g.Material), Line: line})
+		// A supplier or material not recorded yet is an addition; an
+		// empty one in the file changes nothing.
+		for _, f := range []struct{ name, stored, incoming string }{{"supplier", sup, g.Supplier}, {"material", mat, g.Material}} {
+			switch {
+			case f.stored == f.incoming || f.incoming == "":
+			case f.stored == "":
+				if _, err := tx.ExecContext(ctx, s.q(`UPDATE lots SET `+f.name+` = ? WHERE lot = ?`), f.incoming, g.Key); err != nil {
+					return nil, err
+				}
+			default:
+				conf.add(Conflict{Kind: "lot", Key: g.Key, Field: f.name, Stored: strconv.Quote(f.stored), Incoming: strconv.Quote(f.incoming), Line: line})
+			}
 		}
 	}
 
@@ -396,10 +413,21 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 						return nil, err
 					}
 				}
-				if err := s.compare(ctx, tx, d, sp, unitOf, conf); err != nil {
+				added, err := s.compare(ctx, tx, d, sp, unitOf, conf, func(pi int) error {
+					vals = append(vals, sp.ID, d.Properties[pi].Name, sp.Values[pi])
+					if len(vals) == 3*batchRows {
+						return flushVals()
+					}
+					return nil
+				})
+				if err != nil {
 					return nil, err
 				}
 				res.SpecimensSame++
+				if added > 0 {
+					res.SpecimensAdded++
+					res.ValuesAdded += added
+				}
 				continue
 			}
 			// A specimen id twice in one file: the second is compared.
@@ -451,23 +479,34 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 	return res, nil
 }
 
-// compare checks a specimen already stored against the incoming one.
-func (s *Store) compare(ctx context.Context, tx *sql.Tx, d *lots.Dataset, sp *lots.Specimen, unitOf []string, conf *ConflictError) error {
-	var lot, heat, tested, cond string
-	if err := tx.QueryRowContext(ctx, s.q(`SELECT lot, heat, tested, test_condition FROM specimens WHERE specimen = ?`), sp.ID).Scan(&lot, &heat, &tested, &cond); err != nil {
-		return err
+// compare checks a specimen already stored against the incoming one. A
+// value the stored specimen lacks is an addition: identity fields are
+// filled in at once, property values handed to addValue (written with the
+// import unless a conflict turns up). It returns the number of additions.
+func (s *Store) compare(ctx context.Context, tx *sql.Tx, d *lots.Dataset, sp *lots.Specimen, unitOf []string, conf *ConflictError, addValue func(pi int) error) (int, error) {
+	var lot, heat, tested, cond, from string
+	if err := tx.QueryRowContext(ctx, s.q(`SELECT s.lot, s.heat, s.tested, s.test_condition, i.source FROM specimens s JOIN imports i ON i.digest = s.import_digest WHERE s.specimen = ?`), sp.ID).Scan(&lot, &heat, &tested, &cond, &from); err != nil {
+		return 0, err
 	}
 	add := func(field, stored, incoming string) {
-		conf.add(Conflict{Kind: "specimen", Key: sp.ID, Field: field, Stored: stored, Incoming: incoming, Line: sp.Line})
+		conf.add(Conflict{Kind: "specimen", Key: sp.ID, Field: field, Stored: stored, Incoming: incoming, Line: sp.Line, StoredIn: from})
 	}
-	for _, f := range []struct{ name, a, b string }{{"lot", lot, sp.Lot}, {"heat", heat, sp.Heat}, {"tested", tested, sp.Tested}, {"condition", cond, sp.Condition}} {
-		if f.a != f.b {
+	added := 0
+	for _, f := range []struct{ name, col, a, b string }{{"lot", "lot", lot, sp.Lot}, {"heat", "heat", heat, sp.Heat}, {"tested", "tested", tested, sp.Tested}, {"condition", "test_condition", cond, sp.Condition}} {
+		switch {
+		case f.a == f.b || f.b == "":
+		case f.a == "" && f.col != "lot":
+			if _, err := tx.ExecContext(ctx, s.q(`UPDATE specimens SET `+f.col+` = ? WHERE specimen = ?`), f.b, sp.ID); err != nil {
+				return 0, err
+			}
+			added++
+		default:
 			add(f.name, strconv.Quote(f.a), strconv.Quote(f.b))
 		}
 	}
 	rows, err := tx.QueryContext(ctx, s.q(`SELECT property, value FROM measurements WHERE specimen = ?`), sp.ID)
 	if err != nil {
-		return err
+		return 0, err
 	}
 	stored := map[string]float64{}
 	for rows.Next() {
@@ -475,24 +514,28 @@ func (s *Store) compare(ctx context.Context, tx *sql.Tx, d *lots.Dataset, sp *lo
 		var v float64
 		if err := rows.Scan(&p, &v); err != nil {
 			rows.Close()
-			return err
+			return 0, err
 		}
 		stored[p] = v
 	}
 	if err := rows.Close(); err != nil {
-		return err
+		return 0, err
 	}
 	for pi, p := range d.Properties {
 		v := sp.Values[pi]
 		sv, ok := stored[p.Name]
 		switch {
-		case !ok && math.IsNaN(v):
-		case ok && !math.IsNaN(v) && sv == v:
-		default:
+		case math.IsNaN(v): // an empty cell adds nothing and changes nothing
+		case !ok:
+			if err := addValue(pi); err != nil {
+				return 0, err
+			}
+			added++
+		case sv != v:
 			add(p.Name, fmtValue(sv, ok, unitOf[pi]), fmtValue(v, true, unitOf[pi]))
 		}
 	}
-	return nil
+	return added, nil
 }
 
 // Import is one recorded file.

@@ -196,18 +196,26 @@ func TestRecordIdempotentAndConflict(t *testing.T) {
 			}
 			if len(ce.Conflicts) != 1 || ce.Conflicts[0].Key != rows[2].id || ce.Conflicts[0].Field != "tensile" ||
 				ce.Conflicts[0].Stored != strconv.FormatFloat(rows[2].tensile, 'g', -1, 64)+" MPa" ||
-				ce.Conflicts[0].Incoming != strconv.FormatFloat(bad[2].tensile, 'g', -1, 64)+" MPa" || ce.Conflicts[0].Line != 4 {
+				ce.Conflicts[0].Incoming != strconv.FormatFloat(bad[2].tensile, 'g', -1, 64)+" MPa" || ce.Conflicts[0].Line != 4 ||
+				ce.Conflicts[0].StoredIn != "a.csv" || !strings.Contains(ce.Error(), "(specimen first recorded from a.csv)") {
 				t.Fatalf("conflict %+v", ce.Conflicts)
 			}
 			if c := counts(t, s); c != before {
 				t.Fatalf("a conflicting import wrote something: %+v, before %+v", c, before)
 			}
-			// A missing value that is now present is a conflict too.
+			// A value not yet recorded is an addition, not a conflict (a
+			// second results file for the same specimens); an empty cell
+			// where a value is stored changes nothing.
 			bad2 := append([]specRow(nil), rows...)
 			bad2[5].proof = 870
-			_, err = s.Record(ctx, dataset(t, "d.csv", bad2), nil, nil, Meta{Time: t0, User: "ann"})
-			if !errors.As(err, &ce) || ce.Conflicts[0].Stored != "missing" {
-				t.Fatalf("want a conflict with a missing stored value, got %v", err)
+			bad2[6].proof = math.NaN()
+			before = counts(t, s)
+			r4, err := s.Record(ctx, dataset(t, "d.csv", bad2), nil, nil, Meta{Time: t0.Add(4 * time.Hour), User: "ann"})
+			if err != nil || r4.SpecimensNew != 0 || r4.SpecimensSame != 12 || r4.SpecimensAdded != 1 || r4.ValuesAdded != 1 {
+				t.Fatalf("want one value added, got %+v, %v", r4, err)
+			}
+			if c := counts(t, s); c.Measurements != before.Measurements+1 || c.Specimens != before.Specimens {
+				t.Fatalf("after the addition counts %+v, before %+v", c, before)
 			}
 			// A lot that changes supplier is a conflict.
 			bad3 := synth("A", 1, 5, 9)
@@ -224,7 +232,7 @@ func TestRecordIdempotentAndConflict(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if len(lv) != 4 || lv[1].Lot != "A-L00001" || len(lv[1].Values) != 3 || lv[1].Values[0] != rows[4].proof || lv[1].Tested != "2025-02-01" {
+			if len(lv) != 4 || lv[1].Lot != "A-L00001" || len(lv[1].Values) != 4 || lv[1].Values[0] != rows[4].proof || lv[1].Values[1] != 870 || lv[1].Tested != "2025-02-01" {
 				t.Fatalf("lot data %+v", lv)
 			}
 			vs, err := s.LotVerdicts(ctx)
@@ -236,7 +244,7 @@ func TestRecordIdempotentAndConflict(t *testing.T) {
 				t.Fatalf("limits %+v %v", sl, err)
 			}
 			im, err := s.Imports(ctx)
-			if err != nil || len(im) != 2 || im[0].User != "ann" || im[0].Digest != d.Digest {
+			if err != nil || len(im) != 3 || im[0].User != "ann" || im[0].Digest != d.Digest || im[2].Source != "d.csv" {
 				t.Fatalf("imports %+v %v", im, err)
 			}
 		})
