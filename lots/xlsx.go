@@ -31,8 +31,10 @@ func (l xlsxLocator) place(row, col int) string {
 
 // ReadXLSX reads a specimen results table from the first sheet of an
 // Excel workbook, or from the named sheet. Problems are located as
-// file:sheet!cell. Cells are read as displayed text and parsed as in CSV;
-// trailing empty cells of a row count as missing values.
+// file:sheet!cell. Cells are read as stored and parsed as in CSV; a date
+// cell in the tested column (a serial day number with a date format, 1900
+// or 1904 date system) is read as its date; trailing empty cells of a row
+// count as missing values.
 func ReadXLSX(name, sheet string) (*Dataset, error) {
 	f, size, err := input.OpenFile(name, input.Workbook)
 	if err != nil {
@@ -84,6 +86,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 	t := newTable(name)
 	d := &Dataset{Source: name}
 	var h *Header
+	var dates *xlsxDates // date cells of the tested column
 	row := 0
 	for rows.Next() {
 		row++
@@ -108,6 +111,12 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 		// Excel leaves out trailing empty cells; they are missing values.
 		for len(cols) < h.width {
 			cols = append(cols, "")
+		}
+		if h.testedCol >= 0 {
+			if dates == nil {
+				dates = newXLSXDates(book, sheet)
+			}
+			cols[h.testedCol] = dates.cell(row, h.testedCol+1, cols[h.testedCol])
 		}
 		s := Specimen{Values: make([]float64, len(h.Properties))}
 		if t.parseRow(cols, row, loc, &s) {
