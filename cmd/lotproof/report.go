@@ -65,7 +65,8 @@ Letter paper. It holds:
   - with --records: the properties reduced from raw tensile records (as
     lotproof reduce, default options) and their stress-strain curves.
 
-The report goes to --out (default: standard output). Exit status: 0 when
+The report goes to --out (default: standard output, which must not be a
+terminal). --format does not apply. Exit status: 0 when
 every lot conforms, 1 when any lot is nonconforming, undecided or not
 judged (the report is still written), 2 on bad input.
 
@@ -76,6 +77,12 @@ specification, regulations, local codes and licensed engineering judgement.`,
 		Args: dataArgs,
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			o.Data, o.Input.More = args[0], args[1:]
+			if g.Format != "" {
+				return usageError{fmt.Errorf("report writes one HTML file; --format %s does not apply (accept, allowables and trend give the same results as JSON or CSV)", g.Format)}
+			}
+			if o.OutFile == "-" && st.OutTerminal {
+				return usageError{fmt.Errorf("the report is an HTML file of a few megabytes: give --out FILE (or redirect standard output to a file)")}
+			}
 			return runReport(o, st)
 		}),
 	}

@@ -123,13 +123,13 @@ func TestReportToFileWithTrend(t *testing.T) {
 func TestReportBadInput(t *testing.T) {
 	data, sp := reportData(t)
 	for name, args := range map[string][]string{
-		"no spec":        {"report", data},
-		"missing data":   {"report", filepath.Join(t.TempDir(), "none.csv"), "--spec", sp},
-		"bad date":       {"report", data, "--spec", sp, "--date", "2 Dec"},
-		"bad out dir":    {"report", data, "--spec", sp, "--out", filepath.Join(t.TempDir(), "no", "such", "dir", "r.html")},
-		"two stdins":     {"report", "-", "--spec", sp, "--campaign", "-"},
-		"bad units":      {"report", data, "--spec", sp, "--units", "imperial"},
-		"no data":        {"report", "--spec", sp},
+		"no spec":      {"report", data},
+		"missing data": {"report", filepath.Join(t.TempDir(), "none.csv"), "--spec", sp},
+		"bad date":     {"report", data, "--spec", sp, "--date", "2 Dec"},
+		"bad out dir":  {"report", data, "--spec", sp, "--out", filepath.Join(t.TempDir(), "no", "such", "dir", "r.html")},
+		"two stdins":   {"report", "-", "--spec", sp, "--campaign", "-"},
+		"bad units":    {"report", data, "--spec", sp, "--units", "imperial"},
+		"no data":      {"report", "--spec", sp},
 	} {
 		code, out, errs := run(t, "", args...)
 		if code != exitInput {

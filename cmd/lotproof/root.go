@@ -122,12 +122,28 @@ specification, regulations, local codes and licensed engineering judgement.`,
 	root.PersistentFlags().StringVar(&g.Units, "units", "si", "unit system for output: si or us")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error { return usageError{err} })
 	root.AddCommand(
-		newVersionCmd(st),
+		newVersionCmd(g, st),
 		newSummaryCmd(g, st),
 		newDemoCmd(g, st),
 	)
 	for _, add := range extraCommands {
 		root.AddCommand(add(g, st))
+	}
+	// cobra's completion command prints its help and exits 0 for a shell
+	// it does not know: make that a usage error.
+	root.InitDefaultCompletionCmd()
+	if c, _, err := root.Find([]string{"completion"}); err == nil && c.Name() == "completion" {
+		c.Args = cobra.ArbitraryArgs
+		c.RunE = func(cmd *cobra.Command, args []string) error {
+			var shells []string
+			for _, s := range cmd.Commands() {
+				shells = append(shells, s.Name())
+			}
+			if len(args) == 0 {
+				return usageError{fmt.Errorf("completion needs a shell: %s", orList(shells))}
+			}
+			return usageError{fmt.Errorf("completion: unknown shell %q: expected %s", args[0], orList(shells))}
+		}
 	}
 	return root
 }
