@@ -53,7 +53,7 @@ func TestRecordThenAgainThenConflict(t *testing.T) {
 	if err := runRecord(o, streams{Out: &out, Err: &errb}); err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(out.String(), `"already_recorded": true`) || !strings.Contains(errb.String(), "already recorded on 2026-03-04T05:06:07Z by tester; nothing changed") {
+	if !strings.Contains(out.String(), `"already_recorded": true`) || !strings.Contains(out.String(), `"specimens_new": 0,`) || !strings.Contains(errb.String(), "already recorded on 2026-03-04T05:06:07Z by tester; nothing changed") {
 		t.Fatalf("second record: %s / %s", out.String(), errb.String())
 	}
 	// A changed value under the same specimen id: exit 2, both values
@@ -167,6 +167,17 @@ acceptance:
 	_, out2, _ := run(t, "", "trend", "--db", db, "--format", "json", "--property", "tensile", "--units", "us")
 	if out2 != out {
 		t.Fatal("trend output differs between two runs")
+	}
+	// A baseline with no recorded lots is an error naming the range and
+	// the recorded periods; the baseline used is shown in the table.
+	code, out, stderr = run(t, "", "trend", "--db", db, "--baseline", "2030-Q1..2030-Q4")
+	if code != exitInput || out != "" || !strings.Contains(stderr, "the baseline 2030-Q1..2030-Q4 holds no recorded lots") || !strings.Contains(stderr, "(2025-Q1..2025-Q2)") {
+		t.Errorf("empty baseline: exit %d, %q, %s", code, out, stderr)
+	}
+	_, out, _ = run(t, "", "trend", "--db", db, "--format", "table", "--baseline", "2025-Q1..2025-Q1")
+	_, def, _ := run(t, "", "trend", "--db", db, "--format", "table")
+	if !strings.Contains(out, "Control limits from the baseline 2025-Q1..2025-Q1") || !strings.Contains(def, "each series' first 4 periods (the default") {
+		t.Errorf("baseline not shown:\n%s\n%s", out, def)
 	}
 }
 

@@ -113,6 +113,11 @@ func trendTables(r *trend.Result) []*render.Table {
 			num(p.Mean, 5), num(p.SD, 3), num(p.Minimum, 5), num(p.Ppk, 3), num(p.PpkLower, 3), num(p.PPMBelow, 3),
 			strconv.Itoa(p.LotsJudged), strconv.Itoa(p.LotsRejected))
 	}
+	if r.Baseline != "" {
+		pt.Note("Control limits from the baseline %s (--baseline).", r.Baseline)
+	} else {
+		pt.Note("Control limits from each series' first %d periods (the default; --baseline FROM..TO sets the range); the limits table shows each series' baseline.", trend.DefaultBaseline)
+	}
 	pt.Notes = append(pt.Notes, r.Caution)
 	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
 	for _, s := range r.Signals {

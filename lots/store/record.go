@@ -256,11 +256,12 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 	if err == nil {
 		res.AlreadyRecorded = true
 		var at, user string
-		var n, same int
-		if err := tx.QueryRowContext(ctx, s.q(`SELECT imported_at, user_name, specimens_new, specimens_same FROM imports WHERE digest = ?`), d.Digest).Scan(&at, &user, &n, &same); err != nil {
+		if err := tx.QueryRowContext(ctx, s.q(`SELECT imported_at, user_name FROM imports WHERE digest = ?`), d.Digest).Scan(&at, &user); err != nil {
 			return nil, err
 		}
-		res.ImportedAt, res.User, res.SpecimensNew, res.SpecimensSame = at, user, n, same
+		// The counts say what this run did: nothing new, every specimen
+		// already stored. When and by whom are those of the first import.
+		res.ImportedAt, res.User, res.SpecimensNew, res.SpecimensSame = at, user, 0, len(d.Specimens)
 		return res, nil
 	}
 	if err != sql.ErrNoRows {

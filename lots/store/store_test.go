@@ -168,7 +168,7 @@ func TestRecordIdempotentAndConflict(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if !r2.AlreadyRecorded || r2.User != "ann" || r2.ImportedAt != "2026-04-01T12:00:00Z" {
+			if !r2.AlreadyRecorded || r2.User != "ann" || r2.ImportedAt != "2026-04-01T12:00:00Z" || r2.SpecimensNew != 0 || r2.SpecimensSame != 12 || r2.LotsNew != 0 {
 				t.Fatalf("second import: %+v", r2)
 			}
 			if c := counts(t, s); c != want {

@@ -343,6 +343,9 @@ func ComputeFrom(data []store.LotValues, verdicts map[string][]store.Verdict, li
 		}
 		computeSeries(res, k, ls, min, o)
 	}
+	if err := checkBaseline(res, o); err != nil {
+		return nil, err
+	}
 	// Signals in the order of the series, then by period (each series'
 	// signals are already in lot order within a rule).
 	sort.SliceStable(res.Signals, func(i, j int) bool {
