@@ -20,6 +20,7 @@ type equivalenceOptions struct {
 	Data     string // optional results file
 	Property string
 	Material string
+	AllMat   bool // test lots of several materials against one baseline
 	Mean, SD float64
 	Unit     string
 	N        int
@@ -73,6 +74,7 @@ Exit status 1 when any lot fails.`,
 	cmd.Flags().Float64Var(&o.Alpha, "alpha", 0.05, "probability that a lot from the baseline fails the test")
 	cmd.Flags().StringVar(&o.Property, "property", "", "property column to test (with DATA)")
 	cmd.Flags().StringVar(&o.Material, "material", "", "test only lots of this material (with DATA)")
+	cmd.Flags().BoolVar(&o.AllMat, "all-materials", false, "test the lots of every material in DATA against the one baseline (default: refused when DATA holds several materials)")
 	addInputFlags(cmd, &o.Input)
 	addTableFlag(cmd, &o.Table, "limits", "lots")
 	return cmd
@@ -209,6 +211,19 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		}
 		if len(groups) == 0 {
 			return lots.Inputf(d.Source, "check --material against the file's material column", "no lots of material %q", o.Material)
+		}
+		if o.Material == "" && !o.AllMat {
+			var mats []string
+			seen := map[string]bool{}
+			for _, g := range groups {
+				if m := strings.TrimSpace(g.Material); !seen[strings.ToLower(m)] {
+					seen[strings.ToLower(m)] = true
+					mats = append(mats, strconv.Quote(m))
+				}
+			}
+			if len(mats) > 1 {
+				return usageError{fmt.Errorf("%s holds lots of %d materials (%s), and a baseline describes one: give --material, or --all-materials to test them all against this baseline", d.Source, len(mats), strings.Join(mats, ", "))}
+			}
 		}
 		for _, g := range groups {
 			vals, _ := d.Values(prop, g.Specimens)

@@ -54,10 +54,13 @@ Lengths are in mm (--units si) or in (--units us). Uniform axial stress only.`,
   lotproof size --from allowables.json --property tensile --basis b --safety 2 --load 40 --shape tube --diameter 30
   lotproof size --design-value 135 --stress-unit ksi --safety 1.5 --shape round --diameter 0.75 --units us`,
 		Args: exactArgs(0, "no arguments (everything is given by flags)"),
-		RunE: withOutput(g, st, &o.Out, func(args []string) error {
-			return runSize(o, st)
-		}),
 	}
+	cmd.RunE = withOutput(g, st, &o.Out, func(args []string) error {
+		if !cmd.Flags().Changed("load-unit") && o.Out.System == units.US {
+			o.LoadUnit = "kip" // loads in US customary units with --units us
+		}
+		return runSize(o, st)
+	})
 	f := cmd.Flags()
 	f.Float64Var(&o.DesignValue, "design-value", 0, "design value (stress) to divide by the factor of safety")
 	f.StringVar(&o.StressUnit, "stress-unit", o.StressUnit, "unit of --design-value: MPa, ksi, psi, GPa ...")
@@ -67,7 +70,7 @@ Lengths are in mm (--units si) or in (--units us). Uniform axial stress only.`,
 	f.StringVar(&o.Basis, "basis", o.Basis, "with --from: a or b")
 	f.Float64Var(&o.Safety, "safety", 0, "factor of safety (at least 1)")
 	f.Float64Var(&o.Load, "load", 0, "axial load to carry (omit to find the largest load for a section)")
-	f.StringVar(&o.LoadUnit, "load-unit", o.LoadUnit, "unit of --load: N, kN, lbf or kip")
+	f.StringVar(&o.LoadUnit, "load-unit", o.LoadUnit, "unit of --load and of the largest load: N, kN, lbf or kip (kip with --units us)")
 	f.StringVar(&o.Shape, "shape", o.Shape, "round, rectangle or tube")
 	f.Float64Var(&o.Width, "width", 0, "rectangle width")
 	f.Float64Var(&o.Thickness, "thickness", 0, "rectangle thickness (largest-load mode)")
