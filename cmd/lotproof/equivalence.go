@@ -278,7 +278,7 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k_min", ">k_mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
+		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k minimum", ">k mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {
 			ft.Add(strconv.Itoa(f.N), render.N(o.Alpha, 4), render.F(f.KMin, 4), render.F(f.KMean, 4), render.F(f.AlphaEach, 5),
 				render.N(float64(f.MinLimit), 5), render.N(float64(f.MeanLimit), 5), res.Unit)

@@ -43,9 +43,9 @@ A-basis is P = 0.99, B-basis P = 0.90, both at C = 0.95):
                   applies it: exact (built-in table) up to n = 100, the
                   handbook closed form (CMH-17-1G 8.3.4.3.2) above; only
                   P = 0.90 or 0.99 at C = 0.95
-  weibull-mc      the same V, exact from the pivotal quantities of the
+  weibull-exact   the same V, exact from the pivotal quantities of the
                   maximum-likelihood estimates (Thoman, Bain and Antle 1970)
-                  by seeded Monte Carlo (--sims, --seed); shows its standard error
+                  by seeded Monte Carlo (--simulations, --seed); shows its standard error
   nonparametric   the rank r of the order statistic x(r) when n is large
                   enough (CMH-17-1G 8.3.4.5.1), otherwise the Hanson-Koopmans
                   factor k in  x(r) (x(1)/x(r))^k  (Hanson and Koopmans 1964)
@@ -55,7 +55,7 @@ A-basis is P = 0.99, B-basis P = 0.90, both at C = 0.95):
 written as 0.9 or 90%.`,
 		Example: `  lotproof factors
   lotproof factors --n 2-10,20,50,100 --content 99% --method normal,nonparametric
-  lotproof factors --n 10,30 --method weibull-mc --sims 20000 --seed 7 --format json`,
+  lotproof factors --n 10,30 --method weibull-exact --simulations 20000 --seed 7 --format json`,
 		Args: exactArgs(0, "no arguments"),
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
 			return runFactors(o, st)
@@ -65,14 +65,16 @@ written as 0.9 or 90%.`,
 	f.StringVar(&o.N, "n", o.N, "sample sizes: ranges and lists, e.g. 2-30 or 5,10,20")
 	f.StringVar(&o.Content, "content", o.Content, "population fractions above the bound (comma list)")
 	f.StringVar(&o.Confidence, "confidence", o.Confidence, "confidence levels (comma list)")
-	f.StringVar(&o.Methods, "method", o.Methods, "methods: normal, weibull-approx, weibull-mc, nonparametric (comma list)")
-	f.IntVar(&o.Sims, "sims", o.Sims, "weibull-mc: simulated samples per factor (at least 1000)")
-	f.Uint64Var(&o.Seed, "seed", o.Seed, "weibull-mc: random seed (same seed, same output)")
+	f.StringVar(&o.Methods, "method", o.Methods, "methods: normal, weibull-approx, weibull-exact, nonparametric (comma list)")
+	f.IntVar(&o.Sims, "simulations", o.Sims, "weibull-exact: simulated samples per factor (at least 1000)")
+	f.IntVar(&o.Sims, "sims", o.Sims, "old name of --simulations")
+	f.MarkHidden("sims")
+	f.Uint64Var(&o.Seed, "seed", o.Seed, "weibull-exact: random seed (same seed, same output)")
 	return cmd
 }
 
 // factorRow is one factor. JSON keys n, content, confidence, method, factor
-// are always present; rank and mc_std_err where they apply.
+// are always present; rank and mc_std_error where they apply.
 type factorRow struct {
 	N          int      `json:"n"`
 	Content    float64  `json:"content"`
@@ -80,8 +82,8 @@ type factorRow struct {
 	Method     string   `json:"method"`
 	Factor     float64  `json:"factor"`
 	Rank       int      `json:"rank,omitempty"`
-	MCStdErr   *float64 `json:"mc_std_err,omitempty"`
-	FailedFits *int     `json:"failed_fits,omitempty"` // weibull-mc: simulated fits that failed
+	MCStdErr   *float64 `json:"mc_std_error,omitempty"`
+	FailedFits *int     `json:"failed_fits,omitempty"` // weibull-exact: simulated fits that failed
 }
 
 type factorsResult struct {
@@ -172,8 +174,10 @@ func runFactors(o factorsOptions, st streams) error {
 			continue
 		case "normal", "weibull-approx", "weibull-mc", "nonparametric":
 			methods = append(methods, m)
+		case "weibull-exact": // the name allowables uses; weibull-mc is the old name
+			methods = append(methods, "weibull-mc")
 		default:
-			return usageError{fmt.Errorf("--method %q: expected normal, weibull-approx, weibull-mc or nonparametric", m)}
+			return usageError{fmt.Errorf("--method %q: expected normal, weibull-approx, weibull-exact or nonparametric", m)}
 		}
 	}
 	if len(methods) == 0 {
@@ -187,10 +191,10 @@ func runFactors(o factorsOptions, st streams) error {
 			continue
 		}
 		if o.Sims < 1000 || o.Sims > 10000000 {
-			return usageError{fmt.Errorf("--sims %d: expected 1000 to 10,000,000", o.Sims)}
+			return usageError{fmt.Errorf("--simulations %d: expected 1000 to 10,000,000", o.Sims)}
 		}
 		if ns[len(ns)-1] > factorsMaxMCN {
-			return usageError{fmt.Errorf("weibull-mc: n up to %d (asked for %d)", factorsMaxMCN, ns[len(ns)-1])}
+			return usageError{fmt.Errorf("weibull-exact: n up to %d (asked for %d)", factorsMaxMCN, ns[len(ns)-1])}
 		}
 	}
 	res := factorsResult{Cautions: []string{stats.DesignValueCaution}}
@@ -278,11 +282,12 @@ func runFactors(o factorsOptions, st streams) error {
 			}
 		}
 	}
+	renameWeibullExact(&res)
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		cols := []string{"n", ">content", ">confidence", "method", ">factor", ">rank", ">MC s.e."}
+		cols := []string{"n", ">content", ">confidence", "method", ">factor", ">rank", ">Monte Carlo standard error"}
 		withFails := slices.Contains(methods, "weibull-mc")
 		if withFails {
 			cols = append(cols, ">failed fits")

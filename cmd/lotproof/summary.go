@@ -53,7 +53,7 @@ func runSummary(o summaryOptions, st streams) error {
 	sum := lots.Summarize(d, groups, o.Out.System)
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
-			return render.WriteJSON(w, sum)
+			return summaryJSON(w, by, sum)
 		}
 		return writeTables(w, o.Out.Format, summaryTable(string(by), sum))
 	})

@@ -103,7 +103,7 @@ func runTrend(o trendOptions, st streams) error {
 func trendTables(r *trend.Result) []*render.Table {
 	num := func(v lots.Float, sig int) render.Number { return render.N(float64(v), sig) }
 	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
-		">lots", ">specimens", ">mean", ">sd", ">minimum", ">ppk", ">ppk_lower", ">ppm_below", ">judged", ">rejected")
+		">lots", ">specimens", ">mean", ">sd", ">minimum", ">Ppk", ">Ppk lower bound", ">ppm below minimum", ">judged", ">rejected")
 	for _, p := range r.Periods {
 		base := ""
 		if p.Baseline {
@@ -126,7 +126,7 @@ func trendTables(r *trend.Result) []*render.Table {
 	if len(r.Signals) == 0 {
 		st.Note("no signals")
 	}
-	lt := render.NewTable("Control limits", r.By, "material", "property", "unit", "baseline", ">baseline_lots", ">centre", ">mr_bar", ">sigma", ">lcl", ">ucl", ">s_bar", "notes")
+	lt := render.NewTable("Control limits", r.By, "material", "property", "unit", "baseline", ">baseline lots", ">centre", ">mean moving range", ">sigma", ">lower limit", ">upper limit", ">mean SD", "notes")
 	for _, s := range r.Series {
 		notes := ""
 		for i, n := range s.Notes {

@@ -26,7 +26,7 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 	if r == nil || len(r.Periods) == 0 {
 		return sec, fmt.Errorf("report: the trend has no periods")
 	}
-	sec.Intro = fmt.Sprintf("Lots grouped by %s, periods of one %s%s.", r.By, r.Every, rangeText(r.Since, r.Until))
+	sec.Intro = fmt.Sprintf("Lots grouped by %s, periods of one %s%s.", r.By, r.Every, rangeText(string(r.Since), string(r.Until)))
 
 	t := &Table{Title: "Periods", Columns: Cols(r.By, "property", "period", ">lots", ">specimens", ">mean", ">SD", ">minimum", ">Ppk", ">Ppk lower bound", ">ppm below", ">lots rejected")}
 	for _, p := range r.Periods {

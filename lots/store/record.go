@@ -42,7 +42,7 @@ type Meta struct {
 
 // RecordResult says what an import changed.
 type RecordResult struct {
-	Digest          string `json:"digest"`
+	Digest          string `json:"sha256"` // SHA-256 of the file (of the files' digests when several were combined)
 	Source          string `json:"source"`
 	AlreadyRecorded bool   `json:"already_recorded"` // the same file (SHA-256) was recorded before: nothing changed
 	SpecimensNew    int    `json:"specimens_new"`

@@ -115,17 +115,17 @@ type Series struct {
 
 // Result is the trend of every group, property and period.
 type Result struct {
-	By       string   `json:"by"`
-	Every    string   `json:"every"`
-	Since    string   `json:"since"`
-	Until    string   `json:"until"`
-	Baseline string   `json:"baseline"`
-	Periods  []Period `json:"periods"`
-	Signals  []Signal `json:"signals"`
-	Series   []Series `json:"series"`
-	Methods  []string `json:"methods"`
-	Warnings []string `json:"warnings"`
-	Caution  string   `json:"caution"`
+	By       string    `json:"by"`
+	Every    string    `json:"every"`
+	Since    lots.Text `json:"since"`    // null when not given
+	Until    lots.Text `json:"until"`    // null when not given
+	Baseline lots.Text `json:"baseline"` // null: each series' first DefaultBaseline periods
+	Periods  []Period  `json:"periods"`
+	Signals  []Signal  `json:"signals"`
+	Series   []Series  `json:"series"`
+	Methods  []string  `json:"methods"`
+	Warnings []string  `json:"warnings"`
+	Caution  string    `json:"caution"`
 }
 
 // Caution is shown with every trend.
@@ -263,7 +263,7 @@ func ComputeFrom(data []store.LotValues, verdicts map[string][]store.Verdict, li
 	if err := o.normalize(); err != nil {
 		return nil, err
 	}
-	res := &Result{By: o.By, Every: o.Every, Since: o.Since, Until: o.Until, Baseline: o.Baseline,
+	res := &Result{By: o.By, Every: o.Every, Since: lots.Text(o.Since), Until: lots.Text(o.Until), Baseline: lots.Text(o.Baseline),
 		Periods: []Period{}, Signals: []Signal{}, Series: []Series{}, Methods: methods(o), Warnings: []string{}, Caution: Caution}
 	if o.Property != "" && len(data) == 0 {
 		return nil, lots.Inputf("--property", "name a recorded property (see lotproof record)", "no recorded values of property %q", o.Property)

@@ -1,0 +1,63 @@
+package main
+
+import (
+	"encoding/json"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestOneVocabulary: one name per thing across commands (DEVELOPERS.md,
+// "Names"): weibull-exact and --simulations in factors as in allowables,
+// mc_std_error, sha256, the group key named after the grouping, null for
+// options not given, and plain words in table headers.
+func TestOneVocabulary(t *testing.T) {
+	code, out, errs := run(t, "", "factors", "--n", "5", "--content", "90%", "--method", "weibull-exact", "--simulations", "1000", "--seed", "9", "--format", "json")
+	if code != 0 || !strings.Contains(out, `"method": "weibull-exact"`) || !strings.Contains(out, `"mc_std_error":`) || strings.Contains(out, "weibull-mc") {
+		t.Errorf("factors: exit %d %s\n%s", code, errs, out)
+	}
+	// The old names still work and give the same numbers.
+	_, old, _ := run(t, "", "factors", "--n", "5", "--content", "90%", "--method", "weibull-mc", "--sims", "1000", "--seed", "9", "--format", "json")
+	if old != out {
+		t.Errorf("old names give different output:\n%s", old)
+	}
+
+	code, out, _ = run(t, "", "summary", testLots, "--group-by", "heat", "--format", "json")
+	var heat []map[string]any
+	if err := json.Unmarshal([]byte(out), &heat); code != 0 || err != nil || len(heat) == 0 || heat[0]["heat"] != "HA" || heat[0]["lot"] != nil {
+		t.Errorf("summary by heat: %v %.200s", err, out)
+	}
+	if !strings.HasPrefix(out, "[\n  {\n    \"heat\": \"HA\",\n    \"supplier\"") {
+		t.Errorf("summary by heat not indented as the other outputs:\n%.100s", out)
+	}
+
+	db := filepath.Join(t.TempDir(), "v.db")
+	_, out, _ = run(t, "", "record", testLots, "--db", db, "--format", "json")
+	if !strings.Contains(out, `"sha256": "`) || strings.Contains(out, `"digest"`) {
+		t.Errorf("record JSON:\n%s", out)
+	}
+	_, out, _ = run(t, "", "trend", "--db", db, "--format", "json")
+	for _, k := range []string{"since", "until", "baseline"} {
+		if !strings.Contains(out, `"`+k+`": null,`) {
+			t.Errorf("trend %s not null", k)
+		}
+	}
+	_, out, _ = run(t, "", "trend", "--db", db, "--format", "json", "--since", "2025-01-01")
+	if !strings.Contains(out, `"since": "2025-01-01",`) {
+		t.Errorf("trend since not given back")
+	}
+
+	// Table headers: words, not identifiers.
+	for _, args := range [][]string{
+		{"trend", "--db", db, "--table", "periods"}, {"trend", "--db", db, "--table", "limits"}, {"trend", "--db", db, "--table", "signals"},
+		{"equivalence", "--baseline-mean", "1000", "--baseline-sd", "20", "--n", "5"},
+		{"accept", testLots, "--spec", testSpec, "--table", "limits"},
+		{"factors", "--n", "5"}, {"summary", testLots}, {"plan", "--aql", "0.01", "--rql", "0.1", "--table", "oc"},
+	} {
+		_, out, _ := run(t, "", append(args, "--format", "csv")...)
+		header := strings.SplitN(out, "\n", 2)[0]
+		if strings.Contains(header, "_") || header == "" {
+			t.Errorf("%v: header %q", args, header)
+		}
+	}
+}
