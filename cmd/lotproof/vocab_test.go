@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -58,6 +59,50 @@ func TestOneVocabulary(t *testing.T) {
 		header := strings.SplitN(out, "\n", 2)[0]
 		if strings.Contains(header, "_") || header == "" {
 			t.Errorf("%v: header %q", args, header)
+		}
+	}
+}
+
+// TestAuditTextInWords: the audit trail and warnings a user reads carry
+// sources by name and section but no program identifiers (grandMean,
+// pANOVA, A2akN) and no "from memory" (that belongs in DEVELOPERS.md);
+// parameter keys in JSON are snake_case.
+func TestAuditTextInWords(t *testing.T) {
+	ident := regexp.MustCompile(`\b[a-z]+[A-Z][A-Za-z0-9]*\b|\bA2akN\b|\bMS[BW]\b`)
+	for _, method := range []string{"auto", "anova", "lognormal", "weibull", "weibull-exact", "nonparametric", "hanson-koopmans"} {
+		code, out, errs := run(t, "", "allowables", "../../lots/demo/data/campaign.csv", "--method", method, "--simulations", "2000", "--format", "json", "--date", "2026-12-02")
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", method, code, errs)
+		}
+		var rep struct {
+			Cautions []string `json:"cautions"`
+			Results  []struct {
+				Warnings   []string           `json:"warnings"`
+				Parameters map[string]float64 `json:"parameters"`
+				Steps      []struct {
+					Reason, Decision string
+				} `json:"steps"`
+			} `json:"results"`
+		}
+		if err := json.Unmarshal([]byte(out), &rep); err != nil {
+			t.Fatal(err)
+		}
+		texts := append([]string{}, rep.Cautions...)
+		for _, r := range rep.Results {
+			texts = append(texts, r.Warnings...)
+			for _, s := range r.Steps {
+				texts = append(texts, s.Reason, s.Decision)
+			}
+			for k := range r.Parameters {
+				if k != strings.ToLower(k) {
+					t.Errorf("%s: parameter key %q is not snake_case", method, k)
+				}
+			}
+		}
+		for _, s := range texts {
+			if strings.Contains(s, "from memory") || ident.MatchString(s) {
+				t.Errorf("%s: %q", method, s)
+			}
 		}
 	}
 }

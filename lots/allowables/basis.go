@@ -86,7 +86,7 @@ func computeBasis(r *Result, opt Options) error {
 		}
 		*lv.val = lots.Float(b.Value)
 		for k, v := range b.Params {
-			r.Parameters[k] = lots.Float(v)
+			r.Parameters[paramKey(k)] = lots.Float(v)
 		}
 		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g, factor %.5g", method, b.N, lv.l.Content, lv.l.Confidence, b.Factor)
 		if b.MCStdErr > 0 {
@@ -114,7 +114,7 @@ func paramText(p map[string]float64) string {
 	sort.Strings(keys)
 	var parts []string
 	for _, k := range keys {
-		parts = append(parts, fmt.Sprintf("%s %.6g", k, p[k]))
+		parts = append(parts, fmt.Sprintf("%s %.6g", paramWord(k), p[k]))
 	}
 	return strings.Join(parts, ", ")
 }

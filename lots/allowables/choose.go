@@ -38,7 +38,7 @@ func chooseMethod(r *Result, opt Options) (string, error) {
 				decision = "lots differ: ANOVA method"
 			}
 			r.step("lot comparison (k-sample Anderson-Darling)", ks.Statistic, ks.Critical, decision,
-				fmt.Sprintf("A2akN %.4f against critical value %.4f at alpha %g (Scholz and Stephens 1987; %d lots, %d values; standardized %.3f, %s)",
+				fmt.Sprintf("k-sample Anderson-Darling statistic %.4f against critical value %.4f at alpha %g (Scholz and Stephens 1987; %d lots, %d values; standardized %.3f, %s)",
 					ks.Statistic, ks.Critical, opt.LotAlpha, ks.K, ks.N, ks.Standardized, pText(ks.PValue, ks.PValueNote)))
 			if ks.Differ {
 				if r.Lots < FewLotsANOVA {
@@ -124,10 +124,10 @@ func campaignWarnings(r *Result) {
 		r.warn("all values come from one lot: the bounds describe that lot, not the lot-to-lot variation of production")
 	}
 	if short := shortfall(r, MinLotsB, MinSpecimensB); short != "" {
-		r.warn("%s: common practice asks for at least %d lots and %d specimens for a B-basis value (CMH-17-1G Vol. 1 section 2.3, from memory)", short, MinLotsB, MinSpecimensB)
+		r.warn("%s: common practice asks for at least %d lots and %d specimens for a B-basis value (CMH-17-1G Vol. 1 section 2.3)", short, MinLotsB, MinSpecimensB)
 	}
 	if short := shortfall(r, MinLotsA, MinSpecimensA); short != "" {
-		r.warn("%s: common practice asks for at least %d lots and %d specimens for an A-basis value (CMH-17-1G Vol. 1 section 2.3, from memory; MMPDS asks for 100 observations from 10 lots for metals)", short, MinLotsA, MinSpecimensA)
+		r.warn("%s: common practice asks for at least %d lots and %d specimens for an A-basis value (CMH-17-1G Vol. 1 section 2.3; MMPDS asks for 100 observations from 10 lots for metals)", short, MinLotsA, MinSpecimensA)
 	}
 	min := float64(r.Min)
 	if a := float64(r.ABasis); !math.IsNaN(a) && a > min {
