@@ -3,8 +3,8 @@ package main
 import (
 	"fmt"
 	"io"
+	"slices"
 	"strconv"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -121,8 +121,13 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 	lt.Name, pt.Name = "lots", "limits"
 	ot := render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
 	ot.Name = "outliers"
+	var retests []string
 	for _, l := range r.Lots {
-		lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, strings.Join(l.Reasons, "; "))
+		why, retest := lotReasons(l, minSpecimens(r, l.Spec))
+		if retest != "" && !slices.Contains(retests, retest) {
+			retests = append(retests, retest)
+		}
+		lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, why)
 		for _, p := range l.Properties {
 			need := ""
 			switch {
@@ -146,6 +151,9 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 	lt.Note("%d lots: %d conforming, %d nonconforming, %d undecided, %d not judged.", len(r.Lots), c.Conforming, c.Nonconforming, c.Undecided, c.NotJudged)
 	for _, s := range r.Specs {
 		lt.Note("Specification %s rev %s (%s): content %g, confidence %g, at least %d specimens.", s.ID, s.Revision, s.Material, s.Content, s.Confidence, s.MinN)
+	}
+	for _, rt := range retests {
+		lt.Note("Retest: %s (for a lot that is not conforming).", rt)
 	}
 	lt.Note("Source %s, SHA-256 %s.", r.Source, r.Digest)
 	pt.Note("Method: %s.", r.Method)

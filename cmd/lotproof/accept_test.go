@@ -163,3 +163,36 @@ func TestRunAcceptDirect(t *testing.T) {
 		t.Errorf("csv output:\n%s", out.String())
 	}
 }
+
+// TestAcceptReasonsDecisiveFirst: the lot table says first why a lot did
+// not conform (the failing individual value, too few specimens), and the
+// retest allowance once under the table instead of in every row.
+func TestAcceptReasonsDecisiveFirst(t *testing.T) {
+	_, c, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "csv", "--table", "lots")
+	rows := csvRows(t, c)
+	why := map[string]string{}
+	for _, r := range rows {
+		why[r["lot"]] = r["reasons"]
+		if strings.Contains(r["reasons"], "retest") {
+			t.Errorf("lot %s repeats the retest rule: %s", r["lot"], r["reasons"])
+		}
+	}
+	if !strings.HasPrefix(why["C"], "tensile (min): 1 value(s) below the minimum 930 MPa: C-2 925 MPa") {
+		t.Errorf("C: %s", why["C"])
+	}
+	if !strings.HasPrefix(why["D"], "1 specimen, fewer than the 5 required; ") || !strings.HasPrefix(why["E"], "3 specimens, fewer than the 5 required; ") {
+		t.Errorf("D: %s\nE: %s", why["D"], why["E"])
+	}
+	if strings.Count(why["E"], "zero spread") != 1 {
+		t.Errorf("E repeats its reason per limit: %s", why["E"])
+	}
+	_, txt, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "table", "--table", "lots")
+	if strings.Count(txt, "retest") != 1 || !strings.Contains(txt, "Retest: TEST-1 rev A allows 1 retest(s) on 2 times the specimens") {
+		t.Errorf("retest rule not stated once:\n%s", txt)
+	}
+	// JSON keeps every reason.
+	_, j, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "json")
+	if !strings.Contains(j, "allows 1 retest(s) on 2 times the specimens (10 specimens)") {
+		t.Error("JSON lost the retest reason")
+	}
+}

@@ -321,7 +321,8 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	lotsT := render.NewTable("", "lot", "supplier", "verdict", "reasons")
 	for _, l := range acc.Lots {
 		if l.Verdict != acceptance.Conforming {
-			lotsT.Add(l.Lot, l.Supplier, l.Verdict, strings.Join(l.Reasons, "; "))
+			why, _ := lotReasons(l, minSpecimens(acc, l.Spec))
+			lotsT.Add(l.Lot, l.Supplier, l.Verdict, why)
 		}
 	}
 	if text {
