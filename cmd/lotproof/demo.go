@@ -271,7 +271,7 @@ func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db str
 			return nil, err
 		}
 	}
-	return trend.Compute(ctx, s, trend.Options{Baseline: demoBaseline})
+	return computeTrend(ctx, s, trend.Options{Baseline: demoBaseline})
 }
 
 func demoReducedRows(d *lots.Dataset, out output) []demoReduced {

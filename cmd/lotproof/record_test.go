@@ -4,9 +4,11 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -43,7 +45,7 @@ func TestRecordThenAgainThenConflict(t *testing.T) {
 		t.Fatal(err)
 	}
 	if r["specimens_new"] != 4.0 || r["lots_new"] != 2.0 || r["already_recorded"] != false || r["user"] != "tester" ||
-		r["imported_at"] != "2026-03-04T05:06:07Z" || r["schema_version"] != 2.0 || len(r["sha256"].(string)) != 64 || r["digest"] != nil {
+		r["imported_at"] != "2026-03-04T05:06:07Z" || r["schema_version"] != 3.0 || len(r["sha256"].(string)) != 64 || r["digest"] != nil {
 		t.Fatalf("first record: %s", out.String())
 	}
 	// Again: nothing changes, and it says so.
@@ -259,5 +261,39 @@ func TestConcurrentRecordProcesses(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestTrendKeepsEnteredUnit: a modulus entered in GPa is trended in GPa
+// (Msi in US units), as summary shows it, not in the stored MPa.
+// 1 Msi = 6.894757293168361 GPa (NIST SP 811 psi definition).
+func TestTrendKeepsEnteredUnit(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "m.db")
+	data := writeFile(t, "m.csv", "specimen,lot,material,tested,modulus [GPa],tensile [MPa]\n"+
+		"M-1,L1,Plate,2026-01-10,70.1,310\nM-2,L1,Plate,2026-01-10,70.5,312\nM-3,L2,Plate,2026-04-10,71.3,315\nM-4,L2,Plate,2026-04-10,70.9,311\n")
+	if code, _, errs := run(t, "", "record", data, "--db", db); code != 0 {
+		t.Fatalf("record: %s", errs)
+	}
+	for _, c := range []struct {
+		units, unit string
+		mean        float64
+	}{{"si", "GPa", 70.3}, {"us", "Msi", 70.3 / 6.894757293168361}} {
+		_, out, _ := run(t, "", "trend", "--db", db, "--property", "modulus", "--by", "material", "--format", "csv", "--units", c.units)
+		rows := csvRows(t, out)
+		if len(rows) != 2 || rows[0]["unit"] != c.unit {
+			t.Fatalf("%s:\n%s", c.units, out)
+		}
+		if m, _ := strconv.ParseFloat(rows[0]["mean"], 64); math.Abs(m-c.mean) > 1e-9*c.mean {
+			t.Errorf("%s: mean %s %s, want %g", c.units, rows[0]["mean"], c.unit, c.mean)
+		}
+		_, sum, _ := run(t, "", "summary", data, "--format", "csv", "--units", c.units)
+		if !strings.Contains(sum, ",modulus,"+c.unit+",") {
+			t.Errorf("summary and trend disagree on the unit:\n%s", sum)
+		}
+	}
+	// Tensile stays in MPa.
+	_, out, _ := run(t, "", "trend", "--db", db, "--property", "tensile", "--format", "csv")
+	if rows := csvRows(t, out); len(rows) == 0 || rows[0]["unit"] != "MPa" {
+		t.Errorf("tensile:\n%s", out)
 	}
 }

@@ -246,7 +246,7 @@ func runReport(o reportOptions, st streams) error {
 		if err != nil {
 			return usageError{err}
 		}
-		tr, err := trend.Compute(ctx, s, trend.Options{Limits: store.LimitsOf(specs)})
+		tr, err := computeTrend(ctx, s, trend.Options{Limits: store.LimitsOf(specs)})
 		in.TrendFrom = s.Where()
 		s.Close()
 		if err != nil {

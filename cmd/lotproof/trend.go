@@ -80,7 +80,7 @@ func runTrend(o trendOptions, st streams) error {
 		return usageError{err}
 	}
 	defer s.Close()
-	res, err := trend.Compute(ctx, s, o.Trend)
+	res, err := computeTrend(ctx, s, o.Trend)
 	if err != nil {
 		return err
 	}

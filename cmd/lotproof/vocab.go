@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -9,6 +10,8 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/render"
+	"lotproof/lots/store"
+	"lotproof/lots/trend"
 )
 
 // renameWeibullExact gives the exact Weibull factor the name allowables
@@ -47,4 +50,17 @@ func summaryJSON(w io.Writer, by lots.GroupBy, sum []lots.GroupSummary) error {
 		out[i] = append([]byte(`{"`+string(by)+`":`), raw[len(lotKey):]...)
 	}
 	return render.WriteJSON(w, out)
+}
+
+// computeTrend is trend.Compute with the units the properties were
+// entered in, so that Display shows each property as summary does.
+func computeTrend(ctx context.Context, s *store.Store, o trend.Options) (*trend.Result, error) {
+	res, err := trend.Compute(ctx, s, o)
+	if err != nil {
+		return nil, err
+	}
+	if res.EnteredUnits, err = s.EnteredUnits(ctx); err != nil {
+		return nil, err
+	}
+	return res, nil
 }

@@ -76,6 +76,9 @@ var migrations = []migration{
 		`CREATE INDEX specimens_lot ON specimens (lot)`,
 		`ALTER TABLE imports ADD COLUMN tool_version TEXT NOT NULL DEFAULT ''`,
 	}},
+	{3, "the unit each property was entered in, for display (moduli in GPa stay in GPa)", []string{
+		`ALTER TABLE properties ADD COLUMN entered_unit TEXT NOT NULL DEFAULT ''`,
+	}},
 }
 
 // Latest is the schema version this build writes.

@@ -287,6 +287,8 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		}
 		if q != p.Unit.Quantity.String() || u != unitOf[i] {
 			conf.add(Conflict{Kind: "property", Key: p.Name, Field: "quantity", Stored: q + " [" + u + "]", Incoming: p.Unit.Quantity.String() + " [" + p.Unit.Symbol + "]"})
+		} else if err := s.noteEnteredUnit(ctx, tx, p.Name, p.Unit.Symbol); err != nil {
+			return nil, err
 		}
 	}
 

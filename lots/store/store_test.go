@@ -343,17 +343,25 @@ func TestMigrateFromVersion1(t *testing.T) {
 			raw.Close()
 			s := open(t, url)
 			v, err := s.SchemaVersion(ctx)
-			if err != nil || v != 2 || Latest() != 2 {
+			if err != nil || v != 3 || Latest() != 3 {
 				t.Fatalf("version after migrating: %d (%v), latest %d", v, err, Latest())
 			}
 			lv, err := s.LotData(ctx, Filter{})
 			if err != nil || len(lv) != 1 || lv[0].Lot != "OLD-1" || len(lv[0].Values) != 2 || lv[0].Values[0] != 1001.5 || lv[0].Values[1] != 998.25 {
 				t.Fatalf("old data after migrating: %+v (%v)", lv, err)
 			}
+			// Units entered before version 3 are unknown, and filled in by
+			// the next import of the property.
+			if eu, err := s.EnteredUnits(ctx); err != nil || len(eu) != 0 {
+				t.Fatalf("entered units after migrating: %v %v", eu, err)
+			}
 			// The migrated database takes new imports with verdicts.
 			d := dataset(t, "new.csv", synth("N", 1, 3, 4))
 			if _, err := s.Record(ctx, d, []Verdict{{Lot: "N-L00000", Spec: "S", Verdict: "conforming"}}, nil, Meta{Time: t0, User: "u"}); err != nil {
 				t.Fatal(err)
+			}
+			if eu, err := s.EnteredUnits(ctx); err != nil || eu["tensile"] != "MPa" {
+				t.Fatalf("entered units after an import: %v %v", eu, err)
 			}
 			im, err := s.Imports(ctx)
 			if err != nil || len(im) != 2 || im[0].User != "old user" {
@@ -362,7 +370,7 @@ func TestMigrateFromVersion1(t *testing.T) {
 			// Opening again changes nothing.
 			s.Close()
 			s2 := open(t, url)
-			if v, _ := s2.SchemaVersion(ctx); v != 2 {
+			if v, _ := s2.SchemaVersion(ctx); v != 3 {
 				t.Fatalf("version on reopening %d", v)
 			}
 		})

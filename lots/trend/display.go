@@ -8,23 +8,30 @@ import (
 )
 
 // Display converts the result from the stored (internal) units into the
-// display units of the chosen system, in place.
+// display units of the chosen system, in place. A property's display unit
+// follows the unit it was entered in (EnteredUnits; a modulus entered in
+// GPa is shown in GPa, or Msi), as lotproof summary shows it.
 func (r *Result) Display(sys units.System) {
 	type conv struct {
 		sym string
 		f   func(float64) float64
 	}
-	cache := map[string]conv{}
-	get := func(stored string) conv {
-		if c, ok := cache[stored]; ok {
+	cache := map[[2]string]conv{}
+	get := func(stored, property string) conv {
+		key := [2]string{stored, property}
+		if c, ok := cache[key]; ok {
 			return c
 		}
 		c := conv{sym: stored, f: func(v float64) float64 { return v }}
 		if u, err := units.Parse(stored); err == nil {
-			d := u.Display(sys)
+			shown := u
+			if e, err := units.Parse(r.EnteredUnits[property]); err == nil && r.EnteredUnits[property] != "" && units.Compatible(e, u) {
+				shown = e
+			}
+			d := shown.Display(sys)
 			c = conv{sym: d.Symbol, f: func(v float64) float64 { return d.FromInternal(u.ToInternal(v)) }}
 		}
-		cache[stored] = c
+		cache[key] = c
 		return c
 	}
 	f := func(c conv, v *lots.Float) {
@@ -36,7 +43,7 @@ func (r *Result) Display(sys units.System) {
 	for i := range r.Periods {
 		p := &r.Periods[i]
 		unitOf[[3]string{p.Group, p.Material, p.Property}] = p.Unit
-		c := get(p.Unit)
+		c := get(p.Unit, p.Property)
 		p.Unit = c.sym
 		f(c, &p.Mean)
 		f(c, &p.SD)
@@ -44,7 +51,7 @@ func (r *Result) Display(sys units.System) {
 	}
 	for i := range r.Series {
 		s := &r.Series[i]
-		c := get(s.Unit)
+		c := get(s.Unit, s.Property)
 		s.Unit = c.sym
 		for _, v := range []*lots.Float{&s.Center, &s.MRBar, &s.Sigma, &s.Lower, &s.Upper, &s.SBar} {
 			f(c, v)
@@ -61,7 +68,7 @@ func (r *Result) Display(sys units.System) {
 		if s.Rule == "shift_welch" {
 			continue // p-value against α
 		}
-		c := get(unitOf[[3]string{s.Group, s.Material, s.Property}])
+		c := get(unitOf[[3]string{s.Group, s.Material, s.Property}], s.Property)
 		f(c, &s.Value)
 		f(c, &s.Limit)
 	}

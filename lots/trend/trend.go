@@ -115,17 +115,20 @@ type Series struct {
 
 // Result is the trend of every group, property and period.
 type Result struct {
-	By       string    `json:"by"`
-	Every    string    `json:"every"`
-	Since    lots.Text `json:"since"`    // null when not given
-	Until    lots.Text `json:"until"`    // null when not given
-	Baseline lots.Text `json:"baseline"` // null: each series' first DefaultBaseline periods
-	Periods  []Period  `json:"periods"`
-	Signals  []Signal  `json:"signals"`
-	Series   []Series  `json:"series"`
-	Methods  []string  `json:"methods"`
-	Warnings []string  `json:"warnings"`
-	Caution  string    `json:"caution"`
+	By    string `json:"by"`
+	Every string `json:"every"`
+	// EnteredUnits maps a property to the unit it was entered in
+	// (store.EnteredUnits), for Display; not written.
+	EnteredUnits map[string]string `json:"-"`
+	Since        lots.Text         `json:"since"`    // null when not given
+	Until        lots.Text         `json:"until"`    // null when not given
+	Baseline     lots.Text         `json:"baseline"` // null: each series' first DefaultBaseline periods
+	Periods      []Period          `json:"periods"`
+	Signals      []Signal          `json:"signals"`
+	Series       []Series          `json:"series"`
+	Methods      []string          `json:"methods"`
+	Warnings     []string          `json:"warnings"`
+	Caution      string            `json:"caution"`
 }
 
 // Caution is shown with every trend.
