@@ -5,6 +5,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"sort"
@@ -39,13 +40,14 @@ const demoReport = "lotproof-report-demo.html"
 func newDemoCmd(g *globalOptions, st streams) *cobra.Command {
 	o := demoOptions{Report: demoReport, Seed: allowables.DefaultOptions().Seed}
 	var noReport bool
+	var dataDir string
 	cmd := &cobra.Command{
 		Use:   "demo",
 		Short: "Run the whole job on the embedded, invented demo scenario",
 		Long: `demo runs lotproof's pipeline on an invented scenario embedded in the binary.
 Orrin Hollow Pumpworks buys steel bar and aluminium plate from five invented
 mills; over eight quarters it received 64 lots, and two more arrived as raw
-tensile records. The demo
+tensile records (66 lots in all). The demo
 
   1. reduces the raw tensile records to specimen properties,
   2. judges every lot against the invented purchase specifications,
@@ -55,9 +57,15 @@ tensile records. The demo
      flagging drift,
   5. writes a one-file HTML report (default ` + demoReport + `).
 
+The input files are embedded in lotproof (named demo/... in the output);
+--data-dir DIR writes them out, e.g. to run lotproof accept on them.
+
 Every company, material, specification and number in it is invented.`,
 		Args: exactArgs(0, "no arguments"),
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
+			if dataDir != "" {
+				return writeDemoData(dataDir, st)
+			}
 			if noReport {
 				o.Report = ""
 			}
@@ -70,6 +78,7 @@ Every company, material, specification and number in it is invented.`,
 	cmd.Flags().StringVar(&o.Report, "report", o.Report, "write the HTML report to this file")
 	cmd.Flags().BoolVar(&noReport, "no-report", false, "do not write the HTML report")
 	cmd.Flags().StringVar(&o.DB, "db", "", "record the demo history in this SQLite file (kept, e.g. for lotproof serve --db FILE)")
+	cmd.Flags().StringVar(&dataDir, "data-dir", "", "write the demo's input files (results, specifications, raw records) into this new folder, to try the other commands on them, and exit")
 	cmd.Flags().StringVar(&o.Date, "date", "", "date written into the results (default: today, or SOURCE_DATE_EPOCH)")
 	cmd.Flags().Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bounds")
 	addTableFlag(cmd, &o.Table, "reduced", "lots", "allowables", "signals")
@@ -406,3 +415,48 @@ func demoTables(res demoResult, text bool) []*render.Table {
 // demoBaseline is the period the demo's control limits come from: the five
 // quarters before Coldmere Forge's drift begins.
 const demoBaseline = "2025-Q1..2026-Q1"
+
+// writeDemoData writes the embedded demo files into dir, which must not
+// exist yet (nothing is overwritten), and says what to try with them.
+func writeDemoData(dir string, st streams) error {
+	if _, err := os.Stat(dir); err == nil {
+		return usageError{fmt.Errorf("--data-dir %s exists: give a new folder (nothing is overwritten)", dir)}
+	}
+	fsys := demo.FS()
+	var files []string
+	err := fs.WalkDir(fsys, ".", func(p string, e fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if e.IsDir() || strings.HasSuffix(p, "README.md") {
+			return nil
+		}
+		files = append(files, p)
+		return nil
+	})
+	if err != nil {
+		return err
+	}
+	for _, p := range files {
+		b, err := fs.ReadFile(fsys, p)
+		if err != nil {
+			return err
+		}
+		dst := filepath.Join(dir, filepath.FromSlash(p))
+		if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
+			return usageError{err}
+		}
+		if err := os.WriteFile(dst, b, 0o644); err != nil {
+			return usageError{err}
+		}
+	}
+	fmt.Fprintf(st.Out, "wrote %d demo files into %s; for example:\n"+
+		"  lotproof accept %s --spec %s --spec %s\n"+
+		"  lotproof reduce %s | lotproof accept - %s --spec %s\n"+
+		"  lotproof allowables %s\n",
+		len(files), dir,
+		filepath.Join(dir, "receipts.csv"), filepath.Join(dir, "spec-steel-bar.yaml"), filepath.Join(dir, "spec-plate.yaml"),
+		filepath.Join(dir, "raw"), filepath.Join(dir, "raw-hardness.csv"), filepath.Join(dir, "spec-plate.yaml"),
+		filepath.Join(dir, "campaign.csv"))
+	return nil
+}

@@ -149,3 +149,34 @@ func TestSeveralResultsFiles(t *testing.T) {
 		t.Errorf("stdin twice: exit %d %s", code, errs)
 	}
 }
+
+// TestReducePipeWithHardness: the README's pipe on the demo's own files,
+// written out by demo --data-dir: the records lack hardness, which the
+// plate specification names; the hardness file is combined by specimen id.
+func TestReducePipeWithHardness(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "demo-data")
+	if code, out, errs := run(t, "", "demo", "--data-dir", dir); code != 0 || !strings.Contains(out, "wrote 15 demo files") {
+		t.Fatalf("demo --data-dir: exit %d %s %s", code, out, errs)
+	}
+	if code, _, errs := run(t, "", "demo", "--data-dir", dir); code != exitInput || !strings.Contains(errs, "exists") {
+		t.Errorf("existing folder: exit %d %s", code, errs)
+	}
+	code, red, errs := run(t, "", "reduce", filepath.Join(dir, "raw"))
+	if code != 0 {
+		t.Fatalf("reduce: %s", errs)
+	}
+	plate := filepath.Join(dir, "spec-plate.yaml")
+	code, _, errs = run(t, red, "accept", "-", "--spec", plate)
+	if code != exitInput || !strings.Contains(errs, `names property "hardness"`) || !strings.Contains(errs, "further results file") {
+		t.Errorf("without hardness: exit %d %s", code, errs)
+	}
+	code, out, errs := run(t, red, "accept", "-", filepath.Join(dir, "raw-hardness.csv"), "--spec", plate, "--format", "csv")
+	rows := csvRows(t, out)
+	if code != 0 || len(rows) != 2 || rows[0]["verdict"] != "conforming" || rows[1]["verdict"] != "conforming" {
+		t.Errorf("with hardness: exit %d %s\n%s", code, errs, out)
+	}
+	code, out, _ = run(t, "", "reduce", "--record-format")
+	if code != 0 || !strings.Contains(out, "@record") || !strings.Contains(out, "force unit") {
+		t.Errorf("--record-format: exit %d %.100s", code, out)
+	}
+}

@@ -32,12 +32,14 @@ func init() { register(newReduceCmd) }
 
 func newReduceCmd(g *globalOptions, st streams) *cobra.Command {
 	var o reduceOptions
+	var showFormat bool
 	cmd := &cobra.Command{
 		Use:   "reduce PATH...",
 		Short: "Reduce raw tensile records to specimen properties",
 		Long: `reduce reads raw tensile records (lotproof's record format: a metadata block
-and force against extension or strain; see lots/reduce/FORMAT.md) from files,
-folders of *.rec files, or - for standard input, and computes per specimen:
+and force against extension or strain; lotproof reduce --record-format
+describes it) from files, folders of *.rec files, or - for standard input,
+and computes per specimen:
 modulus (least-squares elastic line, ASTM E111), 0.2 % offset proof strength
 (ISO 6892-1 Rp0.2, ASTM E8/E8M offset method), upper and lower yield strength
 (ISO 6892-1 ReH, ReL), tensile strength, uniform elongation (Ag), elongation
@@ -53,18 +55,23 @@ cannot be determined is left empty with a warning on standard error.
 Computed properties support, and never replace, the governing test standard,
 specification, regulations and licensed engineering judgement.`,
 		Args: func(cmd *cobra.Command, args []string) error {
-			if len(args) == 0 {
+			if len(args) == 0 && !showFormat {
 				return usageError{fmt.Errorf("reduce expects one or more record files or folders (or -); see lotproof reduce --help")}
 			}
 			return nil
 		},
 		RunE: withOutput(g, st, &o.Out, func(args []string) error {
+			if showFormat {
+				_, err := io.WriteString(st.Out, reduce.FormatDoc)
+				return err
+			}
 			o.Paths = args
 			return runReduce(o, st)
 		}),
 	}
 	cmd.Flags().StringVar(&o.ModulusRange, "modulus-range", "", "stress range LO:HI of the elastic fit in MPa (ksi with --units us); default: found automatically")
 	cmd.Flags().Float64Var(&o.OffsetPercent, "offset", 0.2, "plastic strain of the proof strength in %")
+	cmd.Flags().BoolVar(&showFormat, "record-format", false, "print the description of the raw record format and exit")
 	cmd.Flags().StringVar(&o.PlotDir, "plot-dir", "", "write a stress-strain plot SPECIMEN.svg per specimen into this folder")
 	return cmd
 }

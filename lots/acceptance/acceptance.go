@@ -144,7 +144,7 @@ func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error
 		for _, l := range s.Limits {
 			i := d.Property(l.Property)
 			if i < 0 {
-				ps = append(ps, lots.Problem{Where: l.Where, What: fmt.Sprintf("%s names property %q but %s has no such column (columns: %s)", s.Label(), l.Property, d.Source, strings.Join(d.PropertyNames(), ", ")), Fix: "add the column to the data or correct the property name"})
+				ps = append(ps, lots.Problem{Where: l.Where, What: fmt.Sprintf("%s names property %q but %s has no such column (columns: %s)", s.Label(), l.Property, d.Source, strings.Join(d.PropertyNames(), ", ")), Fix: "add the column to the data, or name the file that holds it as a further results file (files are combined by specimen id: lotproof accept tensile.csv hardness.csv --spec ...), or correct the property name"})
 				continue
 			}
 			if pu := d.Properties[i].Unit; !units.Compatible(pu, l.Unit) {
