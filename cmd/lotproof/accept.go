@@ -138,13 +138,13 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 			case p.NeededN > 0:
 				need = strconv.Itoa(p.NeededN)
 			}
-			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.N(float64(p.Limit), 4), strconv.Itoa(p.N),
-				render.N(float64(p.Mean), 4), render.N(float64(p.SD), 3), render.N(float64(p.Extreme), 4),
-				render.N(float64(p.MeanBound), 4), render.F(float64(p.K), 3), render.N(float64(p.ToleranceBound), 4),
-				render.N(float64(p.FractionEstimate), 3), render.N(float64(p.FractionUpper), 3), p.Verdict, need)
+			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.Given(float64(p.Limit)), strconv.Itoa(p.N),
+				render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Extreme)),
+				render.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), render.Stat(float64(p.ToleranceBound)),
+				render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
-			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.N(float64(f.Value), 4), render.F(f.MNR, 3), render.F(f.Critical, 3), strconv.Itoa(f.Line))
+			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
 		}
 	}
 	c := r.Counts

@@ -162,13 +162,13 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 	}
 	t := render.NewTable("", "property", "condition", "unit", ">n", ">lots", "method", ">A-basis", ">B-basis", ">pooled A", ">pooled B", ">mean", ">sd", ">min")
 	for _, r := range rep.Results {
-		pa, pb := render.N(math.NaN(), 4), render.N(math.NaN(), 4)
+		pa, pb := render.Stat(math.NaN()), render.Stat(math.NaN())
 		if r.Pooled != nil {
-			pa, pb = render.N(float64(r.Pooled.ABasis), 4), render.N(float64(r.Pooled.BBasis), 4)
+			pa, pb = render.Stat(float64(r.Pooled.ABasis)), render.Stat(float64(r.Pooled.BBasis))
 		}
 		t.Add(r.Property, r.Condition, r.Unit, strconv.Itoa(r.N), strconv.Itoa(r.Lots), r.Method,
-			render.N(float64(r.ABasis), 4), render.N(float64(r.BBasis), 4), pa, pb,
-			render.N(float64(r.Mean), 4), render.N(float64(r.SD), 3), render.N(float64(r.Min), 4))
+			render.Stat(float64(r.ABasis)), render.Stat(float64(r.BBasis)), pa, pb,
+			render.Stat(float64(r.Mean)), render.Spread(float64(r.SD)), render.Given(float64(r.Min)))
 	}
 	t.Name = "values"
 	if !text {
@@ -193,8 +193,8 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 			}
 			d.Add(s.Step, s.Decision, render.N(float64(s.Statistic), 4), render.N(float64(s.Threshold), 4))
 		}
-		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", render.N(float64(r.ABasis), 5), render.N(float64(r.A.Factor), 4),
-			render.N(float64(r.BBasis), 5), render.N(float64(r.B.Factor), 4), r.Method)
+		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", render.Stat(float64(r.ABasis)), render.Factor(float64(r.A.Factor)),
+			render.Stat(float64(r.BBasis)), render.Factor(float64(r.B.Factor)), r.Method)
 		for _, wn := range r.Warnings {
 			d.Note("Warning: %s", wn)
 		}

@@ -318,8 +318,8 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	}
 	red := render.NewTable("", "specimen", "lot", ">modulus ["+u[0]+"]", ">proof ["+u[1]+"]", ">tensile ["+u[1]+"]", ">elongation ["+u[2]+"]")
 	for _, r := range res.Reduced {
-		red.Add(r.Specimen, r.Lot, render.N(float64(r.Modulus), 4), render.N(float64(r.Proof), 4),
-			render.N(float64(r.Tensile), 4), render.N(float64(r.Elongation), 3))
+		red.Add(r.Specimen, r.Lot, render.Given(float64(r.Modulus)), render.Given(float64(r.Proof)),
+			render.Given(float64(r.Tensile)), render.Given(float64(r.Elongation)))
 	}
 	if text {
 		red.Title = fmt.Sprintf("%s\nDate %s, seed %d\n\n1. Raw tensile records reduced", res.Scenario, res.Date, res.Seed)
@@ -345,7 +345,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 		var flagged []string
 		for _, l := range acc.Lots {
 			for _, f := range l.Outliers {
-				flagged = append(flagged, fmt.Sprintf("%s %s %s", f.Specimen, f.Property, render.N(float64(f.Value), 4)))
+				flagged = append(flagged, fmt.Sprintf("%s %s %s", f.Specimen, f.Property, render.Given(float64(f.Value))))
 			}
 		}
 		sort.Strings(flagged)

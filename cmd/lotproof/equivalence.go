@@ -280,8 +280,8 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		}
 		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k minimum", ">k mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {
-			ft.Add(strconv.Itoa(f.N), render.N(o.Alpha, 4), render.F(f.KMin, 4), render.F(f.KMean, 4), render.F(f.AlphaEach, 5),
-				render.N(float64(f.MinLimit), 5), render.N(float64(f.MeanLimit), 5), res.Unit)
+			ft.Add(strconv.Itoa(f.N), render.N(o.Alpha, 4), render.Factor(f.KMin), render.Factor(f.KMean), render.F(f.AlphaEach, 5),
+				render.Stat(float64(f.MinLimit)), render.Stat(float64(f.MeanLimit)), res.Unit)
 		}
 		ft.Note("Baseline mean %.5g %s, SD %.4g %s.", res.BaselineMean, res.Unit, res.BaselineSD, res.Unit)
 		ft.Note("Method: %s.", res.Method)
@@ -290,8 +290,8 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		if d != nil {
 			lt := render.NewTable("Lots ("+res.Property+")", string(by), "supplier", ">n", ">mean", ">min", ">mean limit", ">min limit", "verdict", "reasons")
 			for _, l := range res.Lots {
-				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), render.N(float64(l.Mean), 5), render.N(float64(l.Min), 5),
-					render.N(float64(l.MeanLimit), 5), render.N(float64(l.MinLimit), 5), l.Verdict, joinReasons(l.Reasons))
+				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), render.Stat(float64(l.Mean)), render.Given(float64(l.Min)),
+					render.Stat(float64(l.MeanLimit)), render.Stat(float64(l.MinLimit)), l.Verdict, joinReasons(l.Reasons))
 			}
 			lt.Note("Source %s, SHA-256 %s.", res.Source, res.Digest)
 			lt.Name = "lots"

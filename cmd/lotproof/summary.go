@@ -65,7 +65,7 @@ func summaryTable(by string, sum []lots.GroupSummary) *render.Table {
 	for _, g := range sum {
 		for _, p := range g.Properties {
 			t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
-				render.N(float64(p.Mean), 4), render.N(float64(p.SD), 3), render.N(float64(p.Min), 4), render.N(float64(p.Max), 4))
+				render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Min)), render.Given(float64(p.Max)))
 		}
 	}
 	return t

@@ -8,7 +8,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"lotproof/lots"
 	"lotproof/lots/render"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
@@ -101,7 +100,6 @@ func runTrend(o trendOptions, st streams) error {
 }
 
 func trendTables(r *trend.Result) []*render.Table {
-	num := func(v lots.Float, sig int) render.Number { return render.N(float64(v), sig) }
 	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
 		">lots", ">specimens", ">mean", ">sd", ">minimum", ">Ppk", ">Ppk lower bound", ">ppm below minimum", ">judged", ">rejected")
 	for _, p := range r.Periods {
@@ -110,7 +108,8 @@ func trendTables(r *trend.Result) []*render.Table {
 			base = "yes"
 		}
 		pt.Add(p.Group, p.Material, p.Property, p.Unit, p.Period, base, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
-			num(p.Mean, 5), num(p.SD, 3), num(p.Minimum, 5), num(p.Ppk, 3), num(p.PpkLower, 3), num(p.PPMBelow, 3),
+			render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Minimum)), render.Factor(float64(p.Ppk)),
+			render.Factor(float64(p.PpkLower)), render.PPM(float64(p.PPMBelow)),
 			strconv.Itoa(p.LotsJudged), strconv.Itoa(p.LotsRejected))
 	}
 	if r.Baseline != "" {
@@ -121,7 +120,7 @@ func trendTables(r *trend.Result) []*render.Table {
 	pt.Notes = append(pt.Notes, r.Caution)
 	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
 	for _, s := range r.Signals {
-		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, num(s.Value, 5), num(s.Limit, 5), s.Detail)
+		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, render.Stat(float64(s.Value)), render.Stat(float64(s.Limit)), s.Detail)
 	}
 	if len(r.Signals) == 0 {
 		st.Note("no signals")
@@ -136,7 +135,8 @@ func trendTables(r *trend.Result) []*render.Table {
 			notes += n
 		}
 		lt.Add(s.Group, s.Material, s.Property, s.Unit, s.BaselineFrom+".."+s.BaselineTo, strconv.Itoa(s.BaselineLots),
-			num(s.Center, 5), num(s.MRBar, 3), num(s.Sigma, 3), num(s.Lower, 5), num(s.Upper, 5), num(s.SBar, 3), notes)
+			render.Stat(float64(s.Center)), render.Spread(float64(s.MRBar)), render.Spread(float64(s.Sigma)), render.Stat(float64(s.Lower)),
+			render.Stat(float64(s.Upper)), render.Spread(float64(s.SBar)), notes)
 	}
 	for _, m := range r.Methods {
 		lt.Note("%s", m)

@@ -106,3 +106,33 @@ func TestAuditTextInWords(t *testing.T) {
 		}
 	}
 }
+
+// TestOneNumberRule: a quantity prints the same way in every command's
+// table (render.Given, Stat, Spread, Factor, Fraction, PPM): the same lot
+// mean in summary and accept; a limit as given (930, not 930.0); tiny
+// fractions as "<0.000001", not in exponent form.
+func TestOneNumberRule(t *testing.T) {
+	field := func(out, lot, prop string, col int) string {
+		for _, line := range strings.Split(out, "\n") {
+			f := strings.Fields(line)
+			if len(f) > col && f[0] == lot && f[1] == prop {
+				return f[col]
+			}
+		}
+		return ""
+	}
+	_, sum, _ := run(t, "", "summary", testLots, "--format", "table")
+	_, acc, _ := run(t, "", "accept", testLots, "--spec", testSpec, "--format", "table", "--table", "limits")
+	// summary: lot supplier(2 words) property unit n missing mean ...
+	sumMean := field(strings.ReplaceAll(sum, "Test Supplier", "Test_Supplier"), "B", "Test_Supplier", 6)
+	accMean := field(acc, "B", "tensile", 6)
+	if sumMean == "" || sumMean != accMean || sumMean != "958.6" {
+		t.Errorf("lot B tensile mean: summary %q, accept %q, want 958.6 in both (mean of 955, 981, 940, 968, 949)", sumMean, accMean)
+	}
+	if got := field(acc, "B", "tensile", 4); got != "930" {
+		t.Errorf("limit shown as %q, want 930", got)
+	}
+	if regexp.MustCompile(`\de-\d`).MatchString(acc) || !strings.Contains(acc, "<0.000001") {
+		t.Errorf("fractions in exponent form or without the floor:\n%s", acc)
+	}
+}

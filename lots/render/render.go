@@ -66,8 +66,10 @@ func NewTable(title string, columns ...string) *Table {
 // carries it in full.
 type Number struct {
 	V     float64
-	Digit int  // significant digits (Sig) or decimals (Fixed) shown to people
-	Fixed bool // Digit counts decimals, not significant digits
+	Digit int     // significant digits (Sig) or decimals (Fixed) shown to people
+	Fixed bool    // Digit counts decimals, not significant digits
+	Trim  bool    // drop trailing zeros after the decimal point
+	Floor float64 // positive values below Floor show as "<Floor" (0: none)
 }
 
 // N is a number shown with sig significant digits and written in full to CSV.
@@ -78,10 +80,19 @@ func F(v float64, dec int) Number { return Number{V: v, Digit: dec, Fixed: true}
 
 // Text is the number as people read it ("-" when missing).
 func (n Number) Text() string {
-	if n.Fixed {
-		return Fixed(n.V, n.Digit)
+	if s, ok := floorText(n.V, n.Floor); ok {
+		return s
 	}
-	return Num(n.V, n.Digit)
+	var s string
+	if n.Fixed {
+		s = Fixed(n.V, n.Digit)
+	} else {
+		s = Num(n.V, n.Digit)
+	}
+	if n.Trim {
+		s = trimZeros(s)
+	}
+	return s
 }
 
 // Exact is the shortest text that reads back (strconv.ParseFloat) to exactly

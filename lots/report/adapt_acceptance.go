@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"lotproof/lots/acceptance"
+	"lotproof/lots/render"
 	"lotproof/lots/units"
 	"lotproof/stats"
 )
@@ -97,8 +98,8 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 	out := &Table{Title: "Values flagged by the maximum normed residual test (kept)", Columns: Cols(r.GroupBy, "specimen", "property", ">value", ">MNR", ">critical", ">line")}
 	for _, l := range r.Lots {
 		for _, o := range l.Outliers {
-			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, num(float64(o.Value), 5)+unitSuffix(o.Unit),
-				num(o.MNR, 4), num(o.Critical, 4)), Cell{Text: strconv.Itoa(o.Line)}))
+			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, render.Given(float64(o.Value)).Text()+unitSuffix(o.Unit),
+				render.Factor(o.MNR).Text(), render.Factor(o.Critical).Text()), Cell{Text: strconv.Itoa(o.Line)}))
 		}
 	}
 	if len(out.Rows) > 0 {
@@ -143,9 +144,9 @@ func limitTable(r *acceptance.Result, title string, keep func(verdict string) bo
 			if p.Side == "max" {
 				side = "max "
 			}
-			row := Cells(l.Lot, p.Property, side+num(float64(p.Limit), 4)+unitSuffix(p.Unit), strconv.Itoa(p.N),
-				num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Extreme), 4), num(float64(p.K), 4),
-				num(float64(p.ToleranceBound), 4), num(float64(p.FractionEstimate), 2)+" / "+num(float64(p.FractionUpper), 2))
+			row := Cells(l.Lot, p.Property, side+render.Given(float64(p.Limit)).Text()+unitSuffix(p.Unit), strconv.Itoa(p.N),
+				render.Stat(float64(p.Mean)).Text(), render.Spread(float64(p.SD)).Text(), render.Given(float64(p.Extreme)).Text(), render.Factor(float64(p.K)).Text(),
+				render.Stat(float64(p.ToleranceBound)).Text(), render.Fraction(float64(p.FractionEstimate)).Text()+" / "+render.Fraction(float64(p.FractionUpper)).Text())
 			beyond := Cell{Text: strconv.Itoa(p.Beyond)}
 			if p.Beyond > 0 {
 				beyond.Status = Fail

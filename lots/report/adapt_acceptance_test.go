@@ -140,7 +140,7 @@ func TestAcceptanceSection(t *testing.T) {
 	if !found {
 		t.Errorf("summary does not name the rejected lot: %+v", summary)
 	}
-	// Limits in ksi: 590 MPa = 85.57 ksi (1 ksi = 6.894757 MPa, NIST SP 811).
+	// Limits in ksi: 590 MPa = 85.5723 ksi (1 ksi = 6.894757 MPa, NIST SP 811), 6 significant digits (render.Given).
 	props := sec.Blocks[1].(*Table)
 	if len(props.Rows) != 3 {
 		t.Errorf("%d rows of lots not conforming, want 3 (every lot of this layout data is not conforming)", len(props.Rows))
@@ -149,8 +149,8 @@ func TestAcceptanceSection(t *testing.T) {
 	if len(app.Rows) != 3 {
 		t.Errorf("appendix has %d rows, want 3", len(app.Rows))
 	}
-	if !strings.Contains(props.Rows[0][2].Text, "min 85.57 ksi") {
-		t.Errorf("limit cell %q, want min 85.57 ksi", props.Rows[0][2].Text)
+	if !strings.Contains(props.Rows[0][2].Text, "min 85.5723 ksi") {
+		t.Errorf("limit cell %q, want min 85.5723 ksi", props.Rows[0][2].Text)
 	}
 	figs := 0
 	for _, b := range sec.Blocks {

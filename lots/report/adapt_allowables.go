@@ -8,6 +8,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/allowables"
+	"lotproof/lots/render"
 	"lotproof/lots/units"
 )
 
@@ -43,7 +44,7 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 		}
 		row := Cells(r.Property+unitText(r.Unit), condText(r.Condition), strconv.Itoa(r.N), strconv.Itoa(r.Lots), method)
 		row = append(row, basisCell(r.ABasis), basisCell(r.BBasis))
-		row = append(row, Cells(num(float64(r.Mean), 5), num(float64(r.SD), 4), num(float64(r.Min), 5), num(float64(r.Max), 5))...)
+		row = append(row, Cells(render.Stat(float64(r.Mean)).Text(), render.Spread(float64(r.SD)).Text(), render.Given(float64(r.Min)).Text(), render.Given(float64(r.Max)).Text())...)
 		t.Rows = append(t.Rows, row)
 		summary = append(summary, KV{Key: "Design values, " + r.Property + condSuffix(r.Condition),
 			Value:  "B-basis " + basisText(r.BBasis, r.Unit) + "; A-basis " + basisText(r.ABasis, r.Unit),
@@ -74,8 +75,8 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 				{Key: "conditions", Value: strings.Join(p.Conditions, ", ")},
 				{Key: "n, degrees of freedom", Value: strconv.Itoa(p.N) + ", " + strconv.Itoa(p.DF)},
 				{Key: "pooled CV", Value: num(float64(p.CV), 4)},
-				{Key: "A-basis (factor)", Value: num(float64(p.ABasis), 5) + " (" + num(float64(p.AFactor), 5) + ")"},
-				{Key: "B-basis (factor)", Value: num(float64(p.BBasis), 5) + " (" + num(float64(p.BFactor), 5) + ")"},
+				{Key: "A-basis (factor)", Value: render.Stat(float64(p.ABasis)).Text() + " (" + render.Factor(float64(p.AFactor)).Text() + ")"},
+				{Key: "B-basis (factor)", Value: render.Stat(float64(p.BBasis)).Text() + " (" + render.Factor(float64(p.BFactor)).Text() + ")"},
 			}})
 		}
 		if len(r.Outliers) > 0 {
@@ -184,14 +185,14 @@ func basisCell(f lots.Float) Cell {
 	if !isNum(f) {
 		return Cell{Text: "-", Status: Undecided}
 	}
-	return Cell{Text: num(float64(f), 5)}
+	return Cell{Text: render.Stat(float64(f)).Text()}
 }
 
 func basisText(f lots.Float, unit string) string {
 	if !isNum(f) {
 		return "not defined"
 	}
-	return num(float64(f), 5) + unitSuffix(unit)
+	return render.Stat(float64(f)).Text() + unitSuffix(unit)
 }
 
 func condText(c string) string {

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"lotproof/lots/render"
 	"lotproof/lots/trend"
 )
 
@@ -34,7 +35,7 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 		if p.Baseline {
 			period += " (baseline)"
 		}
-		ppk := Cell{Text: num(float64(p.Ppk), 3)}
+		ppk := Cell{Text: render.Factor(float64(p.Ppk)).Text()}
 		switch v := float64(p.Ppk); {
 		case math.IsNaN(v):
 		case v < 1:
@@ -49,8 +50,8 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 			rej.Status = Fail
 		}
 		row := Cells(p.Group, p.Property+unitText(p.Unit), period, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
-			num(float64(p.Mean), 4), num(float64(p.SD), 3), num(float64(p.Minimum), 4))
-		row = append(row, ppk, Cell{Text: num(float64(p.PpkLower), 3)}, Cell{Text: num(float64(p.PPMBelow), 3)}, rej)
+			render.Stat(float64(p.Mean)).Text(), render.Spread(float64(p.SD)).Text(), render.Given(float64(p.Minimum)).Text())
+		row = append(row, ppk, Cell{Text: render.Factor(float64(p.PpkLower)).Text()}, Cell{Text: render.PPM(float64(p.PPMBelow)).Text()}, rej)
 		t.Rows = append(t.Rows, row)
 	}
 	t.Note = fmt.Sprintf("Ppk marks: %s at or above %.2f, %s from 1.00 to %.2f, %s below 1.00 (common practice). The lower bound is the one-sided confidence bound the trend states in its methods.",
@@ -61,7 +62,7 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 		st := &Table{Title: "Signals", Columns: Cols("rule", r.By, "property", "period", "lot", ">value", ">limit", "detail")}
 		for _, s := range r.Signals {
 			row := []Cell{{Text: s.Rule, Status: Warn}}
-			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, num(float64(s.Value), 4), num(float64(s.Limit), 4), s.Detail)...)
+			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, render.Stat(float64(s.Value)).Text(), render.Stat(float64(s.Limit)).Text(), s.Detail)...)
 			st.Rows = append(st.Rows, row)
 		}
 		sec.Blocks = append(sec.Blocks, st)
@@ -181,7 +182,7 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 			}
 			out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
 				Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.%s",
-					s.BaselineFrom, s.BaselineTo, s.BaselineLots, num(float64(s.Center), 4), num(float64(s.Lower), 4), num(float64(s.Upper), 4), s.Unit, leftText(left))})
+					s.BaselineFrom, s.BaselineTo, s.BaselineLots, render.Stat(float64(s.Center)), render.Stat(float64(s.Lower)), render.Stat(float64(s.Upper)), s.Unit, leftText(left))})
 		}
 		labels, vals, lo, hi, signals, left := chart("ewma", func(p trend.Point) float64 { return float64(p.EWMA) },
 			func(p trend.Point) float64 { return float64(p.EWMALow) }, func(p trend.Point) float64 { return float64(p.EWMAHigh) })
@@ -269,7 +270,7 @@ func periodPlots(r *trend.Result) ([]Block, error) {
 		}
 		var lines []RefLine
 		if !math.IsNaN(minimum) {
-			lines = append(lines, RefLine{Label: "spec minimum " + num(minimum, 4) + unitSuffix(unit), Value: minimum})
+			lines = append(lines, RefLine{Label: "spec minimum " + render.Given(minimum).Text() + unitSuffix(unit), Value: minimum})
 		}
 		svg, err := TrendPlot(TrendData{Title: "Period mean: " + title, Quantity: "mean " + k.property, Unit: unit, Periods: ps, Series: ms, Lines: lines})
 		if err != nil {
