@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	stdhtml "html"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -71,4 +72,62 @@ func TestDemoReportInBrowser(t *testing.T) {
 		t.Errorf("no screenshot rendered: %v", err)
 	}
 	t.Logf("demo report: %d figures, %d sections, %d PDF pages", len(figures), sections, pages)
+	// Printed, every table keeps all its columns: on Chromium's default
+	// paper (Letter) and on A4, the narrower, every word of every table
+	// cell is in the PDF's text.
+	tablesPrinted(t, "Letter", dom, filepath.Join(out, "page.pdf"))
+	a4 := filepath.Join(dir, "demo-a4.html")
+	html, err := os.ReadFile(page)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(a4, bytes.Replace(html, []byte("</head>"), []byte("<style>@page{size:A4}</style></head>"), 1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	outA4 := filepath.Join(dir, "render-a4")
+	cmd = exec.Command("bash", filepath.Join("..", "..", ".ci", "browser-check"), a4, outA4)
+	msg.Reset()
+	cmd.Stdout, cmd.Stderr = &msg, &msg
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("browser-check A4: %v\n%s", err, msg.String())
+	}
+	tablesPrinted(t, "A4", dom, filepath.Join(outA4, "page.pdf"))
+}
+
+// tablesPrinted checks that every word of the tables in the loaded DOM is
+// in the printed PDF's text (pdftotext) as often: a column cut off at the
+// page edge, or a word cut in two, is missing there.
+func tablesPrinted(t *testing.T, paper string, dom []byte, pdf string) {
+	t.Helper()
+	txt, err := exec.Command("pdftotext", pdf, "-").Output()
+	if err != nil {
+		t.Fatalf("pdftotext: %v", err)
+	}
+	word := regexp.MustCompile(`[A-Za-z]{3,}`)
+	count := func(b []byte) map[string]int {
+		m := map[string]int{}
+		for _, w := range word.FindAll(b, -1) {
+			m[string(w)]++
+		}
+		return m
+	}
+	tag := regexp.MustCompile(`<[^>]+>`)
+	var cells []byte
+	for _, tb := range regexp.MustCompile(`(?s)<table[^>]*>.*?</table>`).FindAll(dom, -1) {
+		tb = regexp.MustCompile(`(?s)<caption.*?</caption>`).ReplaceAll(tb, nil)
+		cells = append(cells, tag.ReplaceAll(tb, []byte(" "))...)
+	}
+	inTables, inPDF := count([]byte(stdhtml.UnescapeString(string(cells)))), count(txt)
+	missing := 0
+	for w, n := range inTables {
+		if inPDF[w] < n {
+			missing++
+			if missing <= 10 {
+				t.Errorf("%s: %q is %d times in the tables but %d times in the PDF", paper, w, n, inPDF[w])
+			}
+		}
+	}
+	if len(inTables) < 50 {
+		t.Errorf("%s: only %d distinct words in the tables: the check found no tables", paper, len(inTables))
+	}
 }

@@ -100,7 +100,7 @@ const pageTemplate = `<!DOCTYPE html>
 {{- else if eq .Kind "table"}}
 {{- $t := .Table}}
 <div class="tablewrap">
-<table>
+<table{{if gt (len $t.Columns) 7}} class="wide"{{end}}>
 <caption><span class="label">Table {{$t.Num}}</span> {{$t.Title}}</caption>
 <thead><tr>{{range $t.Columns}}<th{{if .Numeric}} class="n"{{end}} scope="col">{{.Label}}</th>{{end}}</tr></thead>
 <tbody>
@@ -180,14 +180,17 @@ p{margin:.4rem 0 .6rem}
 .major{margin-top:2rem}
 .major h2 .num{display:inline-block;min-width:1.6rem;color:var(--band)}
 .intro{color:var(--muted)}
-.tablewrap{margin:.8rem 0 1.1rem;overflow-x:auto}
+.tablewrap{margin:.8rem 0 1.1rem}
 table{border-collapse:collapse;font-size:.85rem;width:100%}
 caption{caption-side:top;text-align:left;font-weight:700;padding:.2rem 0 .35rem}
 th,td{padding:.2rem .5rem;text-align:left;vertical-align:top;border-bottom:1px solid var(--rule)}
 thead th{border-top:1.5px solid var(--ink);border-bottom:1px solid var(--ink);font-weight:700}
 tbody tr:last-child td{border-bottom:1.5px solid var(--ink)}
 th.n,td.n{text-align:right;font-variant-numeric:tabular-nums}
-td.n,td.st-ok,td.st-fail,td.st-undecided,td.st-warn,td:first-child{white-space:nowrap}
+td.n,td.st-ok,td.st-fail,td.st-undecided,td.st-warn{white-space:nowrap}
+td{overflow-wrap:break-word}
+table.wide{font-size:.76rem}
+table.wide th,table.wide td{padding:.15rem .3rem}
 .tnote{font-size:.8rem;color:var(--muted);margin-top:.3rem}
 .label{font-weight:700;margin-right:.3rem}
 .mark{display:inline-block;min-width:1em;font-weight:700;text-align:center}
@@ -219,6 +222,10 @@ html{font-size:10pt}
 h2,h3,caption{break-after:avoid}
 tr{break-inside:avoid}
 thead{display:table-header-group}
+table{font-size:8.5pt}
+table.wide{font-size:7pt}
+table.wide th,table.wide td{padding:.08rem .18rem}
+th,td{padding:.12rem .3rem}
 .toc a::after{content:""}
 td.st-ok,td.st-fail,td.st-undecided,td.st-warn{background:none}
 .cautions{background:none}
