@@ -95,6 +95,10 @@ func TestPlotDeterministic(t *testing.T) {
 	if !bytes.HasPrefix(a, []byte("<?xml")) || !bytes.Contains(a, []byte("<svg")) || !bytes.Contains(a, []byte("offset line")) {
 		t.Errorf("not an SVG plot: %.200s", a)
 	}
+	// The report's sans-serif, not gonum's default serif.
+	if bytes.Contains(a, []byte("Serif")) || !bytes.Contains(a, []byte("Liberation Sans")) {
+		t.Errorf("stress-strain plot not in the report's sans-serif font")
+	}
 	if _, err := PlotSVG(&Result{}); err == nil {
 		t.Error("empty result plotted")
 	}

@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -26,6 +27,10 @@ func PlotSVG(r *Result) ([]byte, error) {
 		return nil, errors.New("plot: the result has no curve")
 	}
 	p := plot.New()
+	for _, f := range []*font.Font{&p.Title.TextStyle.Font, &p.X.Label.TextStyle.Font, &p.Y.Label.TextStyle.Font,
+		&p.X.Tick.Label.Font, &p.Y.Tick.Label.Font, &p.Legend.TextStyle.Font} {
+		f.Typeface, f.Variant = "Liberation", "Sans" // the report's sans-serif, not gonum's default serif
+	}
 	p.Title.Text = r.ID
 	p.X.Label.Text = "engineering strain [%]"
 	p.Y.Label.Text = "engineering stress [MPa]"

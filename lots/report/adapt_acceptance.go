@@ -170,18 +170,11 @@ func ocFigure(s acceptance.SpecRef) (Block, error) {
 	if err != nil {
 		return nil, err
 	}
-	var ps []float64
-	for i := 1; i <= 120; i++ {
-		ps = append(ps, 0.4*float64(i)/120)
-	}
-	paV, err := OCVariables(n, k, ps)
+	ps, paV, paA, err := ocRange(n, k, s.Content)
 	if err != nil {
 		return nil, err
 	}
-	paA, err := OCAttributes(n, 0, ps)
-	if err != nil {
-		return nil, err
-	}
+
 	label := s.ID
 	if s.Revision != "" {
 		label += " rev " + s.Revision
@@ -191,12 +184,12 @@ func ocFigure(s acceptance.SpecRef) (Block, error) {
 			{Label: fmt.Sprintf("variables: n = %d, accept if mean - %.3f SD >= limit", n, k), P: ps, Pa: paV},
 			{Label: fmt.Sprintf("attributes: n = %d, accept with no value beyond the limit", n), P: ps, Pa: paA},
 		},
-		Lines: []RefLine{{Label: "1 - content = " + num(1-s.Content, 6), Value: 1 - s.Content}}})
+		Lines: []RefLine{{Label: "1 - content = " + num(1-s.Content, 6), Value: 1 - s.Content}}, LogX: true})
 	if err != nil {
 		return nil, err
 	}
 	return &Figure{Title: "Operating characteristic of " + label + " at " + strconv.Itoa(n) + " specimens", SVG: svg,
-		Caption: "Probability of accepting a lot against its true fraction beyond the limit, for one limit and normal values. The variables curve passes through Pa = 1 - confidence = " + num(1-s.Confidence, 6) + " at a fraction of 1 - content = " + num(1-s.Content, 6) + "."}, nil
+		Caption: "Probability of accepting a lot against its true fraction beyond the limit (logarithmic axis, over the range where the plans go from accepting to rejecting), for one limit and normal values. The variables curve passes through Pa = 1 - confidence = " + num(1-s.Confidence, 6) + " at a fraction of 1 - content = " + num(1-s.Content, 6) + "."}, nil
 }
 
 // OCVariables is the operating characteristic of the one-sided variables
@@ -252,4 +245,38 @@ func OCAttributes(n, c int, ps []float64) ([]float64, error) {
 		}
 	}
 	return out, nil
+}
+
+// ocRange is the grid of fractions an OC figure shows, with the variables
+// (n, k) and attributes (n, c = 0) acceptance probabilities.
+func ocRange(n int, k, content float64) (ps, paV, paA []float64, err error) {
+	// A logarithmic grid of fractions from 1e-10 to 0.8, cut to where the
+	// plans work: from just before either curve leaves Pa = 0.995 to just
+	// after both fall below 0.005, and always including 1 - content.
+	var all []float64
+	for i := 0; i <= 240; i++ {
+		all = append(all, 1e-10*math.Pow(0.8/1e-10, float64(i)/240))
+	}
+	allV, err := OCVariables(n, k, all)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	allA, err := OCAttributes(n, 0, all)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	from, to := 0, len(all)-1
+	for from < len(all)-1 && math.Min(allV[from+1], allA[from+1]) > 0.995 {
+		from++
+	}
+	for to > 0 && math.Max(allV[to-1], allA[to-1]) < 0.005 {
+		to--
+	}
+	for from > 0 && all[from] > 0.5*(1-content) {
+		from--
+	}
+	for to < len(all)-1 && all[to] < 2*(1-content) {
+		to++
+	}
+	return all[from : to+1], allV[from : to+1], allA[from : to+1], nil
 }

@@ -118,7 +118,7 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 		return nil, nil
 	}
 	name := s.Group + ", " + s.Property
-	sig := map[string]map[int]bool{"ind": {}, "ewma": {}}
+	sig := map[string]map[int]bool{"ind": {}, "ewma": {}, "s": {}}
 	index := map[string]int{}
 	for i, p := range s.Points {
 		index[p.Lot] = i
@@ -136,6 +136,8 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 			sig["ind"][i] = true
 		case sg.Rule == "ewma":
 			sig["ewma"][i] = true
+		case sg.Rule == "s_chart":
+			sig["s"][i] = true
 		}
 	}
 	// chart gathers the points with a finite value (a lot left out of a
@@ -194,6 +196,21 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 			}
 			out = append(out, &Figure{Title: "EWMA chart of lot means, " + name, SVG: svg,
 				Caption: "Limits widen to their asymptote over the first lots. Circled: lots where the EWMA left its limits." + leftText(left)})
+		}
+	}
+	// The S chart of the lot SDs, whose signals the table lists.
+	if !math.IsNaN(float64(s.SBar)) {
+		labels, vals, lo, hi, signals, left := chart("s", func(p trend.Point) float64 { return float64(p.SD) },
+			func(p trend.Point) float64 { return float64(p.SLower) }, func(p trend.Point) float64 { return float64(p.SUpper) })
+		if len(vals) > 1 {
+			svg, err := ControlChart(ChartData{Title: "Lot SDs: " + name, XLabel: "lot, in test order", Quantity: "lot SD " + s.Property, Unit: s.Unit,
+				Labels: labels, Values: vals, Centre: float64(s.SBar), Lower: lo, Upper: hi, Signals: signals, Name: "lot SD"})
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, &Figure{Title: "S chart of lot SDs, " + name, SVG: svg,
+				Caption: fmt.Sprintf("Centre line the mean lot SD of the baseline, %s %s; limits for each lot's size. Circled: lots whose SD left its limits.%s",
+					render.Spread(float64(s.SBar)), s.Unit, leftText(left))})
 		}
 	}
 	return out, nil
@@ -272,6 +289,9 @@ func periodPlots(r *trend.Result) ([]Block, error) {
 		if !math.IsNaN(minimum) {
 			lines = append(lines, RefLine{Label: "spec minimum " + render.Given(minimum).Text() + unitSuffix(unit), Value: minimum})
 		}
+		if len(ps) < 2 {
+			continue // one period: the table says it all, a chart of one point does not
+		}
 		svg, err := TrendPlot(TrendData{Title: "Period mean: " + title, Quantity: "mean " + k.property, Unit: unit, Periods: ps, Series: ms, Lines: lines})
 		if err != nil {
 			return nil, err
@@ -279,7 +299,7 @@ func periodPlots(r *trend.Result) ([]Block, error) {
 		out = append(out, &Figure{Title: "Mean by " + r.Every + " and " + r.By + ", " + title, SVG: svg,
 			Caption: "Mean of every specimen tested in the period; a gap is a period without lots."})
 		if anyPpk {
-			svg, err := TrendPlot(TrendData{Title: "Period Ppk: " + title, Quantity: "Ppk (lower)", Periods: ps, Series: ks,
+			svg, err := TrendPlot(TrendData{Title: "Period Ppk: " + title, Quantity: "Ppk (point estimate)", Periods: ps, Series: ks,
 				Lines: []RefLine{{Label: fmt.Sprintf("Ppk %.2f", PpkTarget), Value: PpkTarget}, {Label: "Ppk 1.00", Value: 1}}})
 			if err != nil {
 				return nil, err

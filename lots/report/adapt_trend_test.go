@@ -85,8 +85,11 @@ func TestTrendSection(t *testing.T) {
 	if (nanEWMA > 0) != (leftOut > 0) {
 		t.Errorf("%d points without an EWMA value, %d captions saying lots are left out", nanEWMA, leftOut)
 	}
-	if want := 2*len(r.Series) + 2; figs != want {
-		t.Errorf("%d figures, want %d (2 per series + mean and Ppk trend)", figs, want)
+	if want := 2*len(r.Series) + sCharts(r, false) + 2; figs != want {
+		t.Errorf("%d figures, want %d (individuals and EWMA per series, S charts, mean and Ppk trend)", figs, want)
+	}
+	if sCharts(r, false) == 0 {
+		t.Error("no series has an S chart")
 	}
 	if len(r.Signals) > 0 && signalled == 0 {
 		t.Errorf("%d signals but no chart marks any", len(r.Signals))
@@ -128,7 +131,7 @@ func TestTrendSection(t *testing.T) {
 			figs++
 		}
 	}
-	if want := 2*signalled + 2; figs != want {
+	if want := 2*signalled + sCharts(r, true) + 2; figs != want {
 		t.Errorf("signalled series only: %d figures, want %d", figs, want)
 	}
 	doc := &Document{Title: "trend", Sections: []Section{sec}}
@@ -140,4 +143,28 @@ func TestTrendSection(t *testing.T) {
 		t.Error("group name not escaped")
 	}
 	dumpIfAsked(t, "trend.html", b.Bytes())
+}
+
+// sCharts counts the series that get an S chart: a baseline mean SD and
+// more than one lot with an SD (only signalled series when signalledOnly).
+func sCharts(r *trend.Result, signalledOnly bool) int {
+	n := 0
+	for _, s := range r.Series {
+		if signalledOnly && !hasSignal(r, s) {
+			continue
+		}
+		if math.IsNaN(float64(s.SBar)) {
+			continue
+		}
+		sds := 0
+		for _, p := range s.Points {
+			if !math.IsNaN(float64(p.SD)) {
+				sds++
+			}
+		}
+		if sds > 1 {
+			n++
+		}
+	}
+	return n
 }

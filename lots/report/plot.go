@@ -81,6 +81,8 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 	p.X.Tick.Label.Font.Size = vg.Points(8.5)
 	p.Y.Tick.Label.Font.Size = vg.Points(8.5)
 	p.Legend.TextStyle.Font.Size = vg.Points(8.5)
+	p.X.Tick.Marker = plainTicks{}
+	p.Y.Tick.Marker = plainTicks{}
 	p.Legend.Top = true
 	p.Legend.Padding = vg.Points(1.5)
 	p.Title.Padding = vg.Points(6)
@@ -779,6 +781,7 @@ type OCData struct {
 	Title  string
 	Curves []OCCurve
 	Lines  []RefLine // vertical lines at fractions nonconforming (e.g. AQL, LTPD), values 0..1
+	LogX   bool      // fraction axis on a logarithmic scale (all fractions positive)
 }
 
 // OCPlot draws operating characteristic curves (Pa against lot fraction
@@ -829,6 +832,20 @@ func OCPlot(d OCData) ([]byte, error) {
 		xmax = math.Max(xmax, 100*r.Value)
 	}
 	p.X.Min, p.X.Max = 0, xmax
+	if d.LogX {
+		xmin := math.Inf(1)
+		for _, c := range d.Curves {
+			for _, v := range c.P {
+				if v <= 0 {
+					return nil, fmt.Errorf("OC plot %q: a logarithmic axis needs positive fractions (got %g)", d.Title, v)
+				}
+				xmin = math.Min(xmin, 100*v)
+			}
+		}
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = logPercentTicks{}
+		p.X.Min = xmin
+	}
 	p.Y.Min, p.Y.Max = 0, 1.02
 	return renderSVG(p, plotWidth, plotHeight)
 }
