@@ -19,7 +19,8 @@ const Stylesheet = css
 func EmbedSVG(svg []byte, prefix string) ([]byte, error) { return embedSVG(svg, prefix) }
 
 // SeriesFigures draws the individuals chart and the EWMA chart of lot
-// means of one trend series, with the report's titles and captions.
+// means and the S chart of lot SDs of one trend series, with the report's
+// titles and captions.
 func SeriesFigures(r *trend.Result, s trend.Series) ([]*Figure, error) {
 	blocks, err := seriesCharts(r, s)
 	if err != nil {

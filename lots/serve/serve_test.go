@@ -113,7 +113,8 @@ func TestPages(t *testing.T) {
 				t.Errorf("supplier page: %d lots of %d, %d series", len(sp.Lots), sp.LotsTotal, len(sp.Series))
 			}
 			code, page, _ = get(t, s, "/supplier/"+url.PathEscape("Brindle Works"))
-			if code != 200 || strings.Count(page, "<figure") != 4 || strings.Count(page, "<svg") < 4 {
+			// Per series: individuals, EWMA and S chart (as in the report).
+			if code != 200 || strings.Count(page, "<figure") != 6 || strings.Count(page, "<svg") < 6 {
 				t.Errorf("supplier page %d: %d figures", code, strings.Count(page, "<figure"))
 			}
 			if c, _, _ := get(t, s, "/supplier/Nobody"); c != 404 {
