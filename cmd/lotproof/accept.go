@@ -123,7 +123,7 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 	ot.Name = "outliers"
 	var retests []string
 	for _, l := range r.Lots {
-		why, retest := lotReasons(l, minSpecimens(r, l.Spec))
+		why, retest := acceptance.DecisiveReasons(l, r.MinSpecimens(l.Spec))
 		if retest != "" && !slices.Contains(retests, retest) {
 			retests = append(retests, retest)
 		}

@@ -330,7 +330,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	lotsT := render.NewTable("", "lot", "supplier", "verdict", "reasons")
 	for _, l := range acc.Lots {
 		if l.Verdict != acceptance.Conforming {
-			why, _ := lotReasons(l, minSpecimens(acc, l.Spec))
+			why, _ := acceptance.DecisiveReasons(l, acc.MinSpecimens(l.Spec))
 			lotsT.Add(l.Lot, l.Supplier, l.Verdict, why)
 		}
 	}

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -77,19 +78,26 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 		sec.Blocks = append(sec.Blocks, props)
 	}
 
-	var reasons []string
+	var reasons, retests []string
 	for _, l := range r.Lots {
 		if l.Verdict == acceptance.Conforming {
 			continue
 		}
-		for _, why := range l.Reasons {
+		why, retest := acceptance.DecisiveReasons(l, r.MinSpecimens(l.Spec))
+		if why != "" {
 			reasons = append(reasons, l.Lot+" ("+l.Verdict+"): "+why)
+		}
+		if retest != "" && !slices.Contains(retests, retest) {
+			retests = append(retests, retest)
 		}
 		for _, p := range l.Properties {
 			if p.Verdict == acceptance.Undecided && p.NeededN > 0 {
 				reasons = append(reasons, fmt.Sprintf("%s: %s would need %d specimens in all to decide at the observed mean and SD", l.Lot, p.Property, p.NeededN))
 			}
 		}
+	}
+	for _, rt := range retests {
+		reasons = append(reasons, "Retest: "+rt+" (for a lot that is not conforming).")
 	}
 	if len(reasons) > 0 {
 		sec.Blocks = append(sec.Blocks, List{Title: "Reasons", Items: reasons})

@@ -7,9 +7,12 @@ import (
 	"strings"
 	"testing"
 
+	"lotproof/lots"
 	"lotproof/lots/acceptance"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
+	"lotproof/lots/units"
+	"lotproof/spec"
 )
 
 // TestTickLabels: at least three labelled ticks on a short axis, and labels
@@ -119,5 +122,40 @@ func TestTrendChartsNeedTwoPeriods(t *testing.T) {
 	}
 	if !found {
 		t.Error("no Ppk chart")
+	}
+}
+
+// TestReasonsStateRetestOnce: the report's reasons give each lot's decisive
+// reason and the retest allowance once, not in every lot's line.
+func TestReasonsStateRetestOnce(t *testing.T) {
+	d, err := lots.ReadFile("../../testdata/acceptance/lots.csv", lots.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sp, err := spec.ReadFiles([]string{"../../testdata/acceptance/spec-test.yaml"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := acceptance.Judge(d, sp, lots.ByLot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sec, _, err := AcceptanceSection(r, units.SI)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var items []string
+	for _, b := range sec.Blocks {
+		if l, ok := b.(List); ok && l.Title == "Reasons" {
+			items = l.Items
+		}
+	}
+	all := strings.Join(items, "\n")
+	if strings.Count(all, "retest") != 1 || !strings.Contains(all, "Retest: TEST-1 rev A allows 1 retest(s)") {
+		t.Errorf("retest rule not stated once:\n%s", all)
+	}
+	if !strings.Contains(all, "C (nonconforming): tensile (min): 1 value(s) below the minimum 930 MPa: C-2 925 MPa") ||
+		!strings.Contains(all, "D (undecided): 1 specimen, fewer than the 5 required") {
+		t.Errorf("decisive reasons missing:\n%s", all)
 	}
 }

@@ -1,25 +1,23 @@
-package main
+package acceptance
 
 import (
 	"fmt"
 	"regexp"
 	"strings"
-
-	"lotproof/lots/acceptance"
 )
 
 // retestRule matches the retest allowance a lot's reasons end with; the
 // tables state it once per specification instead of in every row.
 var retestRule = regexp.MustCompile(`^(.+ allows \d+ retest\(s\) on \d+ times the specimens) \(\d+ specimens\)$`)
 
-// lotReasons words why a lot got its verdict for a table: the decisive
-// reason first (for each limit that set the verdict, its property, side and
-// first reason, plus a shortfall in specimens when that is not the first),
-// then the lot's other reasons; the retest allowance is left out and
-// returned separately.
-func lotReasons(l acceptance.LotResult, minN int) (text, retest string) {
+// DecisiveReasons words why a lot got its verdict, for a table or a list:
+// the decisive reason first (too few specimens; for each limit that set the
+// verdict, its property, side and first reason, one reason given once for
+// several limits), then the lot's other reasons; the retest allowance is
+// left out and returned separately, to be stated once.
+func DecisiveReasons(l LotResult, minN int) (text, retest string) {
 	var out []string
-	if l.Verdict == acceptance.Nonconforming || l.Verdict == acceptance.Undecided {
+	if l.Verdict == Nonconforming || l.Verdict == Undecided {
 		if l.N < minN {
 			word := "specimens"
 			if l.N == 1 {
@@ -57,9 +55,9 @@ func lotReasons(l acceptance.LotResult, minN int) (text, retest string) {
 	return strings.Join(out, "; "), retest
 }
 
-// minSpecimens is the fewest specimens the lot's specification asks for (0
+// MinSpecimens is the fewest specimens the lot's specification asks for (0
 // when the lot was not judged).
-func minSpecimens(r *acceptance.Result, label string) int {
+func (r *Result) MinSpecimens(label string) int {
 	for _, s := range r.Specs {
 		if s.ID+" rev "+s.Revision == label {
 			return s.MinN
