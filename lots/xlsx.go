@@ -114,7 +114,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 		}
 		if h.testedCol >= 0 {
 			if dates == nil {
-				dates = newXLSXDates(book, sheet)
+				dates = newXLSXDates(book, sheet, size)
 			}
 			cols[h.testedCol] = dates.cell(row, h.testedCol+1, cols[h.testedCol])
 		}

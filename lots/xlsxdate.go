@@ -18,11 +18,20 @@ type xlsxDates struct {
 	book     *excelize.File
 	sheet    string
 	use1904  bool
+	off      bool         // workbook too large to look cell styles up
 	isDateID map[int]bool // style id -> has a date number format
 }
 
-func newXLSXDates(book *excelize.File, sheet string) *xlsxDates {
-	x := &xlsxDates{book: book, sheet: sheet, isDateID: map[int]bool{}}
+// xlsxDateStyleMax is the largest workbook (bytes) whose date cells are
+// read as dates: a cell's number format is only reachable through
+// excelize's in-memory copy of the whole worksheet, which the streaming
+// read of larger workbooks avoids. Above it, date cells are refused like
+// any other number in the tested column (write the dates as text, or save
+// as CSV).
+const xlsxDateStyleMax = 16 << 20
+
+func newXLSXDates(book *excelize.File, sheet string, size int64) *xlsxDates {
+	x := &xlsxDates{book: book, sheet: sheet, isDateID: map[int]bool{}, off: size > xlsxDateStyleMax}
 	if p, err := book.GetWorkbookProps(); err == nil && p.Date1904 != nil {
 		x.use1904 = *p.Date1904
 	}
@@ -35,6 +44,9 @@ func newXLSXDates(book *excelize.File, sheet string) *xlsxDates {
 // may be 20250201 typed as a number, and the row check refuses it). A time
 // of day is dropped.
 func (x *xlsxDates) cell(row, col int, raw string) string {
+	if x.off {
+		return raw
+	}
 	v, err := strconv.ParseFloat(strings.TrimSpace(raw), 64)
 	if err != nil || v < 0 || v > 2958465 || math.IsNaN(v) { // 2958465: 9999-12-31
 		return raw

@@ -105,3 +105,21 @@ func TestIsDateFormat(t *testing.T) {
 		}
 	}
 }
+
+// TestXLSXDatesLargeWorkbook: above xlsxDateStyleMax the cell styles are
+// not looked up (that would load the whole worksheet), so a date cell stays
+// a number and the row check refuses it.
+func TestXLSXDatesLargeWorkbook(t *testing.T) {
+	p := dateBook(t, false, []float64{45689}, 14, "")
+	book, err := excelize.OpenFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer book.Close()
+	if got := newXLSXDates(book, "Sheet1", 1<<20).cell(2, 3, "45689"); got != "2025-02-01" {
+		t.Errorf("small workbook: %q", got)
+	}
+	if got := newXLSXDates(book, "Sheet1", xlsxDateStyleMax+1).cell(2, 3, "45689"); got != "45689" {
+		t.Errorf("large workbook: %q", got)
+	}
+}
