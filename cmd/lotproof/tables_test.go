@@ -87,3 +87,20 @@ func TestCSVOneTablePerStream(t *testing.T) {
 		t.Errorf("text tables:\n%.300s\n--\n%.300s", txt, lim)
 	}
 }
+
+// TestTrendByMaterialOneMaterialColumn: with --by material every table has
+// one material column (no repeated header).
+func TestTrendByMaterialOneMaterialColumn(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "m.db")
+	if code, _, errs := run(t, "", "record", testLots, "--db", db); code != 0 {
+		t.Fatal(errs)
+	}
+	for _, tb := range []string{"periods", "signals", "limits"} {
+		_, out, _ := run(t, "", "trend", "--db", db, "--by", "material", "--format", "csv", "--table", tb)
+		header := strings.SplitN(out, "\n", 2)[0]
+		if strings.Count(header, "material") != 1 {
+			t.Errorf("%s: header %q", tb, header)
+		}
+		oneTable(t, tb, out, map[string]string{"periods": "material,property", "signals": "rule,material,property", "limits": "material,property"}[tb])
+	}
+}

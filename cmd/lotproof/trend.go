@@ -144,6 +144,11 @@ func trendTables(r *trend.Result) []*render.Table {
 	for _, w := range r.Warnings {
 		lt.Note("warning: %s", w)
 	}
+	if r.By == "material" { // the group is the material: one column of it
+		pt.DropColumn(1)
+		st.DropColumn(2)
+		lt.DropColumn(1)
+	}
 	pt.Name, st.Name, lt.Name = "periods", "signals", "limits"
 	return []*render.Table{pt, st, lt}
 }

@@ -255,3 +255,20 @@ func Fixed(v float64, dec int) string {
 
 // String is Text, so a Number can be printed in a sentence.
 func (n Number) String() string { return n.Text() }
+
+// DropColumn removes column i (for example a column that repeats another
+// one in some layouts).
+func (t *Table) DropColumn(i int) {
+	if i < 0 || i >= len(t.Columns) {
+		return
+	}
+	cut := func(s []string) []string { return append(s[:i:i], s[i+1:]...) }
+	t.Columns = cut(t.Columns)
+	t.Right = append(t.Right[:i:i], t.Right[i+1:]...)
+	for r := range t.Rows {
+		t.Rows[r] = cut(t.Rows[r])
+		if r < len(t.Exact) && t.Exact[r] != nil {
+			t.Exact[r] = cut(t.Exact[r])
+		}
+	}
+}
