@@ -1,0 +1,58 @@
+package allowables
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"lotproof/lots"
+	"lotproof/lots/units"
+)
+
+// DesignValues, the procedure the campaign planner repeats, gives the same
+// design values and method as Analyze on the same data: normal and
+// Weibull-like campaigns with and without lot effects, one lot, small lots.
+func TestDesignValuesMatchesAnalyze(t *testing.T) {
+	u, _ := units.Parse("MPa")
+	rng := rand.New(rand.NewPCG(3, 4))
+	seen := map[string]bool{}
+	for trial := 0; trial < 60; trial++ {
+		k, m := 1+trial%6, 2+trial%7
+		lotSD := []float64{0, 3, 10}[trial%3]
+		var vals [][]float64
+		d := &lots.Dataset{Source: "sim", Properties: []lots.Property{{Name: "s", Unit: u}}}
+		for i := 0; i < k; i++ {
+			mu := 100 + lotSD*rng.NormFloat64()
+			var lot []float64
+			for j := 0; j < m; j++ {
+				v := mu + 5*rng.NormFloat64()
+				if trial%2 == 1 {
+					v = mu * math.Pow(-math.Log(1-rng.Float64()), 1.0/15)
+				}
+				lot = append(lot, v)
+				d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprint(i, "-", j), Lot: fmt.Sprint("L", i), Values: []float64{v}})
+			}
+			vals = append(vals, lot)
+		}
+		opt := DefaultOptions()
+		got, gerr := DesignValues(vals, opt)
+		rep, aerr := Analyze(d, opt, "x")
+		if (gerr != nil) != (aerr != nil) {
+			t.Fatalf("trial %d: errors differ: %v / %v", trial, gerr, aerr)
+		}
+		if aerr != nil {
+			continue
+		}
+		r := rep.Results[0]
+		same := func(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b)) }
+		if got.Method != r.Method || !same(got.A, float64(r.ABasis)) || !same(got.B, float64(r.BBasis)) {
+			t.Errorf("trial %d (%dx%d): DesignValues %s %g %g, Analyze %s %g %g", trial, k, m, got.Method, got.A, got.B, r.Method, float64(r.ABasis), float64(r.BBasis))
+		}
+		seen[r.Method] = true
+	}
+	if len(seen) < 3 {
+		t.Errorf("only methods %v were exercised", seen)
+	}
+	t.Logf("methods exercised: %v", seen)
+}
