@@ -21,10 +21,11 @@ const (
 	Nonparametric = "nonparametric"   // order statistic (rank from the binomial)
 	HansonKoop    = "hanson-koopmans" // Hanson-Koopmans (1964)
 	ANOVA         = "anova"           // between/within-lot variance components
+	RandomEffects = "random-effects"  // one-way random-effects generalized pivotal bound (never chosen automatically)
 )
 
 // AllMethods lists the methods a user may force, in documentation order.
-var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA}
+var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA, RandomEffects}
 
 // Level is a tolerance-bound level: content p at confidence gamma.
 type Level struct {

@@ -40,6 +40,11 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 		return hansonKoopmans(all, l)
 	case ANOVA:
 		return stats.ANOVALowerBound(values, l.Content, l.Confidence)
+	case RandomEffects:
+		// A named choice, never the automatic one: the lot-aware bound of
+		// the one-way random-effects model by generalized pivots
+		// (stats.RandomEffectsLowerBound), normal lots.
+		return stats.RandomEffectsLowerBound(values, l.Content, l.Confidence, stats.GPQOptions{Sims: opt.Sims, Seed: opt.Seed})
 	}
 	return stats.Bound{}, fmt.Errorf("unknown method %q", method)
 }
