@@ -158,3 +158,46 @@ func TestForcedNormalMatchesTheory(t *testing.T) {
 		}
 	}
 }
+
+// The named lot-aware method (the random-effects generalized pivotal
+// bound) keeps its confidence where the automatic procedure is known to
+// fall short: 5 lots of 6 with the between-lot SD equal to the within-lot
+// SD (README coverage table). 400 campaigns: allowed 0.95 - 3 SE.
+func TestRandomEffectsMethodCoverage(t *testing.T) {
+	if testing.Short() {
+		t.Skip("coverage simulation skipped with -short")
+	}
+	const runs = 400
+	c := config([]Plan{{5, 6}}, gridPopulation(Normal, 1), runs)
+	c.Procedure.Method = allowables.RandomEffects
+	r, err := Run(c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := r.Plans[0]
+	se := math.Sqrt(0.95 * 0.05 / runs)
+	t.Logf("5x6 SD ratio 1, random-effects: A %.3f B %.3f, median B ratio %.3f, methods %v", float64(p.CoverageA), float64(p.CoverageB), float64(p.MedianBRatio), p.Methods)
+	if float64(p.CoverageA) < 0.95-3*se || float64(p.CoverageB) < 0.95-3*se || p.Methods[allowables.RandomEffects] != runs {
+		t.Errorf("coverage A %.3f B %.3f (floor %.3f), methods %v", float64(p.CoverageA), float64(p.CoverageB), 0.95-3*se, p.Methods)
+	}
+}
+
+// The cheapest plan is the lowest-cost one reaching the target; none when
+// no plan does.
+func TestCheapest(t *testing.T) {
+	r := &Result{TargetRatio: 0.95, TargetBasis: "b", Plans: []PlanResult{
+		{Lots: 10, Specimens: 6, N: 60, Cost: 60, MedianBRatio: 0.97},
+		{Lots: 5, Specimens: 6, N: 30, Cost: 30, MedianBRatio: 0.955},
+		{Lots: 3, Specimens: 6, N: 18, Cost: 18, MedianBRatio: 0.94},
+	}}
+	if p := cheapest(r); p == nil || p.Lots != 5 {
+		t.Errorf("cheapest %v, want 5 x 6", p)
+	}
+	r.TargetRatio = 0.99
+	if p := cheapest(r); p != nil {
+		t.Errorf("cheapest %v, want none", p)
+	}
+	if q := Quantile([]float64{1, 2, 3, 4}, 0.1); math.Abs(q-1.3) > 1e-12 { // type 7: 1 + 0.3 (2 - 1)
+		t.Errorf("quantile %g", q)
+	}
+}
