@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"sort"
 	"strconv"
 	"strings"
@@ -14,6 +15,7 @@ import (
 	"lotproof/lots/campaign"
 	"lotproof/lots/progress"
 	"lotproof/lots/render"
+	"lotproof/lots/report"
 )
 
 type campaignOptions struct {
@@ -35,6 +37,7 @@ type campaignOptions struct {
 	TargetRatio  float64
 	TargetBasis  string
 	Workers      int
+	Figure       string // SVG file of the design value ratio against plan
 	Out          output
 }
 
@@ -96,6 +99,7 @@ assumes the population you describe.`,
 	f.Uint64Var(&o.Seed, "seed", o.Seed, "seed of the simulation")
 	f.Float64Var(&o.TargetRatio, "target-ratio", 0, "name the cheapest plan whose median design value reaches this fraction of the true percentile")
 	f.StringVar(&o.TargetBasis, "target-basis", o.TargetBasis, "the basis --target-ratio applies to: a or b")
+	f.StringVar(&o.Figure, "figure", "", "also write a figure (SVG) of the design value ratio against plan, with the 10th-90th percentile band")
 	f.IntVar(&o.Workers, "workers", 0, "parallel workers (default: all cores; the answer does not depend on it)")
 	return cmd
 }
@@ -186,7 +190,13 @@ func runCampaign(o campaignOptions, st streams) error {
 	if err != nil {
 		return usageError{err}
 	}
-	return emit(st.Out, func(w io.Writer) error {
+	var svg []byte
+	if o.Figure != "" {
+		if svg, err = campaignFigure(res); err != nil {
+			return err
+		}
+	}
+	if err := emit(st.Out, func(w io.Writer) error {
 		switch o.Out.Format {
 		case render.JSON:
 			return render.WriteJSON(w, res)
@@ -194,7 +204,33 @@ func runCampaign(o campaignOptions, st streams) error {
 			return campaignCSV(res).WriteCSV(w)
 		}
 		return campaignText(res).WriteText(w)
-	})
+	}); err != nil {
+		return err
+	}
+	if o.Figure != "" {
+		if err := os.WriteFile(o.Figure, svg, 0o644); err != nil {
+			return fmt.Errorf("writing the figure: %w", err)
+		}
+	}
+	return nil
+}
+
+// campaignFigure draws the A- and B-basis ratio per plan with the band
+// from the 10th to the 90th percentile of the simulated campaigns.
+func campaignFigure(res *campaign.Result) ([]byte, error) {
+	d := report.PlanBandData{Title: fmt.Sprintf("Design value against plan (%s population, CV %s%%)", res.Population.Dist, strconv.FormatFloat(100*res.Population.CV, 'g', 4, 64))}
+	a := report.PlanSeries{Name: "A-basis: median, 10th-90th percentile"}
+	b := report.PlanSeries{Name: "B-basis: median, 10th-90th percentile"}
+	for _, p := range res.Plans {
+		if math.IsNaN(float64(p.MedianBRatio)) || math.IsNaN(float64(p.MedianARatio)) {
+			continue // a plan without design values has nothing to draw
+		}
+		d.Labels = append(d.Labels, fmt.Sprintf("%dx%d", p.Lots, p.Specimens))
+		a.Median, a.Low, a.High = append(a.Median, float64(p.MedianARatio)), append(a.Low, float64(p.P10ARatio)), append(a.High, float64(p.P90ARatio))
+		b.Median, b.Low, b.High = append(b.Median, float64(p.MedianBRatio)), append(b.Low, float64(p.P10BRatio)), append(b.High, float64(p.P90BRatio))
+	}
+	d.Series = []report.PlanSeries{b, a}
+	return report.PlanBandPlot(d)
 }
 
 // full is a lossless number for machine output; empty when not defined.
@@ -208,7 +244,7 @@ func full(v float64) string {
 // campaignCSV is one table, one row per plan, every number in full.
 func campaignCSV(res *campaign.Result) *render.Table {
 	cols := []string{"lots", "specimens", "n", "runs", "cost", "coverage_a", "coverage_a_se", "coverage_b", "coverage_b_se",
-		"median_a_ratio", "p10_a_ratio", "median_b_ratio", "p10_b_ratio", "p90_b_ratio", "defined_a", "defined_b", "failed"}
+		"median_a_ratio", "p10_a_ratio", "p90_a_ratio", "median_b_ratio", "p10_b_ratio", "p90_b_ratio", "defined_a", "defined_b", "failed"}
 	for _, m := range allowables.AllMethods {
 		cols = append(cols, "method_"+strings.ReplaceAll(m, "-", "_"))
 	}
@@ -216,7 +252,7 @@ func campaignCSV(res *campaign.Result) *render.Table {
 	for _, p := range res.Plans {
 		row := []string{strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens), strconv.Itoa(p.N), strconv.Itoa(p.Runs), full(p.Cost),
 			full(float64(p.CoverageA)), full(float64(p.CoverageASE)), full(float64(p.CoverageB)), full(float64(p.CoverageBSE)),
-			full(float64(p.MedianARatio)), full(float64(p.P10ARatio)), full(float64(p.MedianBRatio)), full(float64(p.P10BRatio)),
+			full(float64(p.MedianARatio)), full(float64(p.P10ARatio)), full(float64(p.P90ARatio)), full(float64(p.MedianBRatio)), full(float64(p.P10BRatio)),
 			full(float64(p.P90BRatio)), strconv.Itoa(p.DefinedA), strconv.Itoa(p.DefinedB), strconv.Itoa(p.Failed)}
 		for _, m := range allowables.AllMethods {
 			row = append(row, strconv.Itoa(p.Methods[m]))

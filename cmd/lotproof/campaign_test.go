@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/csv"
 	"encoding/json"
+	"os"
 	"strings"
 	"testing"
 )
@@ -49,7 +50,11 @@ func TestCampaignCommand(t *testing.T) {
 	if code != 0 || err != nil || len(rows) != 3 || rows[0][0] != "lots" || rows[0][5] != "coverage_a" {
 		t.Errorf("csv (exit %d, %v):\n%s", code, err, out)
 	}
-	code, out, _ = run(t, "", append(args, "--format", "table")...)
+	fig := t.TempDir() + "/plan.svg"
+	code, out, _ = run(t, "", append(args, "--format", "table", "--figure", fig)...)
+	if svg, err := os.ReadFile(fig); err != nil || !strings.Contains(string(svg), "<svg") || !strings.Contains(string(svg), "5x6") {
+		t.Errorf("figure: %v", err)
+	}
 	if code != 0 || !strings.Contains(out, "never replace") || !strings.Contains(out, "Cheapest plan") {
 		t.Errorf("table:\n%s", out)
 	}

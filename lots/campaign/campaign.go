@@ -59,6 +59,7 @@ type PlanResult struct {
 
 	MedianARatio lots.Float `json:"median_a_ratio"` // median of A-basis value / true percentile
 	P10ARatio    lots.Float `json:"p10_a_ratio"`
+	P90ARatio    lots.Float `json:"p90_a_ratio"`
 	MedianBRatio lots.Float `json:"median_b_ratio"`
 	P10BRatio    lots.Float `json:"p10_b_ratio"`
 	P90BRatio    lots.Float `json:"p90_b_ratio"`
@@ -238,7 +239,7 @@ func summarize(p Plan, outs []outcome, c Config) PlanResult {
 	pr.CoverageB, pr.CoverageBSE = coverage(rb)
 	sort.Float64s(ra)
 	sort.Float64s(rb)
-	pr.MedianARatio, pr.P10ARatio = lots.Float(Quantile(ra, 0.5)), lots.Float(Quantile(ra, 0.1))
+	pr.MedianARatio, pr.P10ARatio, pr.P90ARatio = lots.Float(Quantile(ra, 0.5)), lots.Float(Quantile(ra, 0.1)), lots.Float(Quantile(ra, 0.9))
 	pr.MedianBRatio, pr.P10BRatio, pr.P90BRatio = lots.Float(Quantile(rb, 0.5)), lots.Float(Quantile(rb, 0.1)), lots.Float(Quantile(rb, 0.9))
 	return pr
 }
