@@ -267,7 +267,7 @@ func campaignText(res *campaign.Result) *render.Table {
 	pop := res.Population
 	t := render.NewTable(fmt.Sprintf("Campaign plans: %s population, mean %s, CV %s%%, %s%% of the variance between lots\n"+
 		"%d simulated campaigns per plan (seed %d), %s procedure; A-basis %g%%/%g%%, B-basis %g%%/%g%% content/confidence",
-		pop.Dist, render.Num(pop.Mean, 4), render.Num(100*pop.CV, 3), render.Num(100*pop.BetweenShare, 3), res.Runs, res.Seed, res.Method,
+		pop.Dist, strconv.FormatFloat(pop.Mean, 'g', 6, 64), strconv.FormatFloat(100*pop.CV, 'g', 4, 64), strconv.FormatFloat(100*pop.BetweenShare, 'g', 4, 64), res.Runs, res.Seed, res.Method,
 		100*res.A.Content, 100*res.A.Confidence, 100*res.B.Content, 100*res.B.Confidence),
 		">lots", ">per lot", ">specimens", ">cost", ">A coverage", ">B coverage", ">A median", ">B median", ">B 10th pct", "methods")
 	for _, p := range res.Plans {
@@ -323,7 +323,7 @@ func methodsText(p campaign.PlanResult) string {
 	var parts []string
 	for _, x := range ms {
 		pct := 100 * float64(x.n) / float64(p.Runs)
-		if pct < 0.5 {
+		if pct < 1 {
 			parts = append(parts, x.m+" <1%")
 			continue
 		}
