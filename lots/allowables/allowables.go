@@ -22,10 +22,11 @@ const (
 	HansonKoop    = "hanson-koopmans" // Hanson-Koopmans (1964)
 	ANOVA         = "anova"           // between/within-lot variance components
 	RandomEffects = "random-effects"  // one-way random-effects generalized pivotal bound (never chosen automatically)
+	LotAware      = "lot-aware"       // the automatic choice, lowered to the random-effects bound where that is lower (2+ lots)
 )
 
 // AllMethods lists the methods a user may force, in documentation order.
-var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA, RandomEffects}
+var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA, RandomEffects, LotAware}
 
 // Level is a tolerance-bound level: content p at confidence gamma.
 type Level struct {

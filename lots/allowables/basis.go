@@ -62,7 +62,30 @@ func computeBasis(r *Result, opt Options) error {
 		val  *lots.Float
 	}{{"A", opt.A, &r.A, &r.ABasis}, {"B", opt.B, &r.B, &r.BBasis}} {
 		method := r.Method
+		if method == LotAware {
+			method = r.AutoMethod
+		}
 		b, err := bound(method, r.values, lv.l, opt)
+		if r.Method == LotAware && r.Lots >= 2 {
+			// The lower of the automatic bound and the random-effects
+			// bound: its coverage is at least the larger of the two
+			// methods' coverages (the minimum lies below the percentile
+			// whenever either does).
+			re, rerr := bound(RandomEffects, r.values, lv.l, opt)
+			switch {
+			case rerr != nil:
+				r.step(lv.name+"-basis: lot-aware check", math.NaN(), math.NaN(), "random-effects bound not defined", rerr.Error())
+			case err != nil || re.Value < b.Value:
+				why := "lower than the " + method + " bound"
+				if err != nil {
+					why = "the " + method + " bound is not defined"
+				}
+				r.step(lv.name+"-basis: lot-aware check", re.Value, math.NaN(), "random-effects bound used", why)
+				b, err = re, nil
+			default:
+				r.step(lv.name+"-basis: lot-aware check", re.Value, b.Value, method+" bound kept", "the random-effects bound is not lower")
+			}
+		}
 		if err == nil && b.Method != "" {
 			method = b.Method
 		}

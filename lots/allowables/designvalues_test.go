@@ -56,3 +56,43 @@ func TestDesignValuesMatchesAnalyze(t *testing.T) {
 	}
 	t.Logf("methods exercised: %v", seen)
 }
+
+// The lot-aware method gives, per level, the lower of the automatic bound
+// and the random-effects bound (2 or more lots), so A stays below B.
+func TestLotAwareIsTheLowerBound(t *testing.T) {
+	rng := rand.New(rand.NewPCG(8, 9))
+	for trial := 0; trial < 30; trial++ {
+		k, m := 2+trial%5, 3+trial%4
+		var vals [][]float64
+		for i := 0; i < k; i++ {
+			mu := 100 + float64(trial%3)*3*rng.NormFloat64()
+			var lot []float64
+			for j := 0; j < m; j++ {
+				lot = append(lot, mu+5*rng.NormFloat64())
+			}
+			vals = append(vals, lot)
+		}
+		opt := DefaultOptions()
+		auto, err := DesignValues(vals, opt)
+		if err != nil {
+			continue
+		}
+		opt.Method = RandomEffects
+		re, err := DesignValues(vals, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		opt.Method = LotAware
+		la, err := DesignValues(vals, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		wantA, wantB := math.Min(auto.A, re.A), math.Min(auto.B, re.B)
+		if math.IsNaN(auto.A) {
+			wantA = re.A
+		}
+		if la.A != wantA || la.B != wantB || !(la.A <= la.B) {
+			t.Errorf("trial %d: lot-aware A %g B %g; automatic %g %g, random-effects %g %g", trial, la.A, la.B, auto.A, auto.B, re.A, re.B)
+		}
+	}
+}
