@@ -233,27 +233,21 @@ func campaignFigure(res *campaign.Result) ([]byte, error) {
 	return report.PlanBandPlot(d)
 }
 
-// full is a lossless number for machine output; empty when not defined.
-func full(v float64) string {
-	if math.IsNaN(v) {
-		return ""
-	}
-	return strconv.FormatFloat(v, 'g', -1, 64)
-}
-
 // campaignCSV is one table, one row per plan, every number in full.
 func campaignCSV(res *campaign.Result) *render.Table {
-	cols := []string{"lots", "specimens", "n", "runs", "cost", "coverage_a", "coverage_a_se", "coverage_b", "coverage_b_se",
-		"median_a_ratio", "p10_a_ratio", "p90_a_ratio", "median_b_ratio", "p10_b_ratio", "p90_b_ratio", "defined_a", "defined_b", "failed"}
+	cols := []string{"lots", "specimens per lot", "specimens", "campaigns", "cost", "A coverage", "A coverage standard error",
+		"B coverage", "B coverage standard error", "A median ratio", "A 10th percentile ratio", "A 90th percentile ratio",
+		"B median ratio", "B 10th percentile ratio", "B 90th percentile ratio", "campaigns with an A-basis value",
+		"campaigns with a B-basis value", "campaigns without a design value"}
 	for _, m := range allowables.AllMethods {
-		cols = append(cols, "method_"+strings.ReplaceAll(m, "-", "_"))
+		cols = append(cols, "campaigns by "+m)
 	}
 	t := render.NewTable("", cols...)
 	for _, p := range res.Plans {
-		row := []string{strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens), strconv.Itoa(p.N), strconv.Itoa(p.Runs), full(p.Cost),
-			full(float64(p.CoverageA)), full(float64(p.CoverageASE)), full(float64(p.CoverageB)), full(float64(p.CoverageBSE)),
-			full(float64(p.MedianARatio)), full(float64(p.P10ARatio)), full(float64(p.P90ARatio)), full(float64(p.MedianBRatio)), full(float64(p.P10BRatio)),
-			full(float64(p.P90BRatio)), strconv.Itoa(p.DefinedA), strconv.Itoa(p.DefinedB), strconv.Itoa(p.Failed)}
+		row := []any{strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens), strconv.Itoa(p.N), strconv.Itoa(p.Runs), render.Exact(p.Cost),
+			render.Exact(float64(p.CoverageA)), render.Exact(float64(p.CoverageASE)), render.Exact(float64(p.CoverageB)), render.Exact(float64(p.CoverageBSE)),
+			render.Exact(float64(p.MedianARatio)), render.Exact(float64(p.P10ARatio)), render.Exact(float64(p.P90ARatio)), render.Exact(float64(p.MedianBRatio)), render.Exact(float64(p.P10BRatio)),
+			render.Exact(float64(p.P90BRatio)), strconv.Itoa(p.DefinedA), strconv.Itoa(p.DefinedB), strconv.Itoa(p.Failed)}
 		for _, m := range allowables.AllMethods {
 			row = append(row, strconv.Itoa(p.Methods[m]))
 		}

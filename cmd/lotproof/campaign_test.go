@@ -47,7 +47,7 @@ func TestCampaignCommand(t *testing.T) {
 	}
 	code, out, _ = run(t, "", append(args, "--format", "csv")...)
 	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
-	if code != 0 || err != nil || len(rows) != 3 || rows[0][0] != "lots" || rows[0][5] != "coverage_a" {
+	if code != 0 || err != nil || len(rows) != 3 || rows[0][0] != "lots" || rows[0][5] != "A coverage" {
 		t.Errorf("csv (exit %d, %v):\n%s", code, err, out)
 	}
 	fig := t.TempDir() + "/plan.svg"
