@@ -52,7 +52,7 @@ func (d *Dataset) Group(by GroupBy, keep func(*Specimen) bool) ([]Group, error) 
 		if by == ByHeat {
 			key = s.Heat
 			if key == "" {
-				return nil, fmt.Errorf("%s:%d: specimen %q has no heat, so specimens cannot be grouped by heat; fill the heat column or group by lot", d.Source, s.Line, s.ID)
+				return nil, noHeatError(d.Source, s)
 			}
 		}
 		g, ok := index[key]

@@ -37,28 +37,41 @@ type GroupSummary struct {
 // algorithm (Chan, Golub and LeVeque 1983).
 func Summarize(d *Dataset, groups []Group, sys units.System) []GroupSummary {
 	out := make([]GroupSummary, 0, len(groups))
-	for _, g := range groups {
-		gs := GroupSummary{Key: g.Key, Supplier: g.Supplier, Material: g.Material, Specimens: len(g.Specimens)}
-		for p, prop := range d.Properties {
-			u := prop.Unit.Display(sys)
-			vals, _ := d.Values(p, g.Specimens)
-			ps := PropertySummary{Property: prop.Name, Unit: u.Symbol, N: len(vals), Missing: len(g.Specimens) - len(vals),
-				Mean: NaN, SD: NaN, Min: NaN, Max: NaN}
-			if len(vals) > 0 {
-				m, v := stat.MeanVariance(vals, nil)
-				ps.Mean = Float(u.FromInternal(m))
-				if len(vals) > 1 {
-					ps.SD = Float(u.FromInternal(math.Sqrt(v)))
-				}
-				lo, hi := vals[0], vals[0]
-				for _, x := range vals {
-					lo, hi = math.Min(lo, x), math.Max(hi, x)
-				}
-				ps.Min, ps.Max = Float(u.FromInternal(lo)), Float(u.FromInternal(hi))
-			}
-			gs.Properties = append(gs.Properties, ps)
-		}
-		out = append(out, gs)
+	for i, g := range groups {
+		out = append(out, SummarizeLot(d.Properties, d.Lot(g, i), sys))
 	}
 	return out
+}
+
+// SummarizeLot describes one lot as Summarize does; props are the
+// properties of the lot's value columns.
+func SummarizeLot(props []Property, l *Lot, sys units.System) GroupSummary {
+	gs := GroupSummary{Key: l.Key, Supplier: l.Supplier, Material: l.Material, Specimens: l.Len(),
+		Properties: make([]PropertySummary, 0, len(props))}
+	vals := make([]float64, 0, l.Len())
+	for p, prop := range props {
+		u := prop.Unit.Display(sys)
+		vals = vals[:0]
+		for _, v := range l.Values[p] {
+			if !math.IsNaN(v) {
+				vals = append(vals, v)
+			}
+		}
+		ps := PropertySummary{Property: prop.Name, Unit: u.Symbol, N: len(vals), Missing: l.Len() - len(vals),
+			Mean: NaN, SD: NaN, Min: NaN, Max: NaN}
+		if len(vals) > 0 {
+			m, v := stat.MeanVariance(vals, nil)
+			ps.Mean = Float(u.FromInternal(m))
+			if len(vals) > 1 {
+				ps.SD = Float(u.FromInternal(math.Sqrt(v)))
+			}
+			lo, hi := vals[0], vals[0]
+			for _, x := range vals {
+				lo, hi = math.Min(lo, x), math.Max(hi, x)
+			}
+			ps.Min, ps.Max = Float(u.FromInternal(lo)), Float(u.FromInternal(hi))
+		}
+		gs.Properties = append(gs.Properties, ps)
+	}
+	return gs
 }

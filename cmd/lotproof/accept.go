@@ -1,13 +1,16 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/spf13/cobra"
 
+	"lotproof/lots"
 	"lotproof/lots/acceptance"
 	"lotproof/lots/render"
 	"lotproof/spec"
@@ -82,11 +85,7 @@ func runAccept(o acceptOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	d, by, err := readData(o.Data, o.Input, st)
-	if err != nil {
-		return err
-	}
-	res, err := acceptance.Judge(d, specs, by)
+	res, err := judgeStream(o.Data, o.Input, st, specs)
 	if err != nil {
 		return err
 	}
@@ -110,6 +109,40 @@ func runAccept(o acceptOptions, st streams) error {
 			c.Conforming, len(res.Lots), c.Nonconforming, c.Undecided, c.NotJudged)}
 	}
 	return nil
+}
+
+// judgeStream reads the results file one lot at a time and judges the lots
+// in parallel as they come (acceptance.Judging); the errors are those of
+// reading the whole file and then calling acceptance.Judge.
+func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec) (*acceptance.Result, error) {
+	var j *acceptance.Judging
+	var specErr error
+	by, _ := lots.ParseGroupBy(in.GroupBy)
+	d, _, err := scanLots(name, in, st, func(d *lots.Dataset) {
+		if j != nil {
+			j.Stop()
+		}
+		j, specErr = acceptance.Start(d, specs, by)
+	}, func(l *lots.Lot) error {
+		if j != nil {
+			j.Add(l)
+		}
+		return nil
+	})
+	if j != nil && (err != nil || specErr != nil) {
+		j.Stop()
+	}
+	var ge *lots.GroupError
+	switch {
+	case err != nil && !errors.As(err, &ge):
+		return nil, err
+	case specErr != nil:
+		return nil, specErr
+	case ge != nil:
+		where := strings.Join(append([]string{name}, in.More...), " + ") // the source, as lots.Merge names it
+		return nil, lots.Inputf(where, "group by lot, or fill the heat column", "%v", err)
+	}
+	return j.Finish(d)
 }
 
 // acceptTables lays the result out as a lot table, a limit table and an

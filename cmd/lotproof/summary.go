@@ -42,15 +42,21 @@ func addInputFlags(cmd *cobra.Command, in *inputOptions) {
 }
 
 func runSummary(o summaryOptions, st streams) error {
-	d, by, err := readData(o.Data, o.Input, st)
+	// One lot at a time: the summary of each is kept, its values are not.
+	var sum []lots.GroupSummary
+	var props []lots.Property
+	_, by, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
+		sum, props = sum[:0], d.Properties
+	}, func(l *lots.Lot) error {
+		sum = append(sum, lots.SummarizeLot(props, l, o.Out.System))
+		return nil
+	})
 	if err != nil {
 		return err
 	}
-	groups, err := d.Group(by, nil)
-	if err != nil {
-		return err
+	if sum == nil {
+		sum = []lots.GroupSummary{}
 	}
-	sum := lots.Summarize(d, groups, o.Out.System)
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return summaryJSON(w, by, sum)

@@ -4,7 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
+	"sync"
 
 	"lotproof/lots"
 	"lotproof/lots/units"
@@ -131,8 +133,57 @@ const Method = "per lot and limit: one-sided normal tolerance bound mean -/+ k*S
 // that governs its material (spec.ForMaterial). Every property a given
 // specification names must be a column of d with a compatible unit;
 // otherwise Judge returns a *lots.InputError located at the specification
-// entry.
+// entry. Lots are judged in parallel (see Judging); the result is the same
+// on any number of cores.
 func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error) {
+	j, err := Start(d, specs, by)
+	if err != nil {
+		return nil, err
+	}
+	groups, err := d.Group(by, nil)
+	if err != nil {
+		j.Stop()
+		return nil, lots.Inputf(d.Source, "group by lot, or fill the heat column", "%v", err)
+	}
+	for i, g := range groups {
+		j.Add(d.Lot(g, i))
+	}
+	return j.Finish(d)
+}
+
+// Judging judges lots as they are added, on every core (GOMAXPROCS
+// workers), and keeps the results in the order the lots were added, so
+// that the result does not depend on the number of cores. The factors
+// that depend only on the number of specimens (k, the t quantile of the
+// mean bound) are computed once per n.
+type Judging struct {
+	d     *lots.Dataset
+	specs []*spec.Spec
+	by    lots.GroupBy
+	f     *factors
+	jobs  chan job
+	wg    sync.WaitGroup
+	out   []*judged
+	done  bool
+}
+
+type judged struct {
+	r   LotResult
+	err error
+}
+
+type job struct {
+	l *lots.Lot
+	o *judged
+}
+
+// workers is the number of goroutines judging lots (0: GOMAXPROCS); tests
+// set it.
+var workers = 0
+
+// Start checks the specifications against the properties of d (only its
+// source and properties are used) and starts the workers.
+func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, error) {
 	if d == nil || len(specs) == 0 {
 		return nil, lots.Inputf("accept", "give at least one --spec file", "no specification given")
 	}
@@ -158,21 +209,56 @@ func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error
 		}
 		return nil, &lots.InputError{Problems: ps}
 	}
-	groups, err := d.Group(by, nil)
-	if err != nil {
-		return nil, lots.Inputf(d.Source, "group by lot, or fill the heat column", "%v", err)
+	n := workers
+	if n <= 0 {
+		n = runtime.GOMAXPROCS(0)
 	}
-	res := &Result{Source: d.Source, Digest: d.Digest, GroupBy: string(by), Method: Method, Cautions: []string{Caution}}
-	for _, s := range specs {
+	j := &Judging{d: d, specs: specs, by: by, f: newFactors(), jobs: make(chan job, 4*n)}
+	for range n {
+		j.wg.Add(1)
+		go func() {
+			defer j.wg.Done()
+			for jb := range j.jobs {
+				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
+			}
+		}()
+	}
+	return j, nil
+}
+
+// Add queues a lot for judging; the lot belongs to the Judging from then on.
+func (j *Judging) Add(l *lots.Lot) {
+	o := &judged{}
+	j.out = append(j.out, o)
+	j.jobs <- job{l, o}
+}
+
+// Stop ends the workers and drops the results.
+func (j *Judging) Stop() {
+	if !j.done {
+		j.done = true
+		close(j.jobs)
+		j.wg.Wait()
+	}
+	j.out = nil
+}
+
+// Finish waits for every lot and returns the result, with the source and
+// digest of d. The error is that of the first lot (in order) that failed.
+func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
+	out := j.out
+	j.Stop()
+	res := &Result{Source: d.Source, Digest: d.Digest, GroupBy: string(j.by), Method: Method, Cautions: []string{Caution},
+		Lots: make([]LotResult, 0, len(out))}
+	for _, s := range j.specs {
 		res.Specs = append(res.Specs, SpecRef{ID: s.ID, Revision: s.Revision, Material: s.Material, Source: s.Source,
 			Content: s.Acceptance.Content, Confidence: s.Acceptance.Confidence, MinN: s.Acceptance.MinSpecimens})
 	}
-	for _, g := range groups {
-		lr, err := judgeLot(d, g, specs)
-		if err != nil {
-			return nil, err
+	for _, o := range out {
+		if o.err != nil {
+			return nil, o.err
 		}
-		switch lr.Verdict {
+		switch o.r.Verdict {
 		case Conforming:
 			res.Counts.Conforming++
 		case Nonconforming:
@@ -182,15 +268,18 @@ func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error
 		default:
 			res.Counts.NotJudged++
 		}
-		res.Lots = append(res.Lots, lr)
+		res.Lots = append(res.Lots, o.r)
+	}
+	if len(res.Lots) == 0 {
+		res.Lots = nil
 	}
 	return res, nil
 }
 
 var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
 
-func judgeLot(d *lots.Dataset, g lots.Group, specs []*spec.Spec) (LotResult, error) {
-	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: len(g.Specimens),
+func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *factors) (LotResult, error) {
+	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: g.Len(),
 		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
 	if g.Mixed {
 		lr.Reasons = append(lr.Reasons, "the lot's specimens disagree on supplier or material; the first is used")
@@ -206,16 +295,13 @@ func judgeLot(d *lots.Dataset, g lots.Group, specs []*spec.Spec) (LotResult, err
 	worst := map[string][]string{}
 	for _, l := range s.Limits {
 		pi := d.Property(l.Property)
-		vals, idx := d.Values(pi, g.Specimens)
-		ids := make([]string, len(idx))
-		for j, i := range idx {
-			ids[j] = d.Specimens[i].ID
-		}
+		vals, idx := g.Present(pi)
+		ids := func(j int) string { return g.ID(idx[j]) }
 		for _, side := range []string{"min", "max"} {
 			if (side == "min" && !l.HasMin()) || (side == "max" && !l.HasMax()) {
 				continue
 			}
-			pr, err := judgeSide(l, side, vals, ids, s.Acceptance)
+			pr, err := judgeSide(l, side, vals, ids, s.Acceptance, f)
 			if err != nil {
 				return lr, err
 			}
@@ -236,9 +322,9 @@ func judgeLot(d *lots.Dataset, g lots.Group, specs []*spec.Spec) (LotResult, err
 			fl, err := stats.ScreenOutliers(vals, OutlierAlpha, true)
 			if err == nil {
 				for _, f := range fl {
-					sp := d.Specimens[idx[f.Index]]
-					lr.Outliers = append(lr.Outliers, Outlier{Specimen: sp.ID, Property: l.Property, Value: lots.Float(f.Value),
-						Unit: unitLabel(l.Unit), MNR: f.MNR, Critical: f.Critical, Line: sp.Line})
+					at := idx[f.Index]
+					lr.Outliers = append(lr.Outliers, Outlier{Specimen: g.ID(at), Property: l.Property, Value: lots.Float(f.Value),
+						Unit: unitLabel(l.Unit), MNR: f.MNR, Critical: f.Critical, Line: g.Lines[at]})
 				}
 			} else if !errors.Is(err, stats.ErrZeroSpread) {
 				return lr, fmt.Errorf("outlier screen of lot %s, %s: %w", g.Key, l.Property, err)
@@ -279,7 +365,7 @@ func unitLabel(u units.Unit) string {
 // judgeSide judges the values of one property against one limit. A maximum
 // is judged as the minimum of the negated values (the methods are
 // symmetric), and the figures are mirrored back.
-func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.Rule) (PropertyResult, error) {
+func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, r spec.Rule, f *factors) (PropertyResult, error) {
 	sign, limit := 1.0, l.Min
 	word, beyond := "minimum", "below"
 	if side == "max" {
@@ -310,7 +396,7 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.R
 		sum += v
 		ext = math.Min(ext, v)
 		if v < L {
-			fails = append(fails, fmt.Sprintf("%s %s", ids[i], show(sign*v)))
+			fails = append(fails, fmt.Sprintf("%s %s", ids(i), show(sign*v)))
 		}
 	}
 	pr.Extreme = lots.Float(sign * ext)
@@ -353,12 +439,12 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.R
 		pr.Verdict = orUndecided(decided)
 		return pr, nil
 	}
-	mb, err := stats.MeanLowerBound(n, mean, sd, r.Confidence)
+	mb, err := f.meanLowerBound(n, mean, sd, r.Confidence)
 	if err != nil {
 		return pr, err
 	}
 	pr.MeanBound = lots.Float(sign * mb)
-	k, err := stats.NormalK(n, r.Content, r.Confidence)
+	k, err := f.normalK(n, r.Content, r.Confidence)
 	if err != nil {
 		return pr, err
 	}
@@ -401,7 +487,7 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids []string, r spec.R
 	default:
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is %s the %s %s: confidence %g for content %g not reached", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Confidence, r.Content))
-		need, err := NeededSpecimens(q, r.Content, r.Confidence, n)
+		need, err := neededSpecimens(q, r.Content, r.Confidence, n, f.normalK)
 		if err != nil {
 			return pr, err
 		}
@@ -442,13 +528,18 @@ func fmtVal(u units.Unit, v float64) string {
 // more than MaxPlannedSpecimens would be needed. k is stats.NormalK,
 // decreasing in m (Owen 1968), so a bisection on m is used.
 func NeededSpecimens(q, p, gamma float64, n0 int) (int, error) {
+	return neededSpecimens(q, p, gamma, n0, stats.NormalK)
+}
+
+// neededSpecimens is NeededSpecimens with the k factor from normalK.
+func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma float64) (float64, error)) (int, error) {
 	zp := -math.Sqrt2 * math.Erfcinv(2*p)
 	if !(q > zp) {
 		return -1, nil
 	}
 	lo := max(n0, 2)
 	ok := func(m int) (bool, error) {
-		k, err := stats.NormalK(m, p, gamma)
+		k, err := normalK(m, p, gamma)
 		return k <= q, err
 	}
 	if good, err := ok(lo); err != nil || good {

@@ -1,0 +1,356 @@
+package lots
+
+import (
+	"crypto/sha256"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"unsafe"
+)
+
+// Lot is one lot (or heat) with its specimens held compactly: one column
+// of values per property and the specimen ids and lines, in file order.
+// It is what a per-lot computation needs, without a record per specimen.
+type Lot struct {
+	Key      string // the lot or heat label
+	Supplier string // of the first specimen
+	Material string // of the first specimen
+	Mixed    bool   // supplier or material differs within the lot
+	Index    int    // order of first appearance in the input, from 0
+	// Values[p][i] is property p of the lot's specimen i, in the internal
+	// unit; NaN marks a missing value.
+	Values [][]float64
+	Lines  []int // line (CSV) or row (xlsx) of each specimen
+	ids    []byte
+	idEnd  []int
+}
+
+// Len is the number of specimens in the lot.
+func (l *Lot) Len() int { return len(l.Lines) }
+
+// ID is the id of the lot's specimen i.
+func (l *Lot) ID(i int) string {
+	from := 0
+	if i > 0 {
+		from = l.idEnd[i-1]
+	}
+	return string(l.ids[from:l.idEnd[i]])
+}
+
+// Present returns the non-missing values of property p in file order,
+// with the positions (in the lot) of the specimens they belong to.
+func (l *Lot) Present(p int) (vals []float64, at []int) {
+	vals = make([]float64, 0, l.Len())
+	at = make([]int, 0, l.Len())
+	for i, v := range l.Values[p] {
+		if !math.IsNaN(v) {
+			vals = append(vals, v)
+			at = append(at, i)
+		}
+	}
+	return vals, at
+}
+
+func (l *Lot) add(id string, line int, vals func(p int) float64) {
+	l.ids = append(l.ids, id...)
+	l.idEnd = append(l.idEnd, len(l.ids))
+	l.Lines = append(l.Lines, line)
+	for p := range l.Values {
+		l.Values[p] = append(l.Values[p], vals(p))
+	}
+}
+
+func newLot(key, supplier, material string, index, np int) *Lot {
+	return &Lot{Key: strings.Clone(key), Supplier: strings.Clone(supplier), Material: strings.Clone(material),
+		Index: index, Values: make([][]float64, np)}
+}
+
+// Lot gathers the specimens of group g of d into a Lot.
+func (d *Dataset) Lot(g Group, index int) *Lot {
+	l := &Lot{Key: g.Key, Supplier: g.Supplier, Material: g.Material, Mixed: g.Mixed, Index: index,
+		Values: make([][]float64, len(d.Properties))}
+	for _, i := range g.Specimens {
+		s := &d.Specimens[i]
+		l.add(s.ID, s.Line, func(p int) float64 { return s.Values[p] })
+	}
+	return l
+}
+
+// LotScan says how ScanLots hands over the lots of an input.
+type LotScan struct {
+	By GroupBy
+	// Begin, when set, is called before the first lot of every pass over
+	// the input, with the dataset's source and properties. ScanLots
+	// reads a file a second time when it turns out not to be grouped by
+	// lot: whatever the caller collected from the first pass is void then.
+	Begin func(d *Dataset)
+	// Lot is called with every complete lot, in order of first
+	// appearance. The lot belongs to the callee. An error stops the scan
+	// and is returned as is.
+	Lot func(l *Lot) error
+}
+
+// errRegroup stops a pass that assumed the input grouped by lot.
+var errRegroup = errors.New("the input is not grouped by lot")
+
+// ScanLotsFile reads a results file like ReadFile and hands over its lots
+// one at a time (see ScanLots). The Dataset it returns describes the
+// input (source, digest, bytes, properties, missing counts) but holds no
+// specimens.
+func ScanLotsFile(name string, opt ReadOptions, scan LotScan) (*Dataset, error) {
+	if name == "-" {
+		in := opt.Stdin
+		if in == nil {
+			in = os.Stdin
+		}
+		return scanLots(in, name, opt.Progress, scan)
+	}
+	if strings.EqualFold(filepath.Ext(name), ".xlsx") {
+		d, err := ReadXLSX(name, opt.Sheet)
+		if err != nil {
+			return nil, err
+		}
+		return d, d.ScanLots(scan)
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, Inputf(name, "check the path", "cannot open the results file: %v", unwrapPath(err))
+	}
+	defer f.Close()
+	return scanLots(f, name, opt.Progress, scan)
+}
+
+// ScanLots hands over the lots of a dataset already in memory, in the
+// order of Dataset.Group.
+func (d *Dataset) ScanLots(scan LotScan) error {
+	groups, err := d.Group(scan.By, nil)
+	if err != nil {
+		return err
+	}
+	if scan.Begin != nil {
+		scan.Begin(d)
+	}
+	for i, g := range groups {
+		if err := scan.Lot(d.Lot(g, i)); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// ScanLots reads a specimen results CSV from r and calls scan.Lot with
+// every lot (or heat), complete, in order of first appearance: the same
+// lots, in the same order, as ReadCSV followed by Dataset.Group. It checks
+// everything ReadCSV checks, with the same messages, and returns the same
+// errors; when it returns an error, whatever scan.Lot was given is void.
+//
+// Memory: when the rows of each lot are next to each other (a file grouped
+// by lot, or by heat when grouping by heat), one lot is held at a time.
+// Otherwise every specimen is held in a compact column store: 8 bytes per
+// property, 12 bytes of lot index, line and id offset, and the id's bytes.
+// A file that turns out not to be grouped is read a second time when r can
+// seek (the first pass stops at the first lot met again); standard input
+// from a pipe goes to the column store at once. Beside that, the
+// duplicate-id check takes what ScanCSV says.
+func ScanLots(r io.Reader, name string, scan LotScan) (*Dataset, error) {
+	return scanLots(r, name, nil, scan)
+}
+
+func scanLots(r io.Reader, name string, progress func(int64), scan LotScan) (*Dataset, error) {
+	seeker, ok := r.(io.Seeker)
+	var start int64
+	if ok {
+		var err error
+		if start, err = seeker.Seek(0, io.SeekCurrent); err != nil {
+			ok = false
+		}
+	}
+	var done int64 // progress already reported
+	report := func(n int64) {
+		if progress != nil && n > done {
+			done = n
+			progress(n)
+		}
+	}
+	if ok {
+		d, err := scanPass(r, name, report, scan, true)
+		if !errors.Is(err, errRegroup) {
+			return d, err
+		}
+		if _, err := seeker.Seek(start, io.SeekStart); err != nil {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
+	}
+	return scanPass(r, name, report, scan, false)
+}
+
+// scanPass reads the input once. With grouped set, it holds one lot at a
+// time and returns errRegroup when a lot comes back after another;
+// otherwise it fills the column store and hands the lots over at the end.
+func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grouped bool) (*Dataset, error) {
+	sum := sha256.New()
+	cnt := &countingReader{r: io.TeeReader(r, sum), progress: progress}
+	d := &Dataset{Source: name}
+	var missing []int
+	begun := false
+	begin := func(h *Header) {
+		if !begun {
+			begun = true
+			d.Properties = h.Properties
+			missing = make([]int, len(h.Properties))
+			if scan.Begin != nil {
+				scan.Begin(d)
+			}
+		}
+	}
+	var noHeat error // the first specimen without a heat, when grouping by heat
+	index := map[string]int{}
+	var cur *Lot    // grouped: the lot being filled
+	var cs colStore // not grouped
+	var lotOf []*Lot
+	h, err := ScanCSV(cnt, name, func(h *Header, s *Specimen) error {
+		begin(h)
+		for p, v := range s.Values {
+			if math.IsNaN(v) {
+				missing[p]++
+			}
+		}
+		key := s.Lot
+		if scan.By == ByHeat {
+			key = s.Heat
+			if key == "" {
+				if noHeat == nil {
+					noHeat = noHeatError(name, s)
+				}
+				return nil
+			}
+		}
+		if noHeat != nil {
+			return nil // nothing is judged; the rest is only checked
+		}
+		if grouped {
+			if cur == nil || key != cur.Key {
+				if _, again := index[key]; again {
+					return errRegroup
+				}
+				if cur != nil {
+					if err := scan.Lot(cur); err != nil {
+						return err
+					}
+				}
+				index[key] = len(index)
+				cur = newLot(key, s.Supplier, s.Material, len(index)-1, len(s.Values))
+			}
+			if cur.Supplier != s.Supplier || cur.Material != s.Material {
+				cur.Mixed = true
+			}
+			cur.add(s.ID, s.Line, func(p int) float64 { return s.Values[p] })
+			return nil
+		}
+		i, seen := index[key]
+		if !seen {
+			i = len(index)
+			index[key] = i
+			lotOf = append(lotOf, newLot(key, s.Supplier, s.Material, i, len(s.Values)))
+		}
+		if l := lotOf[i]; l.Supplier != s.Supplier || l.Material != s.Material {
+			l.Mixed = true
+		}
+		cs.add(i, s)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	begin(h)
+	if noHeat != nil {
+		return nil, noHeat
+	}
+	io.Copy(io.Discard, cnt) // digest covers the whole input
+	d.Digest = fmt.Sprintf("%x", sum.Sum(nil))
+	d.Bytes = cnt.n
+	d.Missing = missing
+	if grouped {
+		if cur != nil {
+			if err := scan.Lot(cur); err != nil {
+				return nil, err
+			}
+		}
+		return d, nil
+	}
+	return d, cs.lots(lotOf, scan.Lot)
+}
+
+// GroupError says that the specimens cannot be grouped as asked (by heat,
+// when a specimen has none).
+type GroupError struct{ msg string }
+
+func (e *GroupError) Error() string { return e.msg }
+
+// noHeatError is the error of grouping by heat a specimen that has none.
+func noHeatError(source string, s *Specimen) error {
+	return &GroupError{fmt.Sprintf("%s:%d: specimen %q has no heat, so specimens cannot be grouped by heat; fill the heat column or group by lot", source, s.Line, s.ID)}
+}
+
+// colStore holds every specimen of an input not grouped by lot: one
+// float64 column per property, and per specimen its lot's index, its line
+// and the end of its id in one byte arena (uint32: inputs of up to 4 GiB
+// of ids and 4 billion lines).
+type colStore struct {
+	vals  [][]float64
+	lot   []uint32
+	line  []uint32
+	idEnd []uint32
+	ids   []byte
+}
+
+func (c *colStore) add(lot int, s *Specimen) {
+	if c.vals == nil {
+		c.vals = make([][]float64, len(s.Values))
+	}
+	for p, v := range s.Values {
+		c.vals[p] = append(c.vals[p], v)
+	}
+	c.lot = append(c.lot, uint32(lot))
+	c.line = append(c.line, uint32(s.Line))
+	c.ids = append(c.ids, s.ID...)
+	c.idEnd = append(c.idEnd, uint32(len(c.ids)))
+}
+
+// lots gathers every lot in turn (a counting sort of the specimens by lot
+// keeps file order within a lot) and hands it to fn.
+func (c *colStore) lots(lotOf []*Lot, fn func(*Lot) error) error {
+	first := make([]uint32, len(lotOf)+1) // first[i]: start of lot i in order
+	for _, l := range c.lot {
+		first[l+1]++
+	}
+	for i := 1; i < len(first); i++ {
+		first[i] += first[i-1]
+	}
+	order := make([]uint32, len(c.lot))
+	next := append([]uint32(nil), first[:len(lotOf)]...)
+	for s, l := range c.lot {
+		order[next[l]] = uint32(s)
+		next[l]++
+	}
+	c.lot = nil
+	for i, l := range lotOf {
+		for _, s := range order[first[i]:first[i+1]] {
+			from := uint32(0)
+			if s > 0 {
+				from = c.idEnd[s-1]
+			}
+			id := c.ids[from:c.idEnd[s]]
+			l.add(unsafe.String(unsafe.SliceData(id), len(id)), int(c.line[s]), func(p int) float64 { return c.vals[p][s] })
+		}
+		lotOf[i] = nil // handed over
+		if err := fn(l); err != nil {
+			return err
+		}
+	}
+	return nil
+}
