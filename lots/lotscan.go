@@ -242,8 +242,8 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 						return err
 					}
 				}
-				index[key] = len(index)
-				cur = newLot(key, s.Supplier, s.Material, len(index)-1, len(s.Values))
+				cur = newLot(key, s.Supplier, s.Material, len(index), len(s.Values))
+				index[cur.Key] = cur.Index // cur.Key: a copy (key lives in the reader's buffer)
 			}
 			if cur.Supplier != s.Supplier || cur.Material != s.Material {
 				cur.Mixed = true
@@ -254,8 +254,9 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 		i, seen := index[key]
 		if !seen {
 			i = len(index)
-			index[key] = i
-			lotOf = append(lotOf, newLot(key, s.Supplier, s.Material, i, len(s.Values)))
+			l := newLot(key, s.Supplier, s.Material, i, len(s.Values))
+			index[l.Key] = i
+			lotOf = append(lotOf, l)
 		}
 		if l := lotOf[i]; l.Supplier != s.Supplier || l.Material != s.Material {
 			l.Mixed = true

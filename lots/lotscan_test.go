@@ -1,0 +1,137 @@
+package lots
+
+import (
+	"bytes"
+	"io"
+	"math"
+	"reflect"
+	"strings"
+	"testing"
+
+	"lotproof/lots/internal/scale"
+)
+
+// onlyReader hides everything but Read (standard input from a pipe).
+type onlyReader struct{ r io.Reader }
+
+func (o onlyReader) Read(p []byte) (int, error) { return o.r.Read(p) }
+
+// lotsOf reads data with ReadCSV and Group: the reference ScanLots must match.
+func lotsOf(t *testing.T, data []byte, by GroupBy) (*Dataset, []*Lot) {
+	t.Helper()
+	d, err := ReadCSV(bytes.NewReader(data), "x.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	groups, err := d.Group(by, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []*Lot
+	for i, g := range groups {
+		out = append(out, d.Lot(g, i))
+	}
+	return d, out
+}
+
+func sameLots(t *testing.T, what string, got, want []*Lot) {
+	t.Helper()
+	if len(got) != len(want) {
+		t.Fatalf("%s: %d lots, want %d", what, len(got), len(want))
+	}
+	for i := range want {
+		g, w := got[i], want[i]
+		if g.Key != w.Key || g.Supplier != w.Supplier || g.Material != w.Material || g.Mixed != w.Mixed || g.Index != w.Index ||
+			!reflect.DeepEqual(g.Lines, w.Lines) || g.Len() != w.Len() {
+			t.Fatalf("%s: lot %d is %q/%q/%v n=%d, want %q/%q/%v n=%d", what, i, g.Key, g.Supplier, g.Mixed, g.Len(), w.Key, w.Supplier, w.Mixed, w.Len())
+		}
+		for j := 0; j < w.Len(); j++ {
+			if g.ID(j) != w.ID(j) {
+				t.Fatalf("%s: lot %s specimen %d is %q, want %q", what, w.Key, j, g.ID(j), w.ID(j))
+			}
+			for p := range w.Values {
+				a, b := g.Values[p][j], w.Values[p][j]
+				if a != b && !(math.IsNaN(a) && math.IsNaN(b)) {
+					t.Fatalf("%s: lot %s specimen %d property %d is %v, want %v", what, w.Key, j, p, a, b)
+				}
+			}
+		}
+	}
+}
+
+// ScanLots hands over exactly the lots of ReadCSV + Group, in the same
+// order, whether the file is grouped by lot (one lot held at a time),
+// interleaved (read twice, the second time into the column store) or read
+// from a pipe (column store at once); files of several reader buffers.
+func TestScanLotsMatchesReadCSV(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		o    scale.Options
+		by   GroupBy
+	}{
+		{"grouped", scale.Options{Specimens: 20000, Lots: 400}, ByLot},
+		{"interleaved", scale.Options{Specimens: 20000, Lots: 400, Interleave: 7}, ByLot},
+		{"by heat", scale.Options{Specimens: 20000, Lots: 400}, ByHeat},
+		{"one lot", scale.Options{Specimens: 3, Lots: 1}, ByLot},
+	} {
+		var buf bytes.Buffer
+		if _, err := scale.Write(&buf, tc.o); err != nil {
+			t.Fatal(err)
+		}
+		// Some missing values and a mixed supplier.
+		data := bytes.Replace(buf.Bytes(), []byte(",Birchfold,"), []byte(",Birchfold Two,"), 3)
+		data = bytes.Replace(data, []byte(",2026-01-05,1"), []byte(",2026-01-05,"), 50)
+		want, wantLots := lotsOf(t, data, tc.by)
+		for _, src := range []struct {
+			name string
+			r    io.Reader
+		}{{"seekable", bytes.NewReader(data)}, {"pipe", onlyReader{bytes.NewReader(data)}}} {
+			var got []*Lot
+			begins := 0
+			d, err := ScanLots(src.r, "x.csv", LotScan{By: tc.by, Begin: func(*Dataset) { begins++; got = got[:0] },
+				Lot: func(l *Lot) error { got = append(got, l); return nil }})
+			if err != nil {
+				t.Fatal(err)
+			}
+			what := tc.name + ", " + src.name
+			sameLots(t, what, got, wantLots)
+			if d.Digest != want.Digest || d.Bytes != want.Bytes || !reflect.DeepEqual(d.Missing, want.Missing) || !reflect.DeepEqual(d.Properties, want.Properties) {
+				t.Errorf("%s: dataset %s %d %v, want %s %d %v", what, d.Digest, d.Bytes, d.Missing, want.Digest, want.Bytes, want.Missing)
+			}
+			wantBegins := 1
+			if tc.o.Interleave > 1 && src.name == "seekable" {
+				wantBegins = 2 // read again into the column store
+			}
+			if begins != wantBegins {
+				t.Errorf("%s: %d passes, want %d", what, begins, wantBegins)
+			}
+		}
+	}
+}
+
+// ScanLots reports bad input exactly as ReadCSV does, and a specimen
+// without a heat as Group does, after the whole file checked out.
+func TestScanLotsErrorsAsReadCSV(t *testing.T) {
+	head := "specimen,lot,heat,tensile [MPa]\n"
+	for _, data := range []string{
+		head + "a,L1,H1,1000\nb,L1,H1,1010\nc,L2,H2,x\na,L2,H2,1000\n",
+		head + "a,L1,H1,1000\nb,L2,,1010\nc,L1,H1,1000\n",
+		head + "a,L1,H1,1000\nb,L2,,1010\nc,L1,H1,1000\nc,L3,H1,1000\n",
+		head,
+		"",
+	} {
+		for _, by := range []GroupBy{ByLot, ByHeat} {
+			var want error
+			d, err := ReadCSV(strings.NewReader(data), "x.csv")
+			if err != nil {
+				want = err
+			} else if _, err := d.Group(by, nil); err != nil {
+				want = err
+			}
+			_, got := ScanLots(strings.NewReader(data), "x.csv", LotScan{By: by, Lot: func(*Lot) error { return nil }})
+			if (got == nil) != (want == nil) || got != nil && got.Error() != want.Error() {
+				t.Errorf("%q by %s: error %v, want %v", data, by, got, want)
+			}
+		}
+	}
+}
