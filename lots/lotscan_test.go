@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"lotproof/lots/internal/scale"
+	"lotproof/lots/scale"
 )
 
 // onlyReader hides everything but Read (standard input from a pipe).

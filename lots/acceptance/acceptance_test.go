@@ -1,6 +1,7 @@
 package acceptance
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"math"
@@ -9,6 +10,7 @@ import (
 	"testing"
 
 	"lotproof/lots"
+	"lotproof/lots/scale"
 	"lotproof/spec"
 	"lotproof/stats"
 )
@@ -236,5 +238,42 @@ func TestJudgeZeroSpreadBelowMinimum(t *testing.T) {
 	}
 	if y := find(t, r, "Y"); y.Verdict != Undecided || len(y.Properties[0].Reasons) == 0 {
 		t.Errorf("all equal above the minimum: %s %v", y.Verdict, y.Properties[0].Reasons)
+	}
+}
+
+// Judging on several workers gives the same result, lot for lot and in the
+// same order, as on one; on 100 invented lots with three limits each.
+func TestJudgeParallelSameAsOneWorker(t *testing.T) {
+	var buf bytes.Buffer
+	if _, err := scale.Write(&buf, scale.Options{Specimens: 1000, Lots: 100, Interleave: 3}); err != nil {
+		t.Fatal(err)
+	}
+	d, err := lots.ReadCSV(&buf, "scale.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := spec.ReadFile("../../testdata/bench/spec-three.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer func(w int) { workers = w }(workers)
+	var outs [][]byte
+	for _, w := range []int{1, 4} {
+		workers = w
+		r, err := Judge(d, []*spec.Spec{s}, lots.ByLot)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(r.Lots) != 100 || r.Counts.Conforming == 0 || r.Counts.Nonconforming == 0 || r.Counts.Undecided == 0 {
+			t.Fatalf("%d lots, counts %+v: want 100 lots of every verdict", len(r.Lots), r.Counts)
+		}
+		b, err := json.Marshal(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		outs = append(outs, b)
+	}
+	if !bytes.Equal(outs[0], outs[1]) {
+		t.Error("4 workers judged differently from 1")
 	}
 }

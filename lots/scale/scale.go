@@ -10,6 +10,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"strconv"
+
+	"lotproof/lots/internal/rss"
 )
 
 // Header is the first line of every generated file: three properties.
@@ -153,3 +155,11 @@ func (c *countWriter) Write(p []byte) (int, error) {
 	c.n += int64(n)
 	return n, err
 }
+
+// PeakRSS is the peak resident set size of this process in MiB (-1 where
+// it cannot be read), for benchmarks outside package lots.
+func PeakRSS() float64 { return rss.PeakMB() }
+
+// ResetPeakRSS starts the peak resident set size over, so that PeakRSS
+// measures what follows; it reports whether that worked (Linux).
+func ResetPeakRSS() bool { return rss.ResetPeak() }

@@ -1,5 +1,5 @@
 // Command gen writes a large invented results file for the scale
-// benchmarks: go run ./lots/internal/scale/gen -o receipts-1m.csv
+// benchmarks: go run ./lots/scale/gen -o receipts-1m.csv
 package main
 
 import (
@@ -7,7 +7,7 @@ import (
 	"fmt"
 	"os"
 
-	"lotproof/lots/internal/scale"
+	"lotproof/lots/scale"
 )
 
 func main() {
