@@ -89,17 +89,7 @@ func runAccept(o acceptOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	shown := res.Display(o.Out.System)
-	err = emit(st.Out, func(w io.Writer) error {
-		if o.Out.Format == render.JSON {
-			return render.WriteJSON(w, shown)
-		}
-		tables, err := o.Table.pick(o.Out.Format, acceptTables(shown))
-		if err != nil {
-			return err
-		}
-		return writeTables(w, o.Out.Format, tables...)
-	})
+	err = emit(st.Out, func(w io.Writer) error { return writeAccept(w, res, o.Table, o.Out) })
 	if err != nil {
 		return err
 	}
@@ -109,6 +99,19 @@ func runAccept(o acceptOptions, st streams) error {
 			c.Conforming, len(res.Lots), c.Nonconforming, c.Undecided, c.NotJudged)}
 	}
 	return nil
+}
+
+// writeAccept writes a judgement in the output's format and units.
+func writeAccept(w io.Writer, res *acceptance.Result, table tableOption, out output) error {
+	shown := res.Display(out.System)
+	if out.Format == render.JSON {
+		return render.WriteJSON(w, shown)
+	}
+	tables, err := table.pick(out.Format, acceptTables(shown))
+	if err != nil {
+		return err
+	}
+	return writeTables(w, out.Format, tables...)
 }
 
 // judgeStream reads the results file one lot at a time and judges the lots

@@ -57,12 +57,15 @@ func runSummary(o summaryOptions, st streams) error {
 	if sum == nil {
 		sum = []lots.GroupSummary{}
 	}
-	return emit(st.Out, func(w io.Writer) error {
-		if o.Out.Format == render.JSON {
-			return summaryJSON(w, by, sum)
-		}
-		return writeTables(w, o.Out.Format, summaryTable(string(by), sum))
-	})
+	return emit(st.Out, func(w io.Writer) error { return writeSummary(w, sum, by, o.Out) })
+}
+
+// writeSummary writes a summary in the output's format.
+func writeSummary(w io.Writer, sum []lots.GroupSummary, by lots.GroupBy, out output) error {
+	if out.Format == render.JSON {
+		return summaryJSON(w, by, sum)
+	}
+	return writeTables(w, out.Format, summaryTable(string(by), sum))
 }
 
 // summaryTable lays a summary out as one row per group and property.
