@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"slices"
+	"sync/atomic"
 )
 
 // idIndex finds duplicate specimen ids in a stream with bounded memory.
@@ -233,4 +234,71 @@ func (h *runHeap) Pop() any {
 	v := old[len(old)-1]
 	*h = old[:len(old)-1]
 	return v
+}
+
+// idQueue fills an idIndex on its own goroutine, so that a large input's
+// duplicate-id check (a random access into a table of tens of megabytes
+// per specimen) runs on a second core while the first parses. It only
+// says whether some id was repeated: the caller then reads the input again
+// with the check in line, for the messages.
+type idQueue struct {
+	x    *idIndex
+	cur  []idSlot
+	in   chan []idSlot
+	free chan []idSlot
+	done chan struct{}
+	dup  atomic.Bool
+	busy bool
+}
+
+const idBatch = 4096
+
+func newIDQueue(x *idIndex) *idQueue {
+	q := &idQueue{x: x, in: make(chan []idSlot, 4), free: make(chan []idSlot, 6), done: make(chan struct{}), busy: true}
+	go func() {
+		defer close(q.done)
+		for b := range q.in {
+			for _, e := range b {
+				if q.x.seen(e.hash, int(e.line), int(e.col)) > 0 {
+					q.dup.Store(true)
+				}
+			}
+			select {
+			case q.free <- b[:0]:
+			default:
+			}
+		}
+	}()
+	return q
+}
+
+// add queues an id's hash and place.
+func (q *idQueue) add(h uint64, line, col int) {
+	if q.cur == nil {
+		select {
+		case q.cur = <-q.free:
+		default:
+			q.cur = make([]idSlot, 0, idBatch)
+		}
+	}
+	q.cur = append(q.cur, idSlot{h, uint32(line), uint32(col)})
+	if len(q.cur) == idBatch {
+		q.in <- q.cur
+		q.cur = nil
+	}
+}
+
+// stop waits until every queued id is in the index and reports whether
+// one was repeated. Calling it again does nothing.
+func (q *idQueue) stop() bool {
+	if q.busy {
+		q.busy = false
+		if len(q.cur) > 0 {
+			q.in <- q.cur
+			q.cur = nil
+		}
+		close(q.in)
+		<-q.done
+	}
+	return q.dup.Load()
 }

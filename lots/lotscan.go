@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"errors"
 	"fmt"
+	"hash"
 	"io"
 	"math"
 	"os"
@@ -62,6 +63,19 @@ func (l *Lot) add(id string, line int, vals func(p int) float64) {
 	for p := range l.Values {
 		l.Values[p] = append(l.Values[p], vals(p))
 	}
+}
+
+// reserve makes room for n specimens with ids of about idLen bytes.
+func (l *Lot) reserve(n, idLen int) {
+	if n == 0 {
+		return
+	}
+	for p := range l.Values {
+		l.Values[p] = make([]float64, 0, n)
+	}
+	l.Lines = make([]int, 0, n)
+	l.idEnd = make([]int, 0, n)
+	l.ids = make([]byte, 0, n*(idLen+2))
 }
 
 func newLot(key, supplier, material string, index, np int) *Lot {
@@ -176,23 +190,34 @@ func scanLots(r io.Reader, name string, progress func(int64), scan LotScan) (*Da
 			progress(n)
 		}
 	}
-	if ok {
-		d, err := scanPass(r, name, report, scan, true)
-		if !errors.Is(err, errRegroup) {
+	// A seekable input is first read assuming it is grouped by lot and
+	// has no repeated id (checked on another core); when either turns out
+	// wrong it is read again without that assumption.
+	grouped, async := ok, ok
+	for {
+		d, err := scanPass(r, name, report, scan, grouped, async)
+		switch {
+		case errors.Is(err, errRegroup):
+			grouped = false
+		case errors.Is(err, errDuplicate):
+			async = false
+		default:
 			return d, err
 		}
 		if _, err := seeker.Seek(start, io.SeekStart); err != nil {
 			return nil, fmt.Errorf("%s: %w", name, err)
 		}
 	}
-	return scanPass(r, name, report, scan, false)
 }
 
 // scanPass reads the input once. With grouped set, it holds one lot at a
 // time and returns errRegroup when a lot comes back after another;
 // otherwise it fills the column store and hands the lots over at the end.
-func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grouped bool) (*Dataset, error) {
-	sum := sha256.New()
+// With asyncIDs, ids are checked on another core and a repeated one
+// returns errDuplicate.
+func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grouped, asyncIDs bool) (*Dataset, error) {
+	sum := newDigester()
+	defer sum.close()
 	cnt := &countingReader{r: io.TeeReader(r, sum), progress: progress}
 	d := &Dataset{Source: name}
 	var missing []int
@@ -212,7 +237,7 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 	var cur *Lot    // grouped: the lot being filled
 	var cs colStore // not grouped
 	var lotOf []*Lot
-	h, err := ScanCSV(cnt, name, func(h *Header, s *Specimen) error {
+	h, err := scanCSV(cnt, name, func(h *Header, s *Specimen) error {
 		begin(h)
 		for p, v := range s.Values {
 			if math.IsNaN(v) {
@@ -234,6 +259,10 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 		}
 		if grouped {
 			if cur == nil || key != cur.Key {
+				size := 0 // the previous lot's size, a guess at this one's
+				if cur != nil {
+					size = cur.Len()
+				}
 				if _, again := index[key]; again {
 					return errRegroup
 				}
@@ -243,6 +272,7 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 					}
 				}
 				cur = newLot(key, s.Supplier, s.Material, len(index), len(s.Values))
+				cur.reserve(size, len(s.ID))
 				index[cur.Key] = cur.Index // cur.Key: a copy (key lives in the reader's buffer)
 			}
 			if cur.Supplier != s.Supplier || cur.Material != s.Material {
@@ -263,7 +293,7 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 		}
 		cs.add(i, s)
 		return nil
-	})
+	}, asyncIDs)
 	if err != nil {
 		return nil, err
 	}
@@ -272,7 +302,7 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 		return nil, noHeat
 	}
 	io.Copy(io.Discard, cnt) // digest covers the whole input
-	d.Digest = fmt.Sprintf("%x", sum.Sum(nil))
+	d.Digest = fmt.Sprintf("%x", sum.sum())
 	d.Bytes = cnt.n
 	d.Missing = missing
 	if grouped {
@@ -354,4 +384,56 @@ func (c *colStore) lots(lotOf []*Lot, fn func(*Lot) error) error {
 		}
 	}
 	return nil
+}
+
+// digester computes the SHA-256 of what is written to it on another
+// goroutine (a second core), so that hashing does not hold up reading.
+type digester struct {
+	in   chan []byte
+	free chan []byte
+	done chan []byte
+	h    hash.Hash
+}
+
+func newDigester() *digester {
+	d := &digester{in: make(chan []byte, 4), free: make(chan []byte, 8), done: make(chan []byte, 1), h: sha256.New()}
+	go func() {
+		for b := range d.in {
+			d.h.Write(b)
+			select {
+			case d.free <- b[:0]:
+			default:
+			}
+		}
+		d.done <- d.h.Sum(nil)
+	}()
+	return d
+}
+
+// Write queues a copy of p.
+func (d *digester) Write(p []byte) (int, error) {
+	var b []byte
+	select {
+	case b = <-d.free:
+	default:
+	}
+	d.in <- append(b, p...)
+	return len(p), nil
+}
+
+// sum waits for everything written and returns the digest.
+func (d *digester) sum() []byte {
+	close(d.in)
+	s := <-d.done
+	d.in = nil
+	return s
+}
+
+// close stops the goroutine when sum was not called (an error).
+func (d *digester) close() {
+	if d.in != nil {
+		close(d.in)
+		<-d.done
+		d.in = nil
+	}
 }

@@ -2,6 +2,7 @@ package lots
 
 import (
 	"bytes"
+	"fmt"
 	"io"
 	"math"
 	"reflect"
@@ -133,5 +134,38 @@ func TestScanLotsErrorsAsReadCSV(t *testing.T) {
 				t.Errorf("%q by %s: error %v, want %v", data, by, got, want)
 			}
 		}
+	}
+}
+
+// A repeated id found on the other core sends ScanLots back to the start
+// with the check in line: the messages, their order and the count of the
+// rest are those of ReadCSV, with the repeat early, late (after several
+// batches), beside other problems, and across spilled runs.
+func TestScanLotsDuplicateIDsAsReadCSV(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("specimen,lot,heat,tensile [MPa]\n")
+	for i := 0; i < 10000; i++ {
+		fmt.Fprintf(&b, "S%d,L%d,H1,%d\n", i, i/10, 900+i%50)
+	}
+	base := b.String()
+	inputs := []string{
+		base + "S5,L9,H1,900\n",
+		base + "S9999,L9,H1,x\nS17,,H1,1\n",
+		"specimen,lot,tensile [MPa]\nA,L1,1\nB,L1,x\nA,L1,2\n" + strings.Repeat("C,L2,3\n", 30),
+		strings.Replace(base, "S20,", "S7,", 1),
+		base,
+	}
+	for _, memCap := range []int{idMemCap, 1000} {
+		func() {
+			defer func(c int) { idMemCap = c }(idMemCap)
+			idMemCap = memCap
+			for i, in := range inputs {
+				_, want := ReadCSV(strings.NewReader(in), "r.csv")
+				_, got := ScanLots(strings.NewReader(in), "r.csv", LotScan{By: ByLot, Lot: func(*Lot) error { return nil }})
+				if (got == nil) != (want == nil) || got != nil && got.Error() != want.Error() {
+					t.Errorf("input %d, memory cap %d: got\n%v\nwant\n%v", i, memCap, got, want)
+				}
+			}
+		}()
 	}
 }

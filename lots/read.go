@@ -50,7 +50,8 @@ type table struct {
 	name     string
 	header   *Header
 	problems problems
-	seen     idIndex // hashes of the specimen ids seen, with their lines
+	seen     idIndex  // hashes of the specimen ids seen, with their lines
+	ids      *idQueue // when set, seen is filled on another goroutine
 	rows     int
 }
 
@@ -184,8 +185,9 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	if s.ID == "" {
 		t.problems.add(loc.at(h.idCol), "specimen id is empty", "give every specimen a unique id")
 		ok = false
+	} else if l, c := loc.pos(h.idCol); t.ids != nil {
+		t.ids.add(fnv64(s.ID), l, c) // checked on another core (see idQueue)
 	} else {
-		l, c := loc.pos(h.idCol)
 		if first := t.seen.seen(fnv64(s.ID), l, c); first > 0 {
 			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %s (first on line %d)", short(s.ID), first),
 				"specimen ids must be unique; rename or remove one of them")
@@ -263,8 +265,23 @@ func (t *table) finishIDs(loc locator) {
 // the end to report every problem (up to MaxProblems) and returns an
 // *InputError: a caller that wrote anything from fn must discard it.
 func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Header, error) {
+	return scanCSV(r, name, fn, false)
+}
+
+// errDuplicate stops a scan that checks ids on another core when it meets
+// a repeated id: the caller reads the input again with ScanCSV, which
+// reports it with its place among the other problems.
+var errDuplicate = errors.New("a specimen id is repeated")
+
+// scanCSV is ScanCSV; with asyncIDs the duplicate-id check runs on another
+// goroutine, and a repeated id ends the scan with errDuplicate.
+func scanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error, asyncIDs bool) (*Header, error) {
 	t := newTable(name)
 	defer t.seen.close()
+	if asyncIDs {
+		t.ids = newIDQueue(&t.seen)
+		defer t.ids.stop()
+	}
 	rr := newRecordReader(r, name)
 	// A UTF-8 byte order mark is not part of the first heading.
 	if b, err := rr.br.Peek(3); err == nil && bytes.Equal(b, []byte("\xEF\xBB\xBF")) {
@@ -299,13 +316,22 @@ func ScanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error) (*Head
 			continue // a blank line
 		}
 		if !t.parseRow(fields, rr.line, rr, &s) || t.problems.any() {
+			if t.ids != nil && t.ids.dup.Load() {
+				return nil, errDuplicate
+			}
 			continue
+		}
+		if t.ids != nil && t.ids.dup.Load() {
+			return nil, errDuplicate
 		}
 		if fn != nil {
 			if err := fn(h, &s); err != nil {
 				return nil, err
 			}
 		}
+	}
+	if t.ids != nil && t.ids.stop() {
+		return nil, errDuplicate
 	}
 	t.finishIDs(rr)
 	if t.rows == 0 && !t.problems.any() {
