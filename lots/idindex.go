@@ -22,7 +22,7 @@ import (
 // met in two runs is a duplicate found late (its message cannot quote the
 // id, which is not kept, but names both places). Memory therefore stays
 // below about 100 MB whatever the size of the input (the 64 MB table, and
-// while it grows or spills a second table or sorted copy); disk takes 16
+// while it grows the old table; a spill sorts it in place); disk takes 16
 // bytes per specimen, only for inputs of more than memCap specimens. When
 // the first occurrence of an id was already spilled, a repeat met again in
 // memory names the earlier in-memory occurrence as "first"; the merge still
@@ -120,7 +120,9 @@ func (x *idIndex) spill() error {
 	}
 	os.Remove(f.Name()) // unlinked: the space is freed when the file is closed
 	x.runs = append(x.runs, f)
-	used := make([]idSlot, 0, x.n)
+	// Compact the table in place (the caller clears it next): no second
+	// copy of tens of megabytes.
+	used := x.slots[:0]
 	for _, e := range x.slots {
 		if e.hash != 0 {
 			used = append(used, e)

@@ -21,7 +21,8 @@ measure() {
 	name=$1
 	shift
 	/usr/bin/time -f "%U %S %M" -o "$W/t" "$@" > /dev/null 2> "$W/err" || true
-	awk -v n="$name" '{printf "%s %.2f %.0f\n", n, $1 + $2, $3 / 1024}' "$W/t"
+	tail -n 1 "$W/t" | awk -v n="$name" '{printf "%s %.2f %.0f\n", n, $1 + $2, $3 / 1024}'
+
 }
 {
 	measure lotproof-accept-one "$W/lotproof" --format csv accept "$W/receipts.csv" --spec $B/spec-one.yaml
