@@ -21,7 +21,7 @@ import (
 // are merged (external sort-merge, Knuth, TAOCP vol. 3, 5.4.1) and a hash
 // met in two runs is a duplicate found late (its message cannot quote the
 // id, which is not kept, but names both places). Memory therefore stays
-// below about 100 MB whatever the size of the input (the 64 MB table, and
+// below about 50 MB whatever the size of the input (the 32 MB table, and
 // while it grows the old table; a spill sorts it in place); disk takes 16
 // bytes per specimen, only for inputs of more than memCap specimens. When
 // the first occurrence of an id was already spilled, a repeat met again in
@@ -47,8 +47,8 @@ type idSlot struct {
 }
 
 // idMemCap is how many ids are kept in memory before they are spilled:
-// 2^21 ids take a table of 2^22 slots of 16 bytes, 64 MB. Tests lower it.
-var idMemCap = 1 << 21
+// 2^20 ids take a table of 2^21 slots of 16 bytes, 32 MB. Tests lower it.
+var idMemCap = 1 << 20
 
 // seen records an id's hash at a place and returns the line on which the
 // same id was seen before, or 0 (repeats across spilled runs are found by
