@@ -89,21 +89,27 @@ func runAccept(o acceptOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	err = emit(st.Out, func(w io.Writer) error { return writeAccept(w, res, o.Table, o.Out) })
+	c, n := res.Counts, len(res.Lots)
+	// The judgement is only shown: convert it in place (no second copy of
+	// a large result).
+	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res.DisplayInPlace(o.Out.System), o.Table, o.Out) })
 	if err != nil {
 		return err
 	}
-	c := res.Counts
 	if c.Nonconforming+c.Undecided+c.NotJudged > 0 {
 		return verdictError{fmt.Sprintf("%d of %d lots conforming, %d nonconforming, %d undecided, %d not judged",
-			c.Conforming, len(res.Lots), c.Nonconforming, c.Undecided, c.NotJudged)}
+			c.Conforming, n, c.Nonconforming, c.Undecided, c.NotJudged)}
 	}
 	return nil
 }
 
 // writeAccept writes a judgement in the output's format and units.
 func writeAccept(w io.Writer, res *acceptance.Result, table tableOption, out output) error {
-	shown := res.Display(out.System)
+	return writeShown(w, res.Display(out.System), table, out)
+}
+
+// writeShown writes a judgement already in display units.
+func writeShown(w io.Writer, shown *acceptance.Result, table tableOption, out output) error {
 	if out.Format == render.JSON {
 		return render.WriteJSON(w, shown)
 	}

@@ -571,6 +571,17 @@ func (r *Result) Display(sys units.System) *Result {
 	out.Lots = make([]LotResult, len(r.Lots))
 	for i, l := range r.Lots {
 		l.Properties = append(make([]PropertyResult, 0, len(l.Properties)), l.Properties...)
+		l.Outliers = append(make([]Outlier, 0, len(l.Outliers)), l.Outliers...)
+		out.Lots[i] = l
+	}
+	return out.DisplayInPlace(sys)
+}
+
+// DisplayInPlace converts r itself as Display does, without a copy (for a
+// large result that is only shown), and returns it.
+func (r *Result) DisplayInPlace(sys units.System) *Result {
+	for i := range r.Lots {
+		l := &r.Lots[i]
 		for j := range l.Properties {
 			p := &l.Properties[j]
 			u, err := units.Parse(p.Unit)
@@ -583,7 +594,6 @@ func (r *Result) Display(sys units.System) *Result {
 			p.SD = lots.Float(du.FromInternal(u.ToInternal(float64(p.SD))))
 			p.Unit = du.Symbol
 		}
-		l.Outliers = append(make([]Outlier, 0, len(l.Outliers)), l.Outliers...)
 		for j := range l.Outliers {
 			o := &l.Outliers[j]
 			u, err := units.Parse(o.Unit)
@@ -594,7 +604,6 @@ func (r *Result) Display(sys units.System) *Result {
 			o.Value = lots.Float(du.FromInternal(u.ToInternal(float64(o.Value))))
 			o.Unit = du.Symbol
 		}
-		out.Lots[i] = l
 	}
-	return &out
+	return r
 }
