@@ -141,12 +141,12 @@ func ScanLotsFile(name string, opt ReadOptions, scan LotScan) (*Dataset, error) 
 // ScanLots hands over the lots of a dataset already in memory, in the
 // order of Dataset.Group.
 func (d *Dataset) ScanLots(scan LotScan) error {
+	if scan.Begin != nil {
+		scan.Begin(d) // before a grouping error, as for a CSV
+	}
 	groups, err := d.Group(scan.By, nil)
 	if err != nil {
 		return err
-	}
-	if scan.Begin != nil {
-		scan.Begin(d)
 	}
 	for i, g := range groups {
 		if err := scan.Lot(d.Lot(g, i)); err != nil {
