@@ -155,12 +155,12 @@ func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error
 // workers), and keeps the results in the order the lots were added, so
 // that the result does not depend on the number of cores. The factors
 // that depend only on the number of specimens (k, the t quantile of the
-// mean bound) are computed once per n.
+// mean bound) come from one stats.Factors cache, computed once per n.
 type Judging struct {
 	d     *lots.Dataset
 	specs []*spec.Spec
 	by    lots.GroupBy
-	f     *factors
+	f     *stats.Factors
 	jobs  chan job
 	wg    sync.WaitGroup
 	out   []*judged
@@ -213,7 +213,7 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 	if n <= 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	j := &Judging{d: d, specs: specs, by: by, f: newFactors(), jobs: make(chan job, 4*n)}
+	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan job, 4*n)}
 	for range n {
 		j.wg.Add(1)
 		go func() {
@@ -278,7 +278,7 @@ func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
 
 var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
 
-func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *factors) (LotResult, error) {
+func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors) (LotResult, error) {
 	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: g.Len(),
 		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
 	if g.Mixed {
@@ -365,7 +365,7 @@ func unitLabel(u units.Unit) string {
 // judgeSide judges the values of one property against one limit. A maximum
 // is judged as the minimum of the negated values (the methods are
 // symmetric), and the figures are mirrored back.
-func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, r spec.Rule, f *factors) (PropertyResult, error) {
+func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, r spec.Rule, f *stats.Factors) (PropertyResult, error) {
 	sign, limit := 1.0, l.Min
 	word, beyond := "minimum", "below"
 	if side == "max" {
@@ -439,12 +439,12 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		pr.Verdict = orUndecided(decided)
 		return pr, nil
 	}
-	mb, err := f.meanLowerBound(n, mean, sd, r.Confidence)
+	mb, err := f.MeanLowerBound(n, mean, sd, r.Confidence)
 	if err != nil {
 		return pr, err
 	}
 	pr.MeanBound = lots.Float(sign * mb)
-	k, err := f.normalK(n, r.Content, r.Confidence)
+	k, err := f.NormalK(n, r.Content, r.Confidence)
 	if err != nil {
 		return pr, err
 	}
@@ -487,7 +487,7 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 	default:
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is %s the %s %s: confidence %g for content %g not reached", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Confidence, r.Content))
-		need, err := neededSpecimens(q, r.Content, r.Confidence, n, f.normalK)
+		need, err := neededSpecimens(q, r.Content, r.Confidence, n, f.NormalK)
 		if err != nil {
 			return pr, err
 		}
