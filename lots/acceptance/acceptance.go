@@ -161,6 +161,7 @@ type Judging struct {
 	specs []*spec.Spec
 	by    lots.GroupBy
 	f     *stats.Factors
+	mnr   mnrCritical
 	jobs  chan job
 	wg    sync.WaitGroup
 	out   []*judged
@@ -219,7 +220,7 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 		go func() {
 			defer j.wg.Done()
 			for jb := range j.jobs {
-				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
+				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f, &j.mnr)
 			}
 		}()
 	}
@@ -278,7 +279,7 @@ func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
 
 var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
 
-func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors) (LotResult, error) {
+func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors, mnr *mnrCritical) (LotResult, error) {
 	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: g.Len(),
 		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
 	if g.Mixed {
@@ -318,7 +319,7 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 			lr.Properties = append(lr.Properties, pr)
 		}
 		// Outlier screen (flag, never delete).
-		if len(vals) >= 3 {
+		if len(vals) >= 3 && !mnr.clearlyNoOutlier(vals) {
 			fl, err := stats.ScreenOutliers(vals, OutlierAlpha, true)
 			if err == nil {
 				for _, f := range fl {
