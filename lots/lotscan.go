@@ -11,6 +11,8 @@ import (
 	"path/filepath"
 	"strings"
 	"unsafe"
+
+	"lotproof/lots/input"
 )
 
 // Lot is one lot (or heat) with its specimens held compactly: one column
@@ -130,12 +132,31 @@ func ScanLotsFile(name string, opt ReadOptions, scan LotScan) (*Dataset, error) 
 		}
 		return d, d.ScanLots(scan)
 	}
-	f, err := os.Open(name)
+	// Opened as ReadFile opens it (package input: a regular file within
+	// the cap), but seekable, for a second pass.
+	f, _, err := input.OpenFile(name, input.Results)
 	if err != nil {
-		return nil, Inputf(name, "check the path", "cannot open the results file: %v", unwrapPath(err))
+		return nil, fromInput(err)
 	}
 	defer f.Close()
-	return scanLots(f, name, opt.Progress, scan)
+	return scanLots(&cappedFile{f: f, name: name, r: input.Limit(f, name, input.Results)}, name, opt.Progress, scan)
+}
+
+// cappedFile reads a file through input.Limit and can go back to the start.
+type cappedFile struct {
+	f    *os.File
+	name string
+	r    io.Reader
+}
+
+func (c *cappedFile) Read(p []byte) (int, error) { return c.r.Read(p) }
+
+func (c *cappedFile) Seek(off int64, whence int) (int64, error) {
+	n, err := c.f.Seek(off, whence)
+	if err == nil && whence == io.SeekStart && n == 0 {
+		c.r = input.Limit(c.f, c.name, input.Results) // the cap counts afresh
+	}
+	return n, err
 }
 
 // ScanLots hands over the lots of a dataset already in memory, in the
