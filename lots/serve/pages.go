@@ -16,6 +16,7 @@ import (
 	"lotproof/lots"
 	"lotproof/lots/render"
 	"lotproof/lots/report"
+	"lotproof/lots/store"
 	"lotproof/lots/trend"
 	"lotproof/lots/units"
 	"lotproof/stats"
@@ -506,7 +507,7 @@ func (s *Server) lot(c *reqCtx) (*reply, error) {
 	if s.cache.stale(snap) {
 		idx = nil // the history changed since: read the verdicts afresh
 	}
-	d, ok, err := s.db.lot(c.r.Context(), id, idx)
+	d, ok, err := s.db.Lot(c.r.Context(), id, idx)
 	if err != nil {
 		return nil, err
 	}
@@ -586,8 +587,8 @@ type lotData struct {
 
 // limitsFor picks the limits a verdict was judged against: those recorded
 // with its import for its specification, else those in force.
-func limitsFor(d *lotDetail, v verdictRow) []importedLimit {
-	var own, now []importedLimit
+func limitsFor(d *store.LotDetail, v store.VerdictRecord) []store.ImportedLimit {
+	var own, now []store.ImportedLimit
 	for _, l := range d.AllLimits {
 		if l.Spec == v.Spec && l.Import == v.Import {
 			own = append(own, l)
@@ -606,7 +607,7 @@ func limitsFor(d *lotDetail, v verdictRow) []importedLimit {
 
 // reasons says, per property limited by the specification, what the
 // stored values of the lot show against the limits.
-func reasons(d *lotDetail, limits []importedLimit, convs map[string]conv) []string {
+func reasons(d *store.LotDetail, limits []store.ImportedLimit, convs map[string]conv) []string {
 	var out []string
 	if len(limits) == 0 {
 		return []string{"no limits of this specification for " + d.Lot.Material + " are recorded"}
@@ -680,7 +681,7 @@ func (s *Server) search(c *reqCtx) (*reply, error) {
 		if err != nil {
 			return nil, err
 		}
-		hits, err := s.db.search(c.r.Context(), q, snap.index)
+		hits, err := s.db.Search(c.r.Context(), q, snap.index)
 		if err != nil {
 			return nil, err
 		}

@@ -269,15 +269,13 @@ func TestReadOnly(t *testing.T) {
 		t.Run(b.name, func(t *testing.T) {
 			loc := b.fresh(t)
 			history(t, loc)
-			_, db := newServer(t, loc, Options{})
-			for _, q := range []string{`DELETE FROM lots`, `INSERT INTO properties (property, quantity, unit) VALUES ('x', 'stress', 'MPa')`, `CREATE TABLE x (a TEXT)`} {
-				if _, err := db.db.Exec(q); err == nil {
-					t.Errorf("%s: accepted on the read-only connection", q)
-				}
-			}
-			var n int
-			if err := db.db.QueryRow(`SELECT COUNT(*) FROM lots`).Scan(&n); err != nil || n != 24 {
-				t.Errorf("lots after refused writes: %d, %v", n, err)
+			// The refused writes are checked on the connection itself in
+			// lots/store (TestOpenView); here the server reads as usual.
+			s, _ := newServer(t, loc, Options{})
+			var ov Overview
+			getJSON(t, s, "/?format=json", &ov)
+			if len(ov.Suppliers) != 2 {
+				t.Errorf("suppliers %+v", ov.Suppliers)
 			}
 		})
 	}
@@ -415,9 +413,9 @@ type blocking struct {
 	release chan struct{}
 }
 
-func (b blocking) LotData(ctx context.Context, f store.Filter) ([]store.LotValues, error) {
+func (b blocking) LotSamples(ctx context.Context, f store.Filter) ([]store.LotValues, error) {
 	<-b.release
-	return b.History.LotData(ctx, f)
+	return b.History.LotSamples(ctx, f)
 }
 
 // TestBusy: beyond MaxInFlight requests at once, the server answers 503

@@ -75,14 +75,14 @@ func New(db *DB, hist History, opt Options) (*Server, error) {
 		return nil, err
 	}
 	s := &Server{db: db, opt: opt, sem: make(chan struct{}, opt.MaxInFlight), log: opt.Log}
-	s.cache = newCache(func(ctx context.Context) (*trend.Result, *index, error) {
-		idx, err := db.loadIndex(ctx)
+	s.cache = newCache(func(ctx context.Context) (*trend.Result, *store.LookupIndex, error) {
+		idx, err := db.LoadIndex(ctx)
 		if err != nil {
 			return nil, nil, err
 		}
 		r, err := computeTrend(ctx, hist, topt)
 		return r, idx, err
-	}, db.fingerprint, opt.Log)
+	}, db.Fingerprint, opt.Log)
 	if opt.Token != "" {
 		if len(opt.Token) < MinTokenLength {
 			return nil, lots.Inputf("--token", fmt.Sprintf("use a random token of at least %d characters (for example: openssl rand -hex 24)", MinTokenLength), "the token is too short")
@@ -96,7 +96,7 @@ func New(db *DB, hist History, opt Options) (*Server, error) {
 // computeTrend reads the history and computes the supplier trend. It is the
 // one place that knows how the trend gets its data.
 func computeTrend(ctx context.Context, h History, o trend.Options) (*trend.Result, error) {
-	data, err := h.LotData(ctx, store.Filter{})
+	data, err := h.LotSamples(ctx, store.Filter{})
 	if err != nil {
 		return nil, err
 	}

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"lotproof/lots"
+	"lotproof/lots/store"
 	"lotproof/lots/trend"
 	"lotproof/lots/units"
 )
@@ -22,7 +23,7 @@ import (
 type snapshot struct {
 	key      string
 	base     *trend.Result // internal units; never changed after it is made
-	index    *index
+	index    *store.LookupIndex
 	computed time.Duration
 
 	mu    sync.Mutex
@@ -270,7 +271,7 @@ func itoa(n int64) string { return strconv.FormatInt(n, 10) }
 // served the previous snapshot, so that an import never stalls the pages
 // (they lag it by the computation's time).
 type cache struct {
-	compute func(ctx context.Context) (*trend.Result, *index, error)
+	compute func(ctx context.Context) (*trend.Result, *store.LookupIndex, error)
 	finger  func(ctx context.Context) (string, error)
 	every   time.Duration // how often the fingerprint is read at most
 	log     io.Writer
@@ -283,7 +284,7 @@ type cache struct {
 	busy       chan struct{}
 }
 
-func newCache(compute func(context.Context) (*trend.Result, *index, error), finger func(context.Context) (string, error), log io.Writer) *cache {
+func newCache(compute func(context.Context) (*trend.Result, *store.LookupIndex, error), finger func(context.Context) (string, error), log io.Writer) *cache {
 	return &cache{compute: compute, finger: finger, every: time.Second, log: log, busy: make(chan struct{}, 1)}
 }
 

@@ -3,7 +3,6 @@ package store
 import (
 	"context"
 	"database/sql"
-	"math"
 	"sort"
 )
 
@@ -127,7 +126,7 @@ func (s *Store) LotVerdicts(ctx context.Context) (map[string][]Verdict, error) {
 			return nil, err
 		}
 		k := [2]string{r.v.Lot, r.v.Spec}
-		if old, ok := latest[k]; !ok || r.at > old.at || (r.at == old.at && r.dg > old.dg) {
+		if old, ok := latest[k]; !ok || latestFirst(r.at, r.dg, old.at, old.dg) {
 			latest[k] = r
 		}
 	}
@@ -147,52 +146,14 @@ func (s *Store) LotVerdicts(ctx context.Context) (map[string][]Verdict, error) {
 // SpecLimits returns the specification limits recorded with the imports,
 // the latest import's per (spec, material, property), sorted.
 func (s *Store) SpecLimits(ctx context.Context) ([]SpecLimit, error) {
-	rows, err := s.db.QueryContext(ctx, `SELECT l.spec, l.material, l.property, l.minimum, l.maximum, l.unit, i.imported_at, i.digest
-		FROM spec_limits l JOIN imports i ON i.digest = l.import_digest`)
+	ls, err := s.limits(ctx, "", nil)
 	if err != nil {
 		return nil, err
 	}
-	defer rows.Close()
-	type rec struct {
-		l      SpecLimit
-		at, dg string
-	}
-	latest := map[[3]string]rec{}
-	for rows.Next() {
-		var r rec
-		var lo, hi sql.NullFloat64
-		if err := rows.Scan(&r.l.Spec, &r.l.Material, &r.l.Property, &lo, &hi, &r.l.Unit, &r.at, &r.dg); err != nil {
-			return nil, err
-		}
-		r.l.Minimum, r.l.Maximum = math.NaN(), math.NaN()
-		if lo.Valid {
-			r.l.Minimum = lo.Float64
-		}
-		if hi.Valid {
-			r.l.Maximum = hi.Float64
-		}
-		k := [3]string{r.l.Spec, r.l.Material, r.l.Property}
-		if old, ok := latest[k]; !ok || r.at > old.at || (r.at == old.at && r.dg > old.dg) {
-			latest[k] = r
-		}
-	}
-	if err := rows.Err(); err != nil {
-		return nil, err
-	}
 	var out []SpecLimit
-	for _, r := range latest {
-		out = append(out, r.l)
+	for _, l := range ls {
+		out = append(out, l.SpecLimit)
 	}
-	sort.Slice(out, func(i, j int) bool {
-		a, b := out[i], out[j]
-		if a.Spec != b.Spec {
-			return a.Spec < b.Spec
-		}
-		if a.Material != b.Material {
-			return a.Material < b.Material
-		}
-		return a.Property < b.Property
-	})
 	return out, nil
 }
 

@@ -152,3 +152,33 @@ func TestOpenReadOnlyWriteProtectedFile(t *testing.T) {
 		t.Fatalf("read %d lots (%v)", len(lv), err)
 	}
 }
+
+// OpenView (lotproof serve's opener) refuses every write on both backends
+// and leaves the history as it was.
+func TestOpenView(t *testing.T) {
+	ctx := context.Background()
+	for _, b := range backends(t) {
+		t.Run(b.name, func(t *testing.T) {
+			url := b.fresh(t)
+			w := open(t, url)
+			if _, err := w.Record(ctx, dataset(t, "a.csv", synth("VW", 4, 3, 7)), nil, nil, Meta{Time: t0, User: "u"}); err != nil {
+				t.Fatal(err)
+			}
+			w.Close()
+			v, err := OpenView(ctx, url, "serve")
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer v.Close()
+			for _, q := range []string{`DELETE FROM lots`, `INSERT INTO properties (property, quantity, unit) VALUES ('x', 'stress', 'MPa')`, `CREATE TABLE x (a TEXT)`} {
+				if _, err := v.db.Exec(q); err == nil {
+					t.Errorf("%s: accepted on the read-only connection", q)
+				}
+			}
+			var n int
+			if err := v.db.QueryRow(`SELECT COUNT(*) FROM lots`).Scan(&n); err != nil || n != 4 {
+				t.Errorf("lots after refused writes: %d, %v", n, err)
+			}
+		})
+	}
+}

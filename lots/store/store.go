@@ -12,9 +12,10 @@ import (
 	"strings"
 	"time"
 
+	"github.com/jackc/pgx/v5"
 	"github.com/jackc/pgx/v5/pgconn"
-	_ "github.com/jackc/pgx/v5/stdlib" // driver "pgx"
-	_ "modernc.org/sqlite"             // driver "sqlite"
+	"github.com/jackc/pgx/v5/stdlib" // also registers the driver "pgx"
+	_ "modernc.org/sqlite"           // driver "sqlite"
 )
 
 // DefaultPath is the SQLite database file used when neither --db nor
@@ -62,51 +63,34 @@ func IsPostgres(url string) bool {
 // PostgreSQL connection URL; anything else is a SQLite file path (an
 // optional "sqlite:" or "file:" prefix is removed).
 func Open(ctx context.Context, url string) (*Store, error) {
-	url = strings.TrimSpace(url)
-	if url == "" {
-		return nil, errors.New("store: empty database location")
+	backend, loc, err := location("store", url)
+	if err != nil {
+		return nil, err
 	}
 	var s *Store
-	if IsPostgres(url) {
-		db, err := sql.Open("pgx", url)
-		if err != nil {
-			return nil, fmt.Errorf("store: %w", err)
+	if backend == Postgres {
+		if s, err = openPostgres("store", loc, nil, 4); err != nil {
+			return nil, err
 		}
-		db.SetMaxOpenConns(4)
-		s = &Store{db: db, backend: Postgres, where: redact(url)}
 	} else {
-		path := strings.TrimPrefix(strings.TrimPrefix(url, "sqlite:"), "file:")
-		if strings.ContainsAny(path, "?#") {
-			return nil, fmt.Errorf("store: SQLite file name %q contains ? or #; rename the file", path)
-		}
+		path := loc
 		if dir := filepath.Dir(path); dir != "" {
 			if fi, err := os.Stat(dir); err != nil || !fi.IsDir() {
 				return nil, fmt.Errorf("store: folder %q of the database file does not exist", dir)
 			}
 		}
 		dsn := path + "?_pragma=busy_timeout(20000)&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_txlock=immediate"
-		db, err := sql.Open("sqlite", dsn)
-		if err != nil {
-			return nil, fmt.Errorf("store: %w", err)
-		}
 		// One connection: SQLite allows one writer at a time anyway, and
 		// a single connection keeps this process from locking itself out.
-		db.SetMaxOpenConns(1)
-		s = &Store{db: db, backend: SQLite, where: path}
+		if s, err = openSQLite(path, dsn, 1); err != nil {
+			return nil, err
+		}
 	}
 	// The first connection sets SQLite's WAL mode, which needs a moment
 	// of exclusive access when several processes open a new file at once:
-	// retry while the database is busy.
-	var err error
-	for attempt := 0; attempt < maxAttempts; attempt++ {
-		if err = s.db.PingContext(ctx); err == nil || !retryable(err) {
-			break
-		}
-		time.Sleep(time.Duration(10+rand.IntN(40)) * time.Millisecond)
-	}
-	if err != nil {
-		s.db.Close()
-		return nil, fmt.Errorf("store: cannot reach %s: %w", s.where, err)
+	// reach retries while the database is busy.
+	if err := s.reach(ctx, "store"); err != nil {
+		return nil, err
 	}
 	if err := s.migrate(ctx, Latest()); err != nil {
 		s.db.Close()
@@ -125,27 +109,17 @@ func Open(ctx context.Context, url string) (*Store, error) {
 // (the only write a reading command makes); a database without lotproof's
 // schema is refused.
 func OpenReadOnly(ctx context.Context, url string) (*Store, error) {
-	url = strings.TrimSpace(url)
-	if url == "" {
-		return nil, errors.New("store: empty database location")
+	backend, loc, err := location("store", url)
+	if err != nil {
+		return nil, err
 	}
 	var s *Store
-	if IsPostgres(url) {
-		sep := "?"
-		if strings.Contains(url, "?") {
-			sep = "&"
+	if backend == Postgres {
+		if s, err = openPostgres("store", loc, readOnlySession, 4); err != nil {
+			return nil, err
 		}
-		db, err := sql.Open("pgx", url+sep+"default_transaction_read_only=on")
-		if err != nil {
-			return nil, fmt.Errorf("store: %w", err)
-		}
-		db.SetMaxOpenConns(4)
-		s = &Store{db: db, backend: Postgres, where: redact(url)}
 	} else {
-		path := strings.TrimPrefix(strings.TrimPrefix(url, "sqlite:"), "file:")
-		if strings.ContainsAny(path, "?#") {
-			return nil, fmt.Errorf("store: SQLite file name %q contains ? or #; rename the file", path)
-		}
+		path := loc
 		fi, err := os.Stat(path)
 		if err != nil {
 			return nil, fmt.Errorf("store: there is no database %s (%v); check --db or $%s, or record results first with lotproof record", path, unwrapPath(err), EnvVar)
@@ -153,8 +127,6 @@ func OpenReadOnly(ctx context.Context, url string) (*Store, error) {
 		if !fi.Mode().IsRegular() {
 			return nil, fmt.Errorf("store: %s is not a database file; check --db or $%s", path, EnvVar)
 		}
-		// A URI filename: % is the only character of a path that needs
-		// escaping once ? and # are excluded (SQLite, "URI Filenames").
 		// mode=rw never creates the file; query_only refuses every write
 		// (SQLite, "PRAGMA query_only"), while the connection can still
 		// tidy the write-ahead log away when it closes. A file that
@@ -165,24 +137,13 @@ func OpenReadOnly(ctx context.Context, url string) (*Store, error) {
 		} else {
 			f.Close()
 		}
-		dsn := "file:" + strings.ReplaceAll(path, "%", "%25") + "?mode=" + mode + "&_pragma=query_only(1)&_pragma=busy_timeout(20000)&_pragma=foreign_keys(1)"
-		db, err := sql.Open("sqlite", dsn)
-		if err != nil {
-			return nil, fmt.Errorf("store: %w", err)
+		dsn := fileURI(path) + "?mode=" + mode + "&_pragma=query_only(1)&_pragma=busy_timeout(20000)&_pragma=foreign_keys(1)"
+		if s, err = openSQLite(path, dsn, 1); err != nil {
+			return nil, err
 		}
-		db.SetMaxOpenConns(1)
-		s = &Store{db: db, backend: SQLite, where: path}
 	}
-	var err error
-	for attempt := 0; attempt < maxAttempts; attempt++ {
-		if err = s.db.PingContext(ctx); err == nil || !retryable(err) {
-			break
-		}
-		time.Sleep(time.Duration(10+rand.IntN(40)) * time.Millisecond)
-	}
-	if err != nil {
-		s.db.Close()
-		return nil, fmt.Errorf("store: cannot reach %s: %w", s.where, err)
+	if err := s.reach(ctx, "store"); err != nil {
+		return nil, err
 	}
 	var v sql.NullInt64
 	if err := s.db.QueryRowContext(ctx, `SELECT MAX(version) FROM schema_version`).Scan(&v); err != nil || !v.Valid {
@@ -203,6 +164,135 @@ func OpenReadOnly(ctx context.Context, url string) (*Store, error) {
 		return OpenReadOnly(ctx, url)
 	}
 	return s, nil
+}
+
+// readOnlySession makes a PostgreSQL session refuse every write.
+var readOnlySession = map[string]string{"default_transaction_read_only": "on"}
+
+// ServeConns bounds the connections of a database opened with OpenView.
+const ServeConns = 4
+
+// OpenView opens an existing database for a long-running reader (lotproof
+// serve) that must never write, not even to bring an older schema up to
+// date. SQLite is opened through a file: URI with mode=ro (a missing file
+// is refused, never created), query_only and case-sensitive LIKE;
+// PostgreSQL sessions start with default_transaction_read_only=on, so the
+// server itself refuses any write. A database whose schema is older or
+// newer than this build's is refused with a message. Messages start with
+// who (e.g. "serve"), which also names the PostgreSQL application.
+func OpenView(ctx context.Context, url, who string) (*Store, error) {
+	backend, loc, err := location(who, url)
+	if err != nil {
+		return nil, err
+	}
+	var s *Store
+	if backend == Postgres {
+		params := map[string]string{"application_name": "lotproof " + who}
+		for k, v := range readOnlySession {
+			params[k] = v
+		}
+		if s, err = openPostgres(who, loc, params, ServeConns); err != nil {
+			return nil, err
+		}
+	} else {
+		path := loc
+		fi, err := os.Stat(path)
+		if err != nil {
+			return nil, fmt.Errorf("%s: database file %s: %w (lotproof %s never creates one; record results first)", who, path, err, who)
+		}
+		if fi.IsDir() {
+			return nil, fmt.Errorf("%s: %s is a folder, not a database file", who, path)
+		}
+		dsn := fileURI(path) + "?mode=ro&_pragma=query_only(1)&_pragma=busy_timeout(5000)&_pragma=case_sensitive_like(1)"
+		if s, err = openSQLite(path, dsn, ServeConns); err != nil {
+			return nil, fmt.Errorf("%s: %w", who, errors.Unwrap(err))
+		}
+	}
+	s.db.SetMaxIdleConns(ServeConns)
+	if err := s.reach(ctx, who); err != nil {
+		return nil, err
+	}
+	var v sql.NullInt64
+	if err := s.db.QueryRowContext(ctx, `SELECT MAX(version) FROM schema_version`).Scan(&v); err != nil {
+		s.db.Close()
+		return nil, fmt.Errorf("%s: %s holds no lot history (%v); record results into it first", who, s.where, err)
+	}
+	if int(v.Int64) != Latest() {
+		s.db.Close()
+		return nil, fmt.Errorf("%s: %s has schema version %d, this lotproof reads version %d; open it once with lotproof record of the same version, or use a matching lotproof",
+			who, s.where, v.Int64, Latest())
+	}
+	return s, nil
+}
+
+// location splits a database location into its backend and the
+// PostgreSQL URL or SQLite file path (without a "sqlite:" or "file:"
+// prefix). Messages start with who.
+func location(who, url string) (Backend, string, error) {
+	url = strings.TrimSpace(url)
+	if url == "" {
+		return "", "", fmt.Errorf("%s: empty database location", who)
+	}
+	if IsPostgres(url) {
+		return Postgres, url, nil
+	}
+	path := strings.TrimPrefix(strings.TrimPrefix(url, "sqlite:"), "file:")
+	if strings.ContainsAny(path, "?#") {
+		return "", "", fmt.Errorf("%s: SQLite file name %q contains ? or #; rename the file", who, path)
+	}
+	return SQLite, path, nil
+}
+
+// openPostgres prepares (without connecting) a pool of at most conns
+// connections to the PostgreSQL server at url, with the run-time
+// parameters params set on every session (over any the URL sets).
+// Messages start with who.
+func openPostgres(who, url string, params map[string]string, conns int) (*Store, error) {
+	cfg, err := pgx.ParseConfig(url)
+	if err != nil {
+		return nil, fmt.Errorf("%s: database URL: %w", who, err)
+	}
+	for k, v := range params {
+		cfg.RuntimeParams[k] = v
+	}
+	db := stdlib.OpenDB(*cfg)
+	db.SetMaxOpenConns(conns)
+	return &Store{db: db, backend: Postgres, where: redact(url)}, nil
+}
+
+// openSQLite prepares (without connecting) a pool of at most conns
+// connections to the SQLite file path, through the driver name dsn.
+func openSQLite(path, dsn string, conns int) (*Store, error) {
+	db, err := sql.Open("sqlite", dsn)
+	if err != nil {
+		return nil, fmt.Errorf("store: %w", err)
+	}
+	db.SetMaxOpenConns(conns)
+	return &Store{db: db, backend: SQLite, where: path}, nil
+}
+
+// fileURI makes a SQLite URI filename of path: % is the only character of
+// a path that needs escaping once ? and # are excluded (SQLite, "URI
+// Filenames").
+func fileURI(path string) string {
+	return "file:" + strings.ReplaceAll(path, "%", "%25")
+}
+
+// reach connects, retrying while the database is busy, and closes the
+// pool when it cannot connect. Messages start with who.
+func (s *Store) reach(ctx context.Context, who string) error {
+	var err error
+	for attempt := 0; attempt < maxAttempts; attempt++ {
+		if err = s.db.PingContext(ctx); err == nil || !retryable(err) {
+			break
+		}
+		time.Sleep(time.Duration(10+rand.IntN(40)) * time.Millisecond)
+	}
+	if err != nil {
+		s.db.Close()
+		return fmt.Errorf("%s: cannot reach %s: %w", who, s.where, err)
+	}
+	return nil
 }
 
 func unwrapPath(err error) error {
