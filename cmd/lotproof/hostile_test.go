@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"hash/crc32"
 	"io/fs"
-	"math/rand/v2"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -17,6 +16,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"lotproof/lots/store/pgtest"
 )
 
 // The hostile-input table (issue 14): devices, pipes, bombs, huge and
@@ -508,7 +509,7 @@ func TestHostileRecordPostgres(t *testing.T) {
 	if pg == "" {
 		t.Skip("LOTPROOF_TEST_PG is not set: PostgreSQL half skipped")
 	}
-	url := freshPGDatabase(t, pg)
+	url := pgtest.Fresh(t, pg)
 	for name, content := range map[string]string{
 		"nul":  "specimen,lot,material,tested,tensile [MPa]\nA-1,L-1,bar\x00,2026-01-05,1000\n",
 		"utf8": "specimen,lot,material,tested,tensile [MPa]\nA-1,L-1\xc3,bar,2026-01-05,1000\n",
@@ -547,34 +548,6 @@ func TestHostileRecordPostgres(t *testing.T) {
 	if n != 0 {
 		t.Fatalf("trend created %d tables", n)
 	}
-}
-
-// freshPGDatabase creates a database with a random name on the server of
-// url and drops it when the test ends.
-func freshPGDatabase(t *testing.T, url string) string {
-	t.Helper()
-	admin, err := sql.Open("pgx", url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer admin.Close()
-	name := fmt.Sprintf("lotproof_h_%d_%d", time.Now().UnixNano(), rand.IntN(1e6))
-	if _, err := admin.Exec("CREATE DATABASE " + name); err != nil {
-		t.Fatalf("creating a test database: %v", err)
-	}
-	t.Cleanup(func() {
-		a, err := sql.Open("pgx", url)
-		if err != nil {
-			return
-		}
-		defer a.Close()
-		a.Exec("DROP DATABASE IF EXISTS " + name + " WITH (FORCE)")
-	})
-	base, q := url, ""
-	if i := strings.Index(url, "?"); i >= 0 {
-		base, q = url[:i], url[i:]
-	}
-	return base[:strings.LastIndex(base, "/")+1] + name + q
 }
 
 // An .xlsx read interrupted by SIGTERM (and by SIGINT) leaves no temporary

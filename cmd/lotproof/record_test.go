@@ -15,6 +15,8 @@ import (
 	"time"
 
 	"lotproof/lots/store"
+
+	"lotproof/lots/store/pgtest"
 )
 
 const recordCSV = `specimen,lot,heat,supplier,material,tested,tensile [MPa],proof [MPa]
@@ -200,7 +202,7 @@ func TestRecordChildProcess(t *testing.T) {
 func TestConcurrentRecordProcesses(t *testing.T) {
 	dbs := map[string]string{"sqlite": filepath.Join(t.TempDir(), "c.db")}
 	if pg := os.Getenv("LOTPROOF_TEST_PG"); pg != "" {
-		dbs["postgres"] = freshPGDatabase(t, pg)
+		dbs["postgres"] = pgtest.Fresh(t, pg)
 	} else {
 		t.Log("LOTPROOF_TEST_PG is not set: PostgreSQL half skipped")
 	}

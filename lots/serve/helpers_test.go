@@ -3,20 +3,20 @@ package serve
 import (
 	"context"
 	"crypto/sha256"
-	"database/sql"
 	"encoding/hex"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 	"time"
 
 	"lotproof/lots"
 	"lotproof/lots/store"
 	"lotproof/lots/units"
+
+	"lotproof/lots/store/pgtest"
 )
 
 // hostile is the report's escaping-test string (lots/report/fixture_test.go),
@@ -38,37 +38,9 @@ func backends(t testing.TB) []backend {
 		if pg == "" {
 			t.Skip("LOTPROOF_TEST_PG is not set: skipping the PostgreSQL half (run .ci/start-postgres and export LOTPROOF_TEST_PG)")
 		}
-		return freshPG(t, pg)
+		return pgtest.Fresh(t, pg)
 	}})
 	return bs
-}
-
-// freshPG creates a database with a random name on the server of url and
-// drops it when the test ends.
-func freshPG(t testing.TB, url string) string {
-	t.Helper()
-	admin, err := sql.Open("pgx", url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer admin.Close()
-	name := fmt.Sprintf("lotproof_serve_%d_%d", time.Now().UnixNano(), rand.IntN(1e6))
-	if _, err := admin.Exec("CREATE DATABASE " + name); err != nil {
-		t.Fatalf("creating a test database: %v", err)
-	}
-	t.Cleanup(func() {
-		a, err := sql.Open("pgx", url)
-		if err != nil {
-			return
-		}
-		defer a.Close()
-		a.Exec("DROP DATABASE IF EXISTS " + name + " WITH (FORCE)")
-	})
-	base, q, _ := strings.Cut(url, "?")
-	if q != "" {
-		q = "?" + q
-	}
-	return base[:strings.LastIndex(base, "/")+1] + name + q
 }
 
 // lotSpec is one synthetic lot: five specimens of tensile and proof

@@ -22,6 +22,8 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/units"
+
+	"lotproof/lots/store/pgtest"
 )
 
 // The suite runs against every backend: SQLite always, PostgreSQL when
@@ -44,39 +46,9 @@ func backends(t *testing.T) []backend {
 			return ""
 		}})
 	} else {
-		bs = append(bs, backend{"postgres", func(t *testing.T) string { return freshPG(t, pg) }})
+		bs = append(bs, backend{"postgres", func(t *testing.T) string { return pgtest.Fresh(t, pg) }})
 	}
 	return bs
-}
-
-// freshPG creates a database with a random name on the server of url and
-// drops it when the test ends.
-func freshPG(t *testing.T, url string) string {
-	t.Helper()
-	admin, err := sql.Open("pgx", url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer admin.Close()
-	name := fmt.Sprintf("lotproof_t_%d_%d", time.Now().UnixNano(), rand.IntN(1e6))
-	if _, err := admin.Exec("CREATE DATABASE " + name); err != nil {
-		t.Fatalf("creating a test database on %s: %v", redact(url), err)
-	}
-	t.Cleanup(func() {
-		a, err := sql.Open("pgx", url)
-		if err != nil {
-			return
-		}
-		defer a.Close()
-		a.Exec("DROP DATABASE IF EXISTS " + name + " WITH (FORCE)")
-	})
-	q := ""
-	base := url
-	if i := strings.Index(url, "?"); i >= 0 {
-		base, q = url[:i], url[i:]
-	}
-	slash := strings.LastIndex(base, "/")
-	return base[:slash+1] + name + q
 }
 
 func open(t *testing.T, url string) *Store {

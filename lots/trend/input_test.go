@@ -3,18 +3,16 @@ package trend
 import (
 	"bytes"
 	"context"
-	"database/sql"
 	"encoding/json"
-	"fmt"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 	"time"
 
 	"lotproof/lots"
 	"lotproof/lots/store"
+
+	"lotproof/lots/store/pgtest"
 )
 
 // testDBs gives the URL of a fresh SQLite database and, when
@@ -28,23 +26,7 @@ func testDBs(t testing.TB) map[string]string {
 		t.Log("LOTPROOF_TEST_PG is not set: PostgreSQL half skipped")
 		return dbs
 	}
-	admin, err := sql.Open("pgx", pg)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer admin.Close()
-	name := fmt.Sprintf("lotproof_trend_%d_%d", time.Now().UnixNano(), rand.IntN(1e6))
-	if _, err := admin.Exec("CREATE DATABASE " + name); err != nil {
-		t.Fatalf("creating a test database: %v", err)
-	}
-	t.Cleanup(func() {
-		if a, err := sql.Open("pgx", pg); err == nil {
-			a.Exec("DROP DATABASE IF EXISTS " + name + " WITH (FORCE)")
-			a.Close()
-		}
-	})
-	base, q, _ := strings.Cut(pg, "?")
-	dbs["postgres"] = base[:strings.LastIndex(base, "/")+1] + name + "?" + q
+	dbs["postgres"] = pgtest.Fresh(t, pg)
 	return dbs
 }
 
