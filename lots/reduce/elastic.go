@@ -78,26 +78,9 @@ func fitWindow(x, s []float64, lo, hi int) (w window, ok bool) {
 	w.slope = bu / hw
 	w.se = math.Sqrt(sse/(fm-2)/suu) / hw
 	// Parabola.
-	A := [3][6]float64{{S[0], S[1], S[2], 1, 0, 0}, {S[1], S[2], S[3], 0, 1, 0}, {S[2], S[3], S[4], 0, 0, 1}}
-	for col := 0; col < 3; col++ {
-		piv := col
-		for r := col + 1; r < 3; r++ {
-			if math.Abs(A[r][col]) > math.Abs(A[piv][col]) {
-				piv = r
-			}
-		}
-		A[col], A[piv] = A[piv], A[col]
-		if A[col][col] == 0 {
-			return w, false
-		}
-		for r := 0; r < 3; r++ {
-			if r != col {
-				f := A[r][col] / A[col][col]
-				for k := col; k < 6; k++ {
-					A[r][k] -= f * A[col][k]
-				}
-			}
-		}
+	A := [3][]float64{{S[0], S[1], S[2], 1, 0, 0}, {S[1], S[2], S[3], 0, 1, 0}, {S[2], S[3], S[4], 0, 0, 1}}
+	if !gaussJordan3(&A) {
+		return w, false
 	}
 	var c [3]float64
 	var inv [3][3]float64

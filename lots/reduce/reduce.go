@@ -868,7 +868,22 @@ func quadFit(x, s []float64, xc, w float64) (c [3]float64, ok bool) {
 	if n < 5 {
 		return c, false
 	}
-	m := [3][4]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
+	m := [3][]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
+	if !gaussJordan3(&m) {
+		return c, false
+	}
+	for k := 0; k < 3; k++ {
+		c[k] = m[k][3] / m[k][k]
+	}
+	return c, true
+}
+
+// gaussJordan3 reduces the augmented 3-row matrix *m (the 3x3 system in
+// its first three columns) to diagonal form in place by Gauss-Jordan
+// elimination with partial pivoting (Press et al., Numerical Recipes,
+// 3rd ed., section 2.1): afterwards row r solves as m[r][k]/m[r][r] for
+// each right-hand-side column k >= 3. It is false at a zero pivot.
+func gaussJordan3(m *[3][]float64) bool {
 	for col := 0; col < 3; col++ {
 		piv := col
 		for r := col + 1; r < 3; r++ {
@@ -878,21 +893,18 @@ func quadFit(x, s []float64, xc, w float64) (c [3]float64, ok bool) {
 		}
 		m[col], m[piv] = m[piv], m[col]
 		if m[col][col] == 0 {
-			return c, false
+			return false
 		}
 		for r := 0; r < 3; r++ {
 			if r != col {
 				f := m[r][col] / m[col][col]
-				for k := col; k < 4; k++ {
+				for k := col; k < len(m[r]); k++ {
 					m[r][k] -= f * m[col][k]
 				}
 			}
 		}
 	}
-	for k := 0; k < 3; k++ {
-		c[k] = m[k][3] / m[k][k]
-	}
-	return c, true
+	return true
 }
 
 // parabolaVertex returns the strain of the vertex of the least-squares
