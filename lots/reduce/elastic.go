@@ -48,22 +48,14 @@ func fitWindow(x, s []float64, lo, hi int) (w window, ok bool) {
 	if !(hw > 0) {
 		return w, false
 	}
-	var S [5]float64
-	var T [3]float64
+	var q quadSums
 	var sy, syy float64
 	for i := lo; i < hi; i++ {
-		u := (x[i] - xc) / hw
-		p := 1.0
-		for k := 0; k < 5; k++ {
-			S[k] += p
-			if k < 3 {
-				T[k] += p * s[i]
-			}
-			p *= u
-		}
+		q.add((x[i]-xc)/hw, s[i])
 		sy += s[i]
 		syy += s[i] * s[i]
 	}
+	S, T := &q.S, &q.T
 	fm := float64(m)
 	// Line in u: slope_u = Suy/Suu (centred).
 	suu := S[2] - S[1]*S[1]/fm

@@ -847,27 +847,19 @@ func quadFit(x, s []float64, xc, w float64) (c [3]float64, ok bool) {
 	if !(w > 0) {
 		return c, false
 	}
-	var S [5]float64
-	var T [3]float64
+	var q quadSums
 	n := 0
 	for i := range x {
 		if x[i] < xc-w || x[i] > xc+w {
 			continue
 		}
 		n++
-		u := (x[i] - xc) / w
-		p := 1.0
-		for k := 0; k < 5; k++ {
-			S[k] += p
-			if k < 3 {
-				T[k] += p * s[i]
-			}
-			p *= u
-		}
+		q.add((x[i]-xc)/w, s[i])
 	}
 	if n < 5 {
 		return c, false
 	}
+	S, T := &q.S, &q.T
 	m := [3][]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
 	if !gaussJordan3(&m) {
 		return c, false
@@ -876,6 +868,26 @@ func quadFit(x, s []float64, xc, w float64) (c [3]float64, ok bool) {
 		c[k] = m[k][3] / m[k][k]
 	}
 	return c, true
+}
+
+// quadSums are the sums of the normal equations of the least-squares
+// parabola y = c0 + c1 u + c2 u^2: S[k] is the sum of u^k (k = 0..4), T[k]
+// that of u^k y (k = 0..2).
+type quadSums struct {
+	S [5]float64
+	T [3]float64
+}
+
+// add adds the point (u, y).
+func (q *quadSums) add(u, y float64) {
+	p := 1.0
+	for k := 0; k < 5; k++ {
+		q.S[k] += p
+		if k < 3 {
+			q.T[k] += p * y
+		}
+		p *= u
+	}
 }
 
 // gaussJordan3 reduces the augmented 3-row matrix *m (the 3x3 system in

@@ -92,20 +92,7 @@ func TestOpenReadOnlyMigratesOlderSchema(t *testing.T) {
 	for _, b := range backends(t) {
 		t.Run(b.name, func(t *testing.T) {
 			url := b.fresh(t)
-			driver := "sqlite"
-			if IsPostgres(url) {
-				driver = "pgx"
-			}
-			raw, err := sql.Open(driver, url)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, stmt := range schemaV1 {
-				if _, err := raw.Exec(stmt); err != nil {
-					t.Fatalf("%s: %v", stmt, err)
-				}
-			}
-			raw.Close()
+			writeV1(t, url)
 			r, err := OpenReadOnly(ctx, url)
 			if err != nil {
 				t.Fatal(err)

@@ -294,25 +294,32 @@ var schemaV1 = []string{
 	`INSERT INTO measurements VALUES ('OLD-1-2', 'tensile', 998.25)`,
 }
 
+// writeV1 writes the version 1 schema and a lot into the empty database
+// at url, as a lotproof of that version would have.
+func writeV1(t *testing.T, url string) {
+	t.Helper()
+	driver := "sqlite"
+	if IsPostgres(url) {
+		driver = "pgx"
+	}
+	raw, err := sql.Open(driver, url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer raw.Close()
+	for _, stmt := range schemaV1 {
+		if _, err := raw.Exec(stmt); err != nil {
+			t.Fatalf("%s: %v", stmt, err)
+		}
+	}
+}
+
 func TestMigrateFromVersion1(t *testing.T) {
 	ctx := context.Background()
 	for _, b := range backends(t) {
 		t.Run(b.name, func(t *testing.T) {
 			url := b.fresh(t)
-			driver := "sqlite"
-			if IsPostgres(url) {
-				driver = "pgx"
-			}
-			raw, err := sql.Open(driver, url)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, stmt := range schemaV1 {
-				if _, err := raw.Exec(stmt); err != nil {
-					t.Fatalf("%s: %v", stmt, err)
-				}
-			}
-			raw.Close()
+			writeV1(t, url)
 			s := open(t, url)
 			v, err := s.SchemaVersion(ctx)
 			if err != nil || v != 3 || Latest() != 3 {
