@@ -127,7 +127,7 @@ type Outlier struct {
 }
 
 // Method describes the computation (shown with every result).
-const Method = "per lot and limit: one-sided normal tolerance bound mean -/+ k*SD with k the exact factor from the noncentral t (content p, confidence gamma of the specification); fraction beyond the limit estimated by the Lieberman-Resnikoff (1955) minimum-variance unbiased estimator, with confidence bounds from the noncentral t; t-based confidence bound on the mean; maximum normed residual screen at alpha 0.05 (flagged values are kept)"
+const Method = "per lot and limit: one-sided normal tolerance bound, the mean minus (for a minimum) or plus (for a maximum) k standard deviations, with k the exact factor from the noncentral t distribution for the specification's content and confidence; fraction beyond the limit estimated by the Lieberman-Resnikoff (1955) minimum-variance unbiased estimator, with confidence bounds from the noncentral t; t-based confidence bound on the mean; maximum normed residual screen at alpha 0.05 (flagged values are kept)"
 
 // Judge judges every lot (grouped by by) of d against the specification
 // that governs its material (spec.ForMaterial). Every property a given
