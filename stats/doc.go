@@ -9,4 +9,9 @@
 // values) and panic only on programmer mistakes such as mismatched slice
 // lengths. Each exported function states its formula and the published
 // source it follows in its doc comment.
+//
+// Typical calls:
+//
+//	k, err := stats.NormalK(10, 0.90, 0.95)       // 2.355 (Natrella, Table A-7)
+//	b, err := stats.NormalLowerBound(x, 0.90, 0.95) // b.Value = mean - k sd
 package stats

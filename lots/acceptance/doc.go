@@ -7,4 +7,12 @@
 //
 // Judge is the domain call used by the accept command, the history store
 // and the demo report.
+//
+// Main call:
+//
+//	res, err := acceptance.Judge(d, specs, lots.ByLot)
+//	res = res.Display(units.SI) // values in display units
+//	for _, l := range res.Lots {
+//		fmt.Println(l.Lot, l.Verdict, l.Reasons)
+//	}
 package acceptance

@@ -9,4 +9,14 @@
 // either pool the lots and choose a distribution by Anderson-Darling OSL,
 // or use the ANOVA (variance-components) method when the lots differ. The
 // thresholds and their sources are listed in DefaultOptions.
+//
+// Main calls:
+//
+//	rep, err := allowables.Analyze(d, allowables.DefaultOptions(), date)
+//	for _, r := range rep.Results {
+//		fmt.Println(r.Property, r.Condition, r.Method, r.ABasis, r.BBasis)
+//	}
+//
+// or, for values already split into lots (one slice per lot), without the
+// audit trail: out, err := allowables.DesignValues(values, opt).
 package allowables

@@ -7,4 +7,11 @@
 //
 // Internally stresses are in MPa, strains are fractions and energies per
 // volume are in MJ/m^3 (1 MPa = 1 MJ/m^3).
+//
+// Main call:
+//
+//	recs, err := reduce.Parse(f, "R1.rec")
+//	res, err := reduce.ReduceAll(recs, reduce.Options{})
+//	fmt.Println(res[0].Modulus, res[0].Proof, res[0].Tensile)
+//	csv := reduce.ResultsCSV(res, units.SI) // the results file lots reads
 package reduce

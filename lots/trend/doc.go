@@ -14,4 +14,13 @@
 // moving range of consecutive lot means (Montgomery, Introduction to
 // Statistical Quality Control, 7th ed., §6.4; ASTM MNL 7A, Part 3) puts
 // the between-lot variation inside the limits.
+//
+// Main calls: Compute(ctx, st, opt) on an open history store;
+// ComputeFrom on lot values already fetched; RecordAndCompute to record a
+// dataset into a throw-away SQLite file and trend it in one call:
+//
+//	_, res, err := trend.RecordAndCompute(ctx, "history.db", d, nil, limits, meta, trend.Options{})
+//	for _, s := range res.Signals {
+//		fmt.Println(s.Rule, s.Group, s.Period, s.Lot)
+//	}
 package trend
