@@ -471,14 +471,6 @@ func ReadFile(name string, opt ReadOptions) (*Dataset, error) {
 	return ReadCSV(withProgress(f, opt.Progress), name)
 }
 
-func unwrapPath(err error) error {
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
-}
-
 // isDate reports whether s is a valid calendar date written YYYY-MM-DD
 // (ISO 8601 calendar date, extended format), years 1000 to 9999.
 func isDate(s string) bool {

@@ -129,6 +129,7 @@ func IndividualsLimits(x []float64) (Limits, float64, error) {
 // Sigma is the standard deviation of s about its mean, sbar·√(1-c4²)/c4.
 func SChartLimits(sbar float64, n int) (Limits, error) {
 	if math.IsNaN(sbar) || math.IsInf(sbar, 0) || sbar <= 0 {
+		//lint:ignore ST1005 error text begins with the name of a chart (S chart)
 		return Limits{}, fmt.Errorf("S chart centre %v must be a positive number: %w", sbar, errCtlDomain)
 	}
 	c4, err := C4(n)
@@ -261,6 +262,7 @@ type WelchResult struct {
 // Each sample needs two values; both must not be without spread.
 func WelchT(a, b []float64) (WelchResult, error) {
 	if len(a) < 2 || len(b) < 2 {
+		//lint:ignore ST1005 error text begins with a proper name (Welch's t-test)
 		return WelchResult{}, fmt.Errorf("Welch's t-test needs 2 values per sample (got %d and %d): %w", len(a), len(b), ErrTooFew)
 	}
 	if err := checkFinite(a); err != nil {

@@ -88,6 +88,7 @@ func WeibullPivotFactor(n int, p, gamma float64, opt WeibullMCOptions) (WeibullF
 		return WeibullFactor{}, err
 	}
 	if n < 3 {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return WeibullFactor{}, fmt.Errorf("Weibull pivotal bound needs n >= 3, have %d: %w", n, ErrTooFew)
 	}
 	sims := opt.Sims
@@ -145,6 +146,7 @@ func WeibullPivotFactor(n int, p, gamma float64, opt WeibullMCOptions) (WeibullF
 		nf += f
 	}
 	if float64(nf) > WeibullMCMaxFailFraction*float64(sims) {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return WeibullFactor{Failures: nf, Sims: sims, Seed: opt.Seed}, fmt.Errorf("Weibull Monte Carlo: %d of %d simulated fits failed, more than the %g%% allowed", nf, sims, 100*WeibullMCMaxFailFraction)
 	}
 	slices.Sort(stat)
@@ -154,6 +156,7 @@ func WeibullPivotFactor(n int, p, gamma float64, opt WeibullMCOptions) (WeibullF
 	h := 1.959963984540054 * math.Sqrt(M*gamma*(1-gamma))
 	se := (stat[idx(gamma*M+h)] - stat[idx(gamma*M-h)]) / (2 * 1.959963984540054)
 	if math.IsInf(C, 0) || math.IsInf(se, 0) {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return WeibullFactor{Failures: nf, Sims: sims, Seed: opt.Seed}, fmt.Errorf("Weibull Monte Carlo: %d of %d simulated fits failed, too many for confidence %g (use more simulations)", nf, sims, gamma)
 	}
 	rn := math.Sqrt(float64(n))
@@ -170,6 +173,7 @@ func WeibullLowerBound(x []float64, p, gamma float64, opt WeibullMCOptions) (Bou
 		return Bound{}, err
 	}
 	if len(x) < 3 {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return Bound{}, fmt.Errorf("Weibull bound needs at least 3 values, have %d: %w", len(x), ErrTooFew)
 	}
 	if _, err := FitWeibull(x); err != nil {
@@ -235,6 +239,7 @@ func WeibullLowerBoundWithFactor(x []float64, p, gamma float64, f WeibullFactor)
 // minimum as the maximum-likelihood fit behind the bound).
 func WeibullApproxV(n int, p, gamma float64) (float64, error) {
 	if n < 3 {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return math.NaN(), fmt.Errorf("Weibull approximate factor needs n >= 3, have %d: %w", n, ErrTooFew)
 	}
 	fn := float64(n)
@@ -310,6 +315,7 @@ type WeibullBasisFactor struct {
 // (testdata/tolerance/gen_weibull_small.py, weibull_factor_small.json).
 func WeibullBasisV(n int, p, gamma float64) (WeibullBasisFactor, error) {
 	if n < 3 {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return WeibullBasisFactor{}, fmt.Errorf("Weibull factor needs n >= 3, have %d: %w", n, ErrTooFew)
 	}
 	a := p == 0.99 && gamma == 0.95

@@ -198,11 +198,11 @@ func TestReduceGlitchAudit(t *testing.T) {
 	if err := os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs := run(t, "", "reduce", path)
+	code, _, errs := run(t, "", "reduce", path)
 	if code != 0 || !strings.Contains(errs, "force dropout at line 300") {
 		t.Fatalf("exit %d, stderr %s", code, errs)
 	}
-	code, out, errs = run(t, "", "reduce", path, "--format", "json")
+	code, out, errs := run(t, "", "reduce", path, "--format", "json")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}

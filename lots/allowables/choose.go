@@ -146,8 +146,6 @@ func campaignWarnings(r *Result) {
 	}
 }
 
-var errNonPositive = errors.New("the method needs positive values")
-
 // shortfall says which of the campaign's counts fall short, or "".
 func shortfall(r *Result, minLots, minN int) string {
 	var parts []string

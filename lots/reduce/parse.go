@@ -375,9 +375,7 @@ func (r *Record) applyMeta(meta map[string]metaKey, dataLine int, add func(line,
 	if !has {
 		colm = metaKey{dataLine, 1, "force extension"}
 	}
-	for _, c := range strings.FieldsFunc(strings.ToLower(colm.val), func(r rune) bool { return r == ' ' || r == ',' || r == '\t' || r == ';' }) {
-		columns = append(columns, c)
-	}
+	columns = append(columns, strings.FieldsFunc(strings.ToLower(colm.val), func(r rune) bool { return r == ' ' || r == ',' || r == '\t' || r == ';' })...)
 	nf, nx := 0, 0
 	for _, c := range columns {
 		switch c {

@@ -18,10 +18,9 @@ const chunkBits = 14
 // 50 mm gauge length (2e-8), so float32 storage loses nothing the test can
 // resolve. The arithmetic after reading is in float64.
 type points struct {
-	n      int
-	f, x   [][]float32
-	ln     [][]int32
-	lastLn int
+	n    int
+	f, x [][]float32
+	ln   [][]int32
 }
 
 func (p *points) add(f, x float64, line int) {

@@ -247,7 +247,6 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 			"record %q has only %d usable points with increasing extension (at least 10 needed)", rec.ID, len(x))
 	}
 	iMax = argmax(s)
-	sm = s[iMax]
 	// 5. Loading branch: up to the first fall of the stress by more than
 	// delta below its running maximum (yield drop, necking, fracture).
 	iEnd := iMax
@@ -802,41 +801,6 @@ func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
 	res.UpperYield = s[p]
 	res.LowerYield = rel
 	res.note("discontinuous yielding: upper yield at strain %.3g %%, yielding up to strain %.3g %%", 100*x[p], 100*x[q-1])
-}
-
-// peakStrain locates the strain at maximum force: the vertex of a
-// least-squares parabola through the contiguous points around the maximum
-// whose stress is within band of it (ISO 6892-1 clause 16 asks for the
-// extension at maximum force and, for a flat top, the middle of the
-// plateau; the parabola is this package's way to find that point in
-// noisy data). It falls back to the strain of the highest point.
-func peakStrain(x, s []float64, iMax int, band float64) float64 {
-	l, h := iMax, iMax
-	for l > 0 && s[l-1] >= s[iMax]-band {
-		l--
-	}
-	for h < len(s)-1 && s[h+1] >= s[iMax]-band {
-		h++
-	}
-	if h-l+1 < 5 || l == iMax || h == iMax {
-		return x[iMax]
-	}
-	// A window symmetric in strain about the current estimate, so that an
-	// asymmetric top does not pull the vertex; refined three times.
-	c := x[iMax]
-	hw := math.Min(c-x[l], x[h]-c)
-	for it := 0; it < 3; it++ {
-		v, ok := parabolaVertex(x, s, c-hw, c+hw)
-		if !ok || v < x[l] || v > x[h] {
-			return c
-		}
-		c = v
-		hw = math.Min(hw, math.Min(c-x[l], x[h]-c))
-		if hw <= 0 {
-			break
-		}
-	}
-	return c
 }
 
 // quadFit fits stress = c0 + c1 u + c2 u^2, u = (strain - xc)/w, by least

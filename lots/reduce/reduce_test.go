@@ -498,7 +498,7 @@ func TestDuplicatesBackwardsLoops(t *testing.T) {
 	var lf, lx []float64
 	var ll []int
 	for i := 1; i <= 40; i++ {
-		frac := float64(i) / 40
+		var frac float64
 		if i > 20 {
 			frac = float64(40-i) / 20
 		} else {

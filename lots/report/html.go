@@ -7,7 +7,6 @@ import (
 	"html/template"
 	"io"
 	"strconv"
-	"strings"
 )
 
 // The view types below are the document as the template sees it: numbers
@@ -173,15 +172,4 @@ func (d *Document) view() (*viewDoc, error) {
 		}
 	}
 	return v, nil
-}
-
-// joinNonEmpty is used by adapters to build captions.
-func joinNonEmpty(sep string, parts ...string) string {
-	var keep []string
-	for _, p := range parts {
-		if strings.TrimSpace(p) != "" {
-			keep = append(keep, p)
-		}
-	}
-	return strings.Join(keep, sep)
 }

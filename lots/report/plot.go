@@ -396,9 +396,11 @@ func WeibullProbPlot(d ProbData, fit WeibullFit) ([]byte, error) {
 		return nil, err
 	}
 	if xs[0] <= 0 {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return nil, fmt.Errorf("Weibull probability plot %q: values must be positive (smallest is %g)", d.Title, xs[0])
 	}
 	if !(fit.Shape > 0) || !(fit.Scale > 0) || math.IsInf(fit.Shape, 0) || math.IsInf(fit.Scale, 0) {
+		//lint:ignore ST1005 error text begins with a proper name (Weibull)
 		return nil, fmt.Errorf("Weibull probability plot %q: fit needs shape > 0 and scale > 0", d.Title)
 	}
 	ww := weibullScore

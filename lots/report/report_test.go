@@ -140,7 +140,7 @@ func TestHostileStringsStayText(t *testing.T) {
 	if bytes.Contains(out, []byte("<script")) {
 		t.Error("raw output contains <script")
 	}
-	if !bytes.Contains(out, []byte("&lt;script&gt;alert(1)&lt;/script&gt;")) && !bytes.Contains(out, []byte("&lt;script&gt;alert(1)&lt;/script&gt;")) {
+	if !bytes.Contains(out, []byte("&lt;script&gt;alert(1)&lt;/script&gt;")) {
 		t.Error("escaped hostile string not found in output")
 	}
 }

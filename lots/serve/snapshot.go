@@ -7,7 +7,6 @@ import (
 	"math"
 	"slices"
 	"sort"
-	"strconv"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -261,8 +260,6 @@ func weaker(lo, est, clo, cest lots.Float) bool {
 	}
 	return !math.IsNaN(a) // a bound beats none
 }
-
-func itoa(n int64) string { return strconv.FormatInt(n, 10) }
 
 // cache keeps the latest snapshot and makes a new one when the database
 // changed. Only one computation runs at a time. Until the first snapshot
