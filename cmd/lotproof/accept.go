@@ -13,6 +13,7 @@ import (
 	"lotproof/lots"
 	"lotproof/lots/acceptance"
 	"lotproof/lots/render"
+	"lotproof/lots/units"
 	"lotproof/spec"
 )
 
@@ -85,14 +86,18 @@ func runAccept(o acceptOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	res, err := judgeStream(o.Data, o.Input, st, specs)
+	var rs render.Resolutions // for tables people read only
+	if o.Out.Format == render.Text {
+		rs = render.Resolutions{}
+	}
+	res, err := judgeStream(o.Data, o.Input, st, specs, rs, o.Out.System)
 	if err != nil {
 		return err
 	}
 	c, n := res.Counts, len(res.Lots)
 	// The judgement is only shown: convert it in place (no second copy of
 	// a large result).
-	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res.DisplayInPlace(o.Out.System), o.Table, o.Out) })
+	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res.DisplayInPlace(o.Out.System), rs, o.Table, o.Out) })
 	if err != nil {
 		return err
 	}
@@ -103,17 +108,18 @@ func runAccept(o acceptOptions, st streams) error {
 	return nil
 }
 
-// writeAccept writes a judgement in the output's format and units.
-func writeAccept(w io.Writer, res *acceptance.Result, table tableOption, out output) error {
-	return writeShown(w, res.Display(out.System), table, out)
+// writeAccept writes a judgement in the output's format and units; rs are
+// the properties' resolutions for the tables people read.
+func writeAccept(w io.Writer, res *acceptance.Result, rs render.Resolutions, table tableOption, out output) error {
+	return writeShown(w, res.Display(out.System), rs, table, out)
 }
 
 // writeShown writes a judgement already in display units.
-func writeShown(w io.Writer, shown *acceptance.Result, table tableOption, out output) error {
+func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, table tableOption, out output) error {
 	if out.Format == render.JSON {
 		return render.WriteJSON(w, shown)
 	}
-	tables, err := table.pick(out.Format, acceptTables(shown))
+	tables, err := table.pick(out.Format, acceptTables(shown, rs))
 	if err != nil {
 		return err
 	}
@@ -122,9 +128,11 @@ func writeShown(w io.Writer, shown *acceptance.Result, table tableOption, out ou
 
 // judgeStream reads the results file one lot at a time and judges the lots
 // in parallel as they come (acceptance.Judging); the errors are those of
-// reading the whole file and then calling acceptance.Judge.
-func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec) (*acceptance.Result, error) {
+// reading the whole file and then calling acceptance.Judge. The values'
+// resolutions in the units of sys go into rs (when not nil).
+func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System) (*acceptance.Result, error) {
 	var j *acceptance.Judging
+	var props []lots.Property
 	var specErr error
 	by, _ := lots.ParseGroupBy(in.GroupBy)
 	d, _, err := scanLots(name, in, st, func(d *lots.Dataset) {
@@ -132,7 +140,11 @@ func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec) (
 			j.Stop()
 		}
 		j, specErr = acceptance.Start(d, specs, by)
+		props = d.Properties
 	}, func(l *lots.Lot) error {
+		if rs != nil {
+			addLotResolutions(rs, props, l, sys)
+		}
 		if j != nil {
 			j.Add(l)
 		}
@@ -156,7 +168,7 @@ func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec) (
 
 // acceptTables lays the result out as a lot table, a limit table and an
 // outlier table (hidden in text when no value was flagged).
-func acceptTables(r *acceptance.Result) []*render.Table {
+func acceptTables(r *acceptance.Result, rs render.Resolutions) []*render.Table {
 	by := r.GroupBy
 	lt := render.NewTable("Lot verdicts", by, "supplier", "material", "spec", ">n", "verdict", "reasons")
 	pt := render.NewTable("Limits", by, "property", "side", "unit", ">limit", ">n", ">mean", ">sd", ">extreme", ">mean bound", ">k", ">tol. bound", ">frac. est", ">frac. upper", "verdict", ">needed n")
@@ -180,13 +192,14 @@ func acceptTables(r *acceptance.Result) []*render.Table {
 			case p.NeededN > 0:
 				need = strconv.Itoa(p.NeededN)
 			}
-			pt.Add(l.Lot, p.Property, p.Side, p.Unit, render.Given(float64(p.Limit)), strconv.Itoa(p.N),
-				render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Extreme)),
-				render.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), render.Stat(float64(p.ToleranceBound)),
+			r := rs.Of(p.Property)
+			pt.Add(l.Lot, p.Property, p.Side, p.Unit, r.Given(float64(p.Limit)), strconv.Itoa(p.N),
+				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Extreme)),
+				r.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), r.Stat(float64(p.ToleranceBound)),
 				render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
-			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, render.Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
+			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, rs.Of(f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
 		}
 	}
 	c := r.Counts

@@ -23,6 +23,7 @@ import (
 	"lotproof/lots/render"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
+	"lotproof/lots/units"
 	"lotproof/spec"
 )
 
@@ -179,7 +180,8 @@ func runDemo(o demoOptions, st streams) error {
 	bar.Add(1)
 
 	// 4. Record the history in a temporary database and trend it.
-	tr, err := demoTrend(receipts, newLots, specs, date, o.DB)
+	trendRes := render.Resolutions{}
+	tr, err := demoTrend(receipts, newLots, specs, date, o.DB, trendRes, o.Out.System)
 	if err != nil {
 		return err
 	}
@@ -189,7 +191,7 @@ func runDemo(o demoOptions, st streams) error {
 	if o.Report != "" {
 		doc, err := reportDocument(reportInputs{Title: "Demo: Orrin Hollow Pumpworks receipts and qualification (invented)",
 			Date: date, Data: all, By: lots.ByLot, Specs: specs, Acceptance: acc, Campaign: campaign,
-			Allowables: res.Allowables, Trend: tr, TrendFrom: "temporary SQLite database", Reduced: rs,
+			Allowables: res.Allowables, Trend: tr, TrendRes: trendRes, TrendFrom: "temporary SQLite database", Reduced: rs,
 			System: o.Out.System, Seed: o.Seed})
 		if err != nil {
 			return err
@@ -254,7 +256,7 @@ func demoSpecs() ([]*spec.Spec, error) {
 // demoTrend records the receipts and the new lots, with their verdicts,
 // into a temporary SQLite database (two imports, as an inspector would
 // make them) and computes the quarterly trend by supplier.
-func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db string) (*trend.Result, error) {
+func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db string, rs render.Resolutions, sys units.System) (*trend.Result, error) {
 	dir, err := os.MkdirTemp("", "lotproof-demo-")
 	if err != nil {
 		return nil, err
@@ -280,7 +282,7 @@ func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db str
 			return nil, err
 		}
 	}
-	return computeTrend(ctx, s, trend.Options{Baseline: demoBaseline})
+	return computeTrend(ctx, s, trend.Options{Baseline: demoBaseline}, rs, sys)
 }
 
 func demoReducedRows(d *lots.Dataset, out output) []demoReduced {

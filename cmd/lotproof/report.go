@@ -18,6 +18,7 @@ import (
 	"lotproof/lots/allowables"
 	"lotproof/lots/progress"
 	"lotproof/lots/reduce"
+	"lotproof/lots/render"
 	"lotproof/lots/report"
 	"lotproof/lots/store"
 	"lotproof/lots/trend"
@@ -111,8 +112,9 @@ type reportInputs struct {
 	Acceptance *acceptance.Result
 	Campaign   *lots.Dataset
 	Allowables *allowables.Report
-	Trend      *trend.Result // values in internal units
-	TrendFrom  string        // where the trend came from (database)
+	Trend      *trend.Result      // values in internal units
+	TrendRes   render.Resolutions // of the trend's values in the units of System
+	TrendFrom  string             // where the trend came from (database)
 	Reduced    []*reduce.Result
 	System     units.System
 	Seed       uint64
@@ -143,14 +145,15 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 	}
 	b.Extra = append(b.Extra, report.KV{Key: "Units", Value: sys})
 	if in.Acceptance != nil {
-		sec, sum, err := report.AcceptanceSection(in.Acceptance, in.System)
+		rs := resolutionsOf(in.Data, in.System)
+		sec, sum, err := report.AcceptanceSection(in.Acceptance, in.System, rs)
 		if err != nil {
 			return nil, err
 		}
 		b.Sections = append(b.Sections, sec)
 		b.Summary = append(b.Summary, sum...)
 		b.Cautions = append(b.Cautions, in.Acceptance.Cautions...)
-		b.Appendices = append(b.Appendices, report.AcceptanceAppendix(in.Acceptance, in.System))
+		b.Appendices = append(b.Appendices, report.AcceptanceAppendix(in.Acceptance, in.System, rs))
 		for _, l := range in.Acceptance.Lots {
 			if l.Verdict == acceptance.Nonconforming {
 				b.Marked = append(b.Marked, l.Lot)
@@ -173,6 +176,7 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 	if in.Trend != nil && len(in.Trend.Periods) > 0 {
 		in.Trend.Display(in.System)
 		b.Trend = in.Trend
+		b.TrendResolutions = in.TrendRes
 		b.Cautions = append(b.Cautions, in.Trend.Caution)
 		if in.TrendFrom != "" {
 			b.Extra = append(b.Extra, report.KV{Key: "Lot history", Value: in.TrendFrom})
@@ -246,7 +250,8 @@ func runReport(o reportOptions, st streams) error {
 		if err != nil {
 			return usageError{err}
 		}
-		tr, err := computeTrend(ctx, s, trend.Options{Limits: store.LimitsOf(specs)})
+		in.TrendRes = render.Resolutions{}
+		tr, err := computeTrend(ctx, s, trend.Options{Limits: store.LimitsOf(specs)}, in.TrendRes, o.Out.System)
 		in.TrendFrom = s.Where()
 		s.Close()
 		if err != nil {

@@ -94,7 +94,7 @@ func TestStreamingSameAsWholeFile(t *testing.T) {
 					data, stdin = "-", pipeReader{bytes.NewReader([]byte(mixed.String()))}
 				}
 				var want, got bytes.Buffer
-				if err := writeAccept(&want, res, tableOption{}, out); err != nil {
+				if err := writeAccept(&want, res, shownRes(d, out), tableOption{}, out); err != nil {
 					t.Fatal(err)
 				}
 				err := runAccept(acceptOptions{Data: data, Specs: sn, Input: in, Out: out}, streams{In: stdin, Out: &got, Err: io.Discard})
@@ -106,7 +106,7 @@ func TestStreamingSameAsWholeFile(t *testing.T) {
 					want.Reset()
 					r2 := *res
 					r2.Source = "-"
-					writeAccept(&want, &r2, tableOption{}, out)
+					writeAccept(&want, &r2, shownRes(d, out), tableOption{}, out)
 				}
 				if !bytes.Equal(got.Bytes(), want.Bytes()) {
 					t.Errorf("accept %s (%v, %v): streamed output differs from the whole-file judgement", name, f, sys)
@@ -117,7 +117,7 @@ func TestStreamingSameAsWholeFile(t *testing.T) {
 				if sys == units.US {
 					s = sumUS
 				}
-				if err := writeSummary(&want, s, by, out); err != nil {
+				if err := writeSummary(&want, s, by, shownRes(d, out), out); err != nil {
 					t.Fatal(err)
 				}
 				if c.stdin {
@@ -132,4 +132,12 @@ func TestStreamingSameAsWholeFile(t *testing.T) {
 			}
 		}
 	}
+}
+
+// shownRes are the resolutions a command infers for a table people read.
+func shownRes(d *lots.Dataset, out output) render.Resolutions {
+	if out.Format != render.Text {
+		return nil
+	}
+	return resolutionsOf(d, out.System)
 }

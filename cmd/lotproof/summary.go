@@ -45,10 +45,17 @@ func runSummary(o summaryOptions, st streams) error {
 	// One lot at a time: the summary of each is kept, its values are not.
 	var sum []lots.GroupSummary
 	var props []lots.Property
+	var rs render.Resolutions // for tables people read only
 	_, by, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
 		sum, props = sum[:0], d.Properties
+		if o.Out.Format == render.Text {
+			rs = render.Resolutions{}
+		}
 	}, func(l *lots.Lot) error {
 		sum = append(sum, lots.SummarizeLot(props, l, o.Out.System))
+		if rs != nil {
+			addLotResolutions(rs, props, l, o.Out.System)
+		}
 		return nil
 	})
 	if err != nil {
@@ -57,24 +64,26 @@ func runSummary(o summaryOptions, st streams) error {
 	if sum == nil {
 		sum = []lots.GroupSummary{}
 	}
-	return emit(st.Out, func(w io.Writer) error { return writeSummary(w, sum, by, o.Out) })
+	return emit(st.Out, func(w io.Writer) error { return writeSummary(w, sum, by, rs, o.Out) })
 }
 
-// writeSummary writes a summary in the output's format.
-func writeSummary(w io.Writer, sum []lots.GroupSummary, by lots.GroupBy, out output) error {
+// writeSummary writes a summary in the output's format; rs are the
+// properties' resolutions for the table people read.
+func writeSummary(w io.Writer, sum []lots.GroupSummary, by lots.GroupBy, rs render.Resolutions, out output) error {
 	if out.Format == render.JSON {
 		return summaryJSON(w, by, sum)
 	}
-	return writeTables(w, out.Format, summaryTable(string(by), sum))
+	return writeTables(w, out.Format, summaryTable(string(by), sum, rs))
 }
 
 // summaryTable lays a summary out as one row per group and property.
-func summaryTable(by string, sum []lots.GroupSummary) *render.Table {
+func summaryTable(by string, sum []lots.GroupSummary, rs render.Resolutions) *render.Table {
 	t := render.NewTable("", by, "supplier", "property", "unit", ">n", ">missing", ">mean", ">sd", ">min", ">max")
 	for _, g := range sum {
 		for _, p := range g.Properties {
+			r := rs.Of(p.Property)
 			t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
-				render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Min)), render.Given(float64(p.Max)))
+				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Min)), r.Given(float64(p.Max)))
 		}
 	}
 	return t

@@ -79,7 +79,11 @@ func runTrend(o trendOptions, st streams) error {
 		return usageError{err}
 	}
 	defer s.Close()
-	res, err := computeTrend(ctx, s, o.Trend)
+	var rs render.Resolutions // for tables people read only
+	if o.Out.Format == render.Text {
+		rs = render.Resolutions{}
+	}
+	res, err := computeTrend(ctx, s, o.Trend, rs, o.Out.System)
 	if err != nil {
 		return err
 	}
@@ -91,7 +95,7 @@ func runTrend(o trendOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
-		tables, err := o.Table.pick(o.Out.Format, trendTables(res))
+		tables, err := o.Table.pick(o.Out.Format, trendTables(res, rs))
 		if err != nil {
 			return err
 		}
@@ -99,7 +103,7 @@ func runTrend(o trendOptions, st streams) error {
 	})
 }
 
-func trendTables(r *trend.Result) []*render.Table {
+func trendTables(r *trend.Result, rs render.Resolutions) []*render.Table {
 	pt := render.NewTable(fmt.Sprintf("Trend by %s and %s", r.By, r.Every), r.By, "material", "property", "unit", "period", "baseline",
 		">lots", ">specimens", ">mean", ">sd", ">minimum", ">Ppk", ">Ppk lower bound", ">ppm below minimum", ">judged", ">rejected")
 	for _, p := range r.Periods {
@@ -107,8 +111,9 @@ func trendTables(r *trend.Result) []*render.Table {
 		if p.Baseline {
 			base = "yes"
 		}
+		pr := rs.Of(p.Property)
 		pt.Add(p.Group, p.Material, p.Property, p.Unit, p.Period, base, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
-			render.Stat(float64(p.Mean)), render.Spread(float64(p.SD)), render.Given(float64(p.Minimum)), render.Factor(float64(p.Ppk)),
+			pr.Stat(float64(p.Mean)), pr.Spread(float64(p.SD)), pr.Given(float64(p.Minimum)), render.Factor(float64(p.Ppk)),
 			render.Factor(float64(p.PpkLower)), render.PPM(float64(p.PPMBelow)),
 			strconv.Itoa(p.LotsJudged), strconv.Itoa(p.LotsRejected))
 	}
@@ -120,13 +125,15 @@ func trendTables(r *trend.Result) []*render.Table {
 	pt.Notes = append(pt.Notes, r.Caution)
 	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
 	for _, s := range r.Signals {
-		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, render.Stat(float64(s.Value)), render.Stat(float64(s.Limit)), s.Detail)
+		pr := rs.Of(s.Property)
+		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)), pr.Stat(float64(s.Limit)), s.Detail)
 	}
 	if len(r.Signals) == 0 {
 		st.Note("no signals")
 	}
 	lt := render.NewTable("Control limits", r.By, "material", "property", "unit", "baseline", ">baseline lots", ">centre", ">mean moving range", ">sigma", ">lower limit", ">upper limit", ">mean SD", "notes")
 	for _, s := range r.Series {
+		pr := rs.Of(s.Property)
 		notes := ""
 		for i, n := range s.Notes {
 			if i > 0 {
@@ -135,8 +142,8 @@ func trendTables(r *trend.Result) []*render.Table {
 			notes += n
 		}
 		lt.Add(s.Group, s.Material, s.Property, s.Unit, s.BaselineFrom+".."+s.BaselineTo, strconv.Itoa(s.BaselineLots),
-			render.Stat(float64(s.Center)), render.Spread(float64(s.MRBar)), render.Spread(float64(s.Sigma)), render.Stat(float64(s.Lower)),
-			render.Stat(float64(s.Upper)), render.Spread(float64(s.SBar)), notes)
+			pr.Stat(float64(s.Center)), pr.Spread(float64(s.MRBar)), pr.Spread(float64(s.Sigma)), pr.Stat(float64(s.Lower)),
+			pr.Stat(float64(s.Upper)), pr.Spread(float64(s.SBar)), notes)
 	}
 	for _, m := range r.Methods {
 		lt.Note("%s", m)

@@ -31,9 +31,11 @@ func verdictStatus(v string) Status {
 // AcceptanceSection lays out lot verdicts: one row per lot with its
 // verdict, one row per limit of every lot that does not conform with the
 // figures behind it (AcceptanceAppendix has every lot), the reasons of every lot that is not conforming, the flagged values and the
-// method. Values are shown in the display units of sys. It also returns
-// summary items (counts by verdict) for the box at the top.
-func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, error) {
+// method. Values are shown in the display units of sys, at the resolutions
+// rs of the properties' values in those units (nil: unknown; see
+// render.Resolution). It also returns summary items (counts by verdict)
+// for the box at the top.
+func AcceptanceSection(r *acceptance.Result, sys units.System, rs render.Resolutions) (Section, []KV, error) {
 	sec := Section{Title: "Lot acceptance"}
 	if r == nil {
 		return sec, nil, fmt.Errorf("report: no acceptance result")
@@ -74,7 +76,7 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 	}
 	sec.Blocks = append(sec.Blocks, lots)
 
-	if props := limitTable(r, "Figures behind the verdicts of lots not conforming", func(v string) bool { return v != acceptance.Conforming }); len(props.Rows) > 0 {
+	if props := limitTable(r, "Figures behind the verdicts of lots not conforming", func(v string) bool { return v != acceptance.Conforming }, rs); len(props.Rows) > 0 {
 		sec.Blocks = append(sec.Blocks, props)
 	}
 
@@ -106,7 +108,7 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 	out := &Table{Title: "Values flagged by the maximum normed residual test (kept)", Columns: Cols(r.GroupBy, "specimen", "property", ">value", ">MNR", ">critical", ">line")}
 	for _, l := range r.Lots {
 		for _, o := range l.Outliers {
-			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, render.Given(float64(o.Value)).Text()+unitSuffix(o.Unit),
+			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, rs.Of(o.Property).Given(float64(o.Value)).Text()+unitSuffix(o.Unit),
 				render.Factor(o.MNR).Text(), render.Factor(o.Critical).Text()), Cell{Text: strconv.Itoa(o.Line)}))
 		}
 	}
@@ -132,16 +134,16 @@ func AcceptanceSection(r *acceptance.Result, sys units.System) (Section, []KV, e
 
 // AcceptanceAppendix is the table of the figures behind every lot's
 // verdict, for an appendix (the main section shows only the lots that do
-// not conform).
-func AcceptanceAppendix(r *acceptance.Result, sys units.System) Section {
+// not conform), at the resolutions rs as in AcceptanceSection.
+func AcceptanceAppendix(r *acceptance.Result, sys units.System, rs render.Resolutions) Section {
 	r = r.Display(sys)
 	return Section{Title: "Appendix: figures behind every verdict", Blocks: []Block{
-		limitTable(r, "Every "+r.GroupBy+" and limit", func(string) bool { return true })}}
+		limitTable(r, "Every "+r.GroupBy+" and limit", func(string) bool { return true }, rs)}}
 }
 
 // limitTable lists, for the lots whose verdict keep accepts, every limit
 // with the figures behind its verdict.
-func limitTable(r *acceptance.Result, title string, keep func(verdict string) bool) *Table {
+func limitTable(r *acceptance.Result, title string, keep func(verdict string) bool, rs render.Resolutions) *Table {
 	props := &Table{Title: title, Columns: Cols(r.GroupBy, "property", ">limit", ">n", ">mean", ">SD", ">extreme", ">k", ">tolerance bound", ">fraction beyond (est. / upper)", ">values beyond", "verdict")}
 	for _, l := range r.Lots {
 		if !keep(l.Verdict) {
@@ -152,9 +154,10 @@ func limitTable(r *acceptance.Result, title string, keep func(verdict string) bo
 			if p.Side == "max" {
 				side = "max "
 			}
-			row := Cells(l.Lot, p.Property, side+render.Given(float64(p.Limit)).Text()+unitSuffix(p.Unit), strconv.Itoa(p.N),
-				render.Stat(float64(p.Mean)).Text(), render.Spread(float64(p.SD)).Text(), render.Given(float64(p.Extreme)).Text(), render.Factor(float64(p.K)).Text(),
-				render.Stat(float64(p.ToleranceBound)).Text(), render.Fraction(float64(p.FractionEstimate)).Text()+" / "+render.Fraction(float64(p.FractionUpper)).Text())
+			pr := rs.Of(p.Property)
+			row := Cells(l.Lot, p.Property, side+pr.Given(float64(p.Limit)).Text()+unitSuffix(p.Unit), strconv.Itoa(p.N),
+				pr.Stat(float64(p.Mean)).Text(), pr.Spread(float64(p.SD)).Text(), pr.Given(float64(p.Extreme)).Text(), render.Factor(float64(p.K)).Text(),
+				pr.Stat(float64(p.ToleranceBound)).Text(), render.Fraction(float64(p.FractionEstimate)).Text()+" / "+render.Fraction(float64(p.FractionUpper)).Text())
 			beyond := Cell{Text: strconv.Itoa(p.Beyond)}
 			if p.Beyond > 0 {
 				beyond.Status = Fail

@@ -114,7 +114,7 @@ func TestAcceptanceSection(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	sec, summary, err := AcceptanceSection(r, units.US)
+	sec, summary, err := AcceptanceSection(r, units.US, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -145,7 +145,7 @@ func TestAcceptanceSection(t *testing.T) {
 	if len(props.Rows) != 3 {
 		t.Errorf("%d rows of lots not conforming, want 3 (every lot of this layout data is not conforming)", len(props.Rows))
 	}
-	app := AcceptanceAppendix(r, units.US).Blocks[0].(*Table)
+	app := AcceptanceAppendix(r, units.US, nil).Blocks[0].(*Table)
 	if len(app.Rows) != 3 {
 		t.Errorf("appendix has %d rows, want 3", len(app.Rows))
 	}

@@ -21,8 +21,9 @@ const PpkTarget = 1.33
 // its individuals chart of lot means and its EWMA chart (all series, or
 // only those with a signal when all is false), then per property the
 // period means and Ppk of every group. Values are shown in the units the
-// trend result carries.
-func TrendSection(r *trend.Result, all bool) (Section, error) {
+// trend result carries, at the resolutions rs of the properties' values in
+// those units (nil: unknown; see render.Resolution).
+func TrendSection(r *trend.Result, all bool, rs render.Resolutions) (Section, error) {
 	sec := Section{Title: "Supplier trend"}
 	if r == nil || len(r.Periods) == 0 {
 		return sec, fmt.Errorf("report: the trend has no periods")
@@ -49,8 +50,9 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 		if p.LotsRejected > 0 {
 			rej.Status = Fail
 		}
+		pr := rs.Of(p.Property)
 		row := Cells(p.Group, p.Property+unitText(p.Unit), period, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
-			render.Stat(float64(p.Mean)).Text(), render.Spread(float64(p.SD)).Text(), render.Given(float64(p.Minimum)).Text())
+			pr.Stat(float64(p.Mean)).Text(), pr.Spread(float64(p.SD)).Text(), pr.Given(float64(p.Minimum)).Text())
 		row = append(row, ppk, Cell{Text: render.Factor(float64(p.PpkLower)).Text()}, Cell{Text: render.PPM(float64(p.PPMBelow)).Text()}, rej)
 		t.Rows = append(t.Rows, row)
 	}
@@ -62,7 +64,8 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 		st := &Table{Title: "Signals", Columns: Cols("rule", r.By, "property", "period", "lot", ">value", ">limit", "detail")}
 		for _, s := range r.Signals {
 			row := []Cell{{Text: s.Rule, Status: Warn}}
-			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, render.Stat(float64(s.Value)).Text(), render.Stat(float64(s.Limit)).Text(), s.Detail)...)
+			pr := rs.Of(s.Property)
+			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)).Text(), pr.Stat(float64(s.Limit)).Text(), s.Detail)...)
 			st.Rows = append(st.Rows, row)
 		}
 		sec.Blocks = append(sec.Blocks, st)
@@ -76,7 +79,7 @@ func TrendSection(r *trend.Result, all bool) (Section, error) {
 			left++
 			continue
 		}
-		blocks, err := seriesCharts(r, s)
+		blocks, err := seriesCharts(r, s, rs)
 		if err != nil {
 			return sec, err
 		}
@@ -113,7 +116,7 @@ func hasSignal(r *trend.Result, s trend.Series) bool {
 	return false
 }
 
-func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
+func seriesCharts(r *trend.Result, s trend.Series, rs render.Resolutions) ([]Block, error) {
 	if len(s.Points) == 0 {
 		return nil, nil
 	}
@@ -184,7 +187,7 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 			}
 			out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
 				Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.%s",
-					s.BaselineFrom, s.BaselineTo, s.BaselineLots, render.Stat(float64(s.Center)), render.Stat(float64(s.Lower)), render.Stat(float64(s.Upper)), s.Unit, leftText(left))})
+					s.BaselineFrom, s.BaselineTo, s.BaselineLots, rs.Of(s.Property).Stat(float64(s.Center)), rs.Of(s.Property).Stat(float64(s.Lower)), rs.Of(s.Property).Stat(float64(s.Upper)), s.Unit, leftText(left))})
 		}
 		labels, vals, lo, hi, signals, left := chart("ewma", func(p trend.Point) float64 { return float64(p.EWMA) },
 			func(p trend.Point) float64 { return float64(p.EWMALow) }, func(p trend.Point) float64 { return float64(p.EWMAHigh) })
@@ -210,7 +213,7 @@ func seriesCharts(r *trend.Result, s trend.Series) ([]Block, error) {
 			}
 			out = append(out, &Figure{Title: "S chart of lot SDs, " + name, SVG: svg,
 				Caption: fmt.Sprintf("Centre line the mean lot SD of the baseline, %s %s; limits for each lot's size. Circled: lots whose SD left its limits.%s",
-					render.Spread(float64(s.SBar)), s.Unit, leftText(left))})
+					rs.Of(s.Property).Spread(float64(s.SBar)), s.Unit, leftText(left))})
 		}
 	}
 	return out, nil

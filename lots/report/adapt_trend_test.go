@@ -55,7 +55,7 @@ func layoutTrend(t *testing.T) *trend.Result {
 // carry the marks of PpkTarget.
 func TestTrendSection(t *testing.T) {
 	r := layoutTrend(t)
-	sec, err := TrendSection(r, true)
+	sec, err := TrendSection(r, true, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -121,7 +121,7 @@ func TestTrendSection(t *testing.T) {
 			signalled++
 		}
 	}
-	few, err := TrendSection(r, false)
+	few, err := TrendSection(r, false, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

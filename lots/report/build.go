@@ -8,6 +8,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/reduce"
+	"lotproof/lots/render"
 	"lotproof/lots/trend"
 	"lotproof/lots/units"
 )
@@ -46,6 +47,9 @@ type Inputs struct {
 	Appendices []Section
 
 	Trend *trend.Result
+	// TrendResolutions are the resolutions of the trend's values in the
+	// units it is shown in (nil: unknown; see render.Resolution).
+	TrendResolutions render.Resolutions
 	// AllTrendCharts draws the control and EWMA charts of every trend
 	// series; by default only of the series with a signal.
 	AllTrendCharts bool
@@ -121,7 +125,7 @@ func Build(in Inputs) (*Document, error) {
 	}
 	d.Summary = append(d.Summary, in.Summary...)
 	if in.Trend != nil && len(in.Trend.Periods) > 0 {
-		sec, err := TrendSection(in.Trend, in.AllTrendCharts)
+		sec, err := TrendSection(in.Trend, in.AllTrendCharts, in.TrendResolutions)
 		if err != nil {
 			return nil, err
 		}

@@ -22,7 +22,7 @@ func EmbedSVG(svg []byte, prefix string) ([]byte, error) { return embedSVG(svg, 
 // means and the S chart of lot SDs of one trend series, with the report's
 // titles and captions.
 func SeriesFigures(r *trend.Result, s trend.Series) ([]*Figure, error) {
-	blocks, err := seriesCharts(r, s)
+	blocks, err := seriesCharts(r, s, nil)
 	if err != nil {
 		return nil, err
 	}

@@ -97,7 +97,7 @@ func TestTrendChartsNeedTwoPeriods(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	sec, err := TrendSection(one, true)
+	sec, err := TrendSection(one, true, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -107,7 +107,7 @@ func TestTrendChartsNeedTwoPeriods(t *testing.T) {
 		}
 	}
 	// Two groups of eight quarters: the Ppk chart is labelled as the estimate.
-	sec, err = TrendSection(layoutTrend(t), true)
+	sec, err = TrendSection(layoutTrend(t), true, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -140,7 +140,7 @@ func TestReasonsStateRetestOnce(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	sec, _, err := AcceptanceSection(r, units.SI)
+	sec, _, err := AcceptanceSection(r, units.SI, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

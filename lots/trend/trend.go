@@ -31,6 +31,9 @@ type Options struct {
 	Lambda     float64 // EWMA weight; 0 = 0.2
 	L          float64 // EWMA limit width in sigmas; 0 = 3
 	Alpha      float64 // significance of the shift test; 0 = 0.01
+	// Seen, when set, is called with each lot's values that the trend
+	// uses (for example to infer the resolution the values are printed at).
+	Seen func(store.LotValues)
 }
 
 // Defaults.
@@ -298,6 +301,9 @@ func ComputeFrom(data []store.LotValues, verdicts map[string][]store.Verdict, li
 		if !ok {
 			undated++
 			continue
+		}
+		if o.Seen != nil {
+			o.Seen(v)
 		}
 		k := seriesKey{v.Supplier, v.Material, v.Property}
 		if o.By == "material" {
