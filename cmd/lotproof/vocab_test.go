@@ -1,11 +1,18 @@
 package main
 
 import (
+	"bytes"
+	"encoding/csv"
 	"encoding/json"
+	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/stat"
 )
 
 // TestOneVocabulary: one name per thing across commands (DEVELOPERS.md,
@@ -134,5 +141,147 @@ func TestOneNumberRule(t *testing.T) {
 	}
 	if regexp.MustCompile(`\de-\d`).MatchString(acc) || !strings.Contains(acc, "<0.000001") {
 		t.Errorf("fractions in exponent form or without the floor:\n%s", acc)
+	}
+}
+
+// cellOf is the cell of a text table's row under the column named col
+// (cells and headers are separated by two or more spaces; a cell belongs to
+// the header it overlaps, so right- and left-aligned columns both work).
+func cellOf(table, col string, row func(cells map[string]string) bool) string {
+	tok := regexp.MustCompile(`\S+( \S+)*`)
+	var head [][]int
+	var names []string
+	for _, line := range strings.Split(table, "\n") {
+		spans := tok.FindAllStringIndex(line, -1)
+		if head == nil {
+			if slices.ContainsFunc(spans, func(s []int) bool { return line[s[0]:s[1]] == col }) && len(spans) > 3 {
+				head = spans
+				for _, s := range spans {
+					names = append(names, line[s[0]:s[1]])
+				}
+			}
+			continue
+		}
+		cells := map[string]string{}
+		for _, s := range spans {
+			for i, h := range head {
+				if s[0] < h[1] && h[0] < s[1] {
+					cells[names[i]] = line[s[0]:s[1]]
+				}
+			}
+		}
+		if row(cells) {
+			return cells[col]
+		}
+	}
+	return ""
+}
+
+// TestOneNumberRuleDemo: on the demo data (tensile in MPa to 0.1 MPa), one
+// lot's mean and SD print the same in summary, accept, trend (a period
+// holding only that lot) and the HTML report, at the data's resolution:
+// the mean with one decimal more than the values, the SD with one decimal
+// more or 3 significant digits. The expected text is the mean computed here
+// from the file, rounded to two decimals (common practice, ASTM E29).
+func TestOneNumberRuleDemo(t *testing.T) {
+	dir := t.TempDir()
+	if code, _, errs := run(t, "", "demo", "--data-dir", filepath.Join(dir, "d")); code != 0 {
+		t.Fatalf("demo --data-dir: %s", errs)
+	}
+	raw, err := os.ReadFile(filepath.Join(dir, "d", "receipts.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(raw)).ReadAll()
+	if err != nil || len(rows) < 2 {
+		t.Fatal(err)
+	}
+	lotCol, tensCol := slices.Index(rows[0], "lot"), slices.Index(rows[0], "tensile [MPa]")
+	byLot := map[string][]float64{}
+	var order []string
+	for _, r := range rows[1:] {
+		v, err := strconv.ParseFloat(r[tensCol], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if i := strings.IndexByte(r[tensCol], '.'); i < 0 || len(r[tensCol])-i-1 != 1 {
+			t.Fatalf("demo tensile %q is not given to 0.1 MPa; the test assumes it", r[tensCol])
+		}
+		if byLot[r[lotCol]] == nil {
+			order = append(order, r[lotCol])
+		}
+		byLot[r[lotCol]] = append(byLot[r[lotCol]], v)
+	}
+	// A lot whose mean is above 1000 MPa and SD above 10 MPa: there the
+	// resolution rule (two decimals) differs from 5 and 3 significant digits.
+	var lot string
+	for _, l := range order {
+		if m, s := stat.MeanStdDev(byLot[l], nil); m > 1000 && s > 10 {
+			lot = l
+			break
+		}
+	}
+	if lot == "" {
+		t.Fatal("no demo lot with a tensile mean above 1000 MPa and SD above 10 MPa")
+	}
+	vals := byLot[lot]
+	var one bytes.Buffer
+	w := csv.NewWriter(&one)
+	w.Write(rows[0])
+	for _, r := range rows[1:] {
+		if r[lotCol] == lot {
+			w.Write(r)
+		}
+	}
+	w.Flush()
+	file := filepath.Join(dir, "one.csv")
+	if err := os.WriteFile(file, one.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	mean, sd := stat.MeanStdDev(vals, nil)
+	wantMean, wantSD := strconv.FormatFloat(mean, 'f', 2, 64), strconv.FormatFloat(sd, 'f', 2, 64)
+	if sd < 1 || sd >= 100 {
+		t.Fatalf("SD %g: the test assumes 2 decimals are both one more than the data's and 3 significant digits", sd)
+	}
+	specs := []string{"--spec", filepath.Join(dir, "d", "spec-steel-bar.yaml"), "--spec", filepath.Join(dir, "d", "spec-plate.yaml")}
+	tensile := func(c map[string]string) bool { return c["property"] == "tensile" }
+	db := filepath.Join(dir, "h.db")
+
+	_, sum, _ := run(t, "", "summary", file, "--format", "table")
+	_, acc, _ := run(t, "", append([]string{"accept", file, "--format", "table", "--table", "limits"}, specs...)...)
+	if code, _, errs := run(t, "", "record", file, "--db", db, "--format", "json"); code != 0 {
+		t.Fatalf("record: %s", errs)
+	}
+	_, tr, _ := run(t, "", "trend", "--db", db, "--format", "table", "--table", "periods")
+	html := filepath.Join(dir, "r.html")
+	if code, _, errs := run(t, "", append([]string{"report", file, "--db", db, "--out", html}, specs...)...); code != 0 {
+		t.Fatalf("report: %s", errs)
+	}
+	page, err := os.ReadFile(html)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ cmd, out, mean, sd string }{
+		{"summary", sum, "mean", "sd"}, {"accept", acc, "mean", "sd"}, {"trend", tr, "mean", "sd"},
+	} {
+		if m, s := cellOf(c.out, c.mean, tensile), cellOf(c.out, c.sd, tensile); m != wantMean || s != wantSD {
+			t.Errorf("%s: lot %s tensile mean %q, SD %q; want %s and %s\n%s", c.cmd, lot, m, s, wantMean, wantSD, c.out)
+		}
+	}
+	for _, want := range []string{">" + wantMean + "</td>", ">" + wantSD + "</td>"} {
+		if n := strings.Count(string(page), want); n < 2 { // limit table and trend table
+			t.Errorf("report: %q in %d table cells, want at least 2 (acceptance and trend)", want, n)
+		}
+	}
+	// A limit prints at the data's resolution, whole-number hardness with
+	// one decimal in the mean.
+	if got := cellOf(acc, "limit", tensile); !regexp.MustCompile(`^\d+\.\d$`).MatchString(got) {
+		t.Errorf("tensile limit %q, want one decimal as the data", got)
+	}
+	// In US units the converted values have no finite resolution: the
+	// significant-digit rules (6 for a given value).
+	_, us, _ := run(t, "", "summary", file, "--format", "table", "--units", "us")
+	if got := cellOf(us, "min", tensile); len(strings.ReplaceAll(got, ".", "")) != 6 {
+		t.Errorf("US tensile minimum %q, want 6 significant digits", got)
 	}
 }
