@@ -11,9 +11,11 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"lotproof/lots"
 	"lotproof/lots/allowables"
 	"lotproof/lots/progress"
 	"lotproof/lots/render"
+	"lotproof/lots/report"
 )
 
 type allowablesOptions struct {
@@ -141,7 +143,7 @@ func runAllowables(o allowablesOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, rep)
 		}
-		tables, err := o.Table.pick(o.Out.Format, allowablesTables(rep, o.Out.Format == render.Text))
+		tables, err := o.Table.pick(o.Out.Format, allowablesTables(rep, d, o.Out.Format == render.Text))
 		if err != nil {
 			return err
 		}
@@ -151,8 +153,9 @@ func runAllowables(o allowablesOptions, st streams) error {
 
 // allowablesTables lays the essentials out: the design values, all
 // decisions in one table (for CSV and --table decisions), then (in text)
-// the decisions and warnings of each result.
-func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
+// the decisions and warnings of each result. Values print at the
+// resolution of the campaign's values (report.CampaignResolution).
+func allowablesTables(rep *allowables.Report, campaign *lots.Dataset, text bool) []*render.Table {
 	all := render.NewTable("Decisions", "property", "condition", "step", "decision", ">statistic", ">threshold", "reason")
 	all.Name, all.Hidden = "decisions", true
 	for _, r := range rep.Results {
@@ -161,14 +164,17 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 		}
 	}
 	t := render.NewTable("", "property", "condition", "unit", ">n", ">lots", "method", ">A-basis", ">B-basis", ">pooled A", ">pooled B", ">mean", ">sd", ">min")
-	for _, r := range rep.Results {
-		pa, pb := render.Stat(math.NaN()), render.Stat(math.NaN())
+	res := make([]render.Resolution, len(rep.Results))
+	for i, r := range rep.Results {
+		res[i] = report.CampaignResolution(campaign, r)
+		pr := res[i]
+		pa, pb := pr.Stat(math.NaN()), pr.Stat(math.NaN())
 		if r.Pooled != nil {
-			pa, pb = render.Stat(float64(r.Pooled.ABasis)), render.Stat(float64(r.Pooled.BBasis))
+			pa, pb = pr.Stat(float64(r.Pooled.ABasis)), pr.Stat(float64(r.Pooled.BBasis))
 		}
 		t.Add(r.Property, r.Condition, r.Unit, strconv.Itoa(r.N), strconv.Itoa(r.Lots), r.Method,
-			render.Stat(float64(r.ABasis)), render.Stat(float64(r.BBasis)), pa, pb,
-			render.Stat(float64(r.Mean)), render.Spread(float64(r.SD)), render.Given(float64(r.Min)))
+			pr.Stat(float64(r.ABasis)), pr.Stat(float64(r.BBasis)), pa, pb,
+			pr.Stat(float64(r.Mean)), pr.Spread(float64(r.SD)), pr.Given(float64(r.Min)))
 	}
 	t.Name = "values"
 	if !text {
@@ -181,7 +187,8 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 		t.Note("Note: %s", c)
 	}
 	out := []*render.Table{t, all}
-	for _, r := range rep.Results {
+	for i, r := range rep.Results {
+		pr := res[i]
 		name := r.Property
 		if r.Condition != "" {
 			name += " at " + r.Condition
@@ -193,8 +200,8 @@ func allowablesTables(rep *allowables.Report, text bool) []*render.Table {
 			}
 			d.Add(s.Step, s.Decision, render.N(float64(s.Statistic), 4), render.N(float64(s.Threshold), 4))
 		}
-		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", render.Stat(float64(r.ABasis)), render.Factor(float64(r.A.Factor)),
-			render.Stat(float64(r.BBasis)), render.Factor(float64(r.B.Factor)), r.Method)
+		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", pr.Stat(float64(r.ABasis)), render.Factor(float64(r.A.Factor)),
+			pr.Stat(float64(r.BBasis)), render.Factor(float64(r.B.Factor)), r.Method)
 		for _, wn := range r.Warnings {
 			d.Note("Warning: %s", wn)
 		}

@@ -98,6 +98,7 @@ type demoResult struct {
 	Trend      *trend.Result       `json:"trend"`
 	Report     string              `json:"report"`
 	Cautions   []string            `json:"cautions"`
+	campaign   *lots.Dataset       // for the resolution the design values print at
 }
 
 // demoReduced is one reduced raw record, in display units.
@@ -174,6 +175,7 @@ func runDemo(o demoOptions, st streams) error {
 	aopt := allowables.DefaultOptions()
 	aopt.Seed, aopt.System = o.Seed, o.Out.System
 	res.Allowables, err = allowables.Analyze(campaign, aopt, date)
+	res.campaign = campaign
 	if err != nil {
 		return err
 	}
@@ -355,7 +357,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	}
 	out = append(out, lotsT)
 
-	al := allowablesTables(res.Allowables, false)[0]
+	al := allowablesTables(res.Allowables, res.campaign, false)[0]
 	if text {
 		al.Title = fmt.Sprintf("3. Design values from the qualification campaign %s (A-basis %g%%/%g%%, B-basis %g%%/%g%% content/confidence; lotproof allowables shows the audit trail)",
 			res.Allowables.Input, 100*res.Allowables.Options.A.Content, 100*res.Allowables.Options.A.Confidence,

@@ -3,6 +3,7 @@ package main
 import (
 	"lotproof/lots"
 	"lotproof/lots/render"
+	"lotproof/lots/report"
 	"lotproof/lots/store"
 	"lotproof/lots/units"
 )
@@ -10,18 +11,7 @@ import (
 // resolutionsOf infers each property's resolution from its values in the
 // display unit of sys (render.Resolution), for the tables people read.
 func resolutionsOf(d *lots.Dataset, sys units.System) render.Resolutions {
-	rs := render.Resolutions{}
-	if d == nil {
-		return rs
-	}
-	for _, s := range d.Specimens {
-		for p, prop := range d.Properties {
-			if p < len(s.Values) {
-				rs.Add(prop.Name, prop.Unit.Display(sys).FromInternal(s.Values[p]))
-			}
-		}
-	}
-	return rs
+	return report.DataResolutions(d, sys)
 }
 
 // addLotResolutions takes one streamed lot's values into rs.

@@ -43,17 +43,19 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 			method += " (automatic choice: " + r.AutoMethod + ")"
 		}
 		row := Cells(r.Property+unitText(r.Unit), condText(r.Condition), strconv.Itoa(r.N), strconv.Itoa(r.Lots), method)
-		row = append(row, basisCell(r.ABasis), basisCell(r.BBasis))
-		row = append(row, Cells(render.Stat(float64(r.Mean)).Text(), render.Spread(float64(r.SD)).Text(), render.Given(float64(r.Min)).Text(), render.Given(float64(r.Max)).Text())...)
+		pr := CampaignResolution(campaign, r)
+		row = append(row, basisCell(r.ABasis, pr), basisCell(r.BBasis, pr))
+		row = append(row, Cells(pr.Stat(float64(r.Mean)).Text(), pr.Spread(float64(r.SD)).Text(), pr.Given(float64(r.Min)).Text(), pr.Given(float64(r.Max)).Text())...)
 		t.Rows = append(t.Rows, row)
 		summary = append(summary, KV{Key: "Design values, " + r.Property + condSuffix(r.Condition),
-			Value:  "B-basis " + basisText(r.BBasis, r.Unit) + "; A-basis " + basisText(r.ABasis, r.Unit),
+			Value:  "B-basis " + basisText(r.BBasis, r.Unit, pr) + "; A-basis " + basisText(r.ABasis, r.Unit, pr),
 			Status: statusIf(isNum(r.BBasis) && isNum(r.ABasis), None, Undecided)})
 	}
 	t.Note = "A dash: the value is not defined for this campaign (the audit trail says why)."
 	sec.Blocks = append(sec.Blocks, t)
 
 	for _, r := range rep.Results {
+		pr := CampaignResolution(campaign, r)
 		name := r.Property + condSuffix(r.Condition)
 		audit := &Audit{Title: "Audit trail: " + name}
 		for _, s := range r.Steps {
@@ -75,14 +77,14 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 				{Key: "conditions", Value: strings.Join(p.Conditions, ", ")},
 				{Key: "n, degrees of freedom", Value: strconv.Itoa(p.N) + ", " + strconv.Itoa(p.DF)},
 				{Key: "pooled CV", Value: num(float64(p.CV), 4)},
-				{Key: "A-basis (factor)", Value: render.Stat(float64(p.ABasis)).Text() + " (" + render.Factor(float64(p.AFactor)).Text() + ")"},
-				{Key: "B-basis (factor)", Value: render.Stat(float64(p.BBasis)).Text() + " (" + render.Factor(float64(p.BFactor)).Text() + ")"},
+				{Key: "A-basis (factor)", Value: pr.Stat(float64(p.ABasis)).Text() + " (" + render.Factor(float64(p.AFactor)).Text() + ")"},
+				{Key: "B-basis (factor)", Value: pr.Stat(float64(p.BBasis)).Text() + " (" + render.Factor(float64(p.BFactor)).Text() + ")"},
 			}})
 		}
 		if len(r.Outliers) > 0 {
 			ot := &Table{Title: "Flagged values (kept unless excluded): " + name, Columns: Cols("specimen", "lot", ">value", "within", ">MNR", ">critical")}
 			for _, x := range r.Outliers {
-				ot.Rows = append(ot.Rows, []Cell{{Text: x.Specimen, Status: Warn}, {Text: x.Lot}, {Text: num(float64(x.Value), 5)}, {Text: x.Within},
+				ot.Rows = append(ot.Rows, []Cell{{Text: x.Specimen, Status: Warn}, {Text: x.Lot}, {Text: pr.Given(float64(x.Value)).Text()}, {Text: x.Within},
 					{Text: num(float64(x.MNR), 4)}, {Text: num(float64(x.Critical), 4)}})
 			}
 			sec.Blocks = append(sec.Blocks, ot)
@@ -90,7 +92,7 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 		if len(r.Excluded) > 0 {
 			et := &Table{Title: "Excluded by the user: " + name, Columns: Cols("specimen", "lot", ">value", "reason")}
 			for _, x := range r.Excluded {
-				et.Rows = append(et.Rows, Cells(x.Specimen, x.Lot, num(float64(x.Value), 5), x.Reason))
+				et.Rows = append(et.Rows, Cells(x.Specimen, x.Lot, pr.Given(float64(x.Value)).Text(), x.Reason))
 			}
 			sec.Blocks = append(sec.Blocks, et)
 		}
@@ -181,18 +183,43 @@ func numOrEmpty(f lots.Float, sig int) string {
 
 func isNum(f lots.Float) bool { v := float64(f); return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-func basisCell(f lots.Float) Cell {
+// CampaignResolution is the resolution of a result's property in the
+// campaign, in the unit the result is shown in (unknown without the
+// campaign).
+func CampaignResolution(campaign *lots.Dataset, r allowables.Result) render.Resolution {
+	if campaign == nil {
+		return render.Resolution{}
+	}
+	i := campaign.Property(r.Property)
+	if i < 0 {
+		return render.Resolution{}
+	}
+	for _, sys := range []units.System{units.SI, units.US} {
+		if u := campaign.Properties[i].Unit.Display(sys); u.Symbol == r.Unit {
+			res := &render.Resolution{}
+			for _, s := range campaign.Specimens {
+				if i < len(s.Values) {
+					res.Add(u.FromInternal(s.Values[i]))
+				}
+			}
+			return *res
+		}
+	}
+	return render.Resolution{}
+}
+
+func basisCell(f lots.Float, r render.Resolution) Cell {
 	if !isNum(f) {
 		return Cell{Text: "-", Status: Undecided}
 	}
-	return Cell{Text: render.Stat(float64(f)).Text()}
+	return Cell{Text: r.Stat(float64(f)).Text()}
 }
 
-func basisText(f lots.Float, unit string) string {
+func basisText(f lots.Float, unit string, r render.Resolution) string {
 	if !isNum(f) {
 		return "not defined"
 	}
-	return render.Stat(float64(f)).Text() + unitSuffix(unit)
+	return r.Stat(float64(f)).Text() + unitSuffix(unit)
 }
 
 func condText(c string) string {

@@ -5,9 +5,30 @@ import (
 	"math"
 
 	"lotproof/lots"
+	"lotproof/lots/render"
 	"lotproof/lots/units"
 	"lotproof/stats"
 )
+
+// DataResolutions infers each property's resolution from its values in
+// the display units of sys (render.Resolution); nil data give none.
+func DataResolutions(d *lots.Dataset, sys units.System) render.Resolutions {
+	rs := render.Resolutions{}
+	if d == nil {
+		return rs
+	}
+	for p, prop := range d.Properties {
+		u := prop.Unit.Display(sys)
+		r := &render.Resolution{}
+		for _, s := range d.Specimens {
+			if p < len(s.Values) {
+				r.Add(u.FromInternal(s.Values[p]))
+			}
+		}
+		rs[prop.Name] = r
+	}
+	return rs
+}
 
 // PropertyOptions choose what PropertyFigures draws.
 type PropertyOptions struct {
@@ -51,12 +72,13 @@ func PropertyFigures(d *lots.Dataset, prop int, groups []lots.Group, opt Propert
 	if len(all) < 3 {
 		return nil, fmt.Errorf("report: %s has %d values; the figures need at least 3", name, len(all))
 	}
+	res := render.ResolutionOf(all...)
 	var lines []RefLine
 	if !math.IsNaN(opt.Minimum) {
-		lines = append(lines, RefLine{Label: fmt.Sprintf("spec minimum %.4g %s", conv(opt.Minimum), du.Symbol), Value: conv(opt.Minimum)})
+		lines = append(lines, RefLine{Label: fmt.Sprintf("spec minimum %s %s", res.Given(conv(opt.Minimum)), du.Symbol), Value: conv(opt.Minimum)})
 	}
 	for _, l := range opt.Lines {
-		lines = append(lines, RefLine{Label: fmt.Sprintf("%s %.4g %s", l.Label, conv(l.Value), du.Symbol), Value: conv(l.Value)})
+		lines = append(lines, RefLine{Label: fmt.Sprintf("%s %s %s", l.Label, res.Stat(conv(l.Value)), du.Symbol), Value: conv(l.Value)})
 	}
 	by := opt.By
 	if by == "" {

@@ -15,6 +15,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"lotproof/lots/render"
 )
 
 // Plot sizes: the width fits the text block of A4 and Letter paper.
@@ -260,7 +262,8 @@ func Histogram(h HistogramData) ([]byte, error) {
 		if !(f.Sigma > 0) || math.IsInf(f.Mu, 0) || math.IsNaN(f.Mu) {
 			return nil, fmt.Errorf("histogram %q: normal fit needs finite mean and sigma > 0 (got %g, %g)", h.Title, f.Mu, f.Sigma)
 		}
-		curves = append(curves, curve{fmt.Sprintf("normal (mean %.4g, sd %.3g)", f.Mu, f.Sigma), f.pdf})
+		res := render.ResolutionOf(h.Values...)
+		curves = append(curves, curve{fmt.Sprintf("normal (mean %s, sd %s)", res.Stat(f.Mu), res.Spread(f.Sigma)), f.pdf})
 	}
 	if f := h.Fits.Lognormal; f != nil {
 		if !(f.Sigma > 0) || math.IsInf(f.Mu, 0) || math.IsNaN(f.Mu) {
@@ -383,7 +386,8 @@ func NormalProbPlot(d ProbData, fit NormalFit) ([]byte, error) {
 	line := func(x float64) float64 { return (x - fit.Mu) / fit.Sigma }
 	p := newPlot(d.Title, axisLabel(d.Quantity, d.Unit), "cumulative probability [%] (Benard median ranks)")
 	p.Y.Tick.Marker = probTicks{q}
-	return probPlot(p, pts, line, fmt.Sprintf("normal fit (mean %.4g, sd %.3g)", fit.Mu, fit.Sigma), q)
+	res := render.ResolutionOf(d.Values...)
+	return probPlot(p, pts, line, fmt.Sprintf("normal fit (mean %s, sd %s)", res.Stat(fit.Mu), res.Spread(fit.Sigma)), q)
 }
 
 // WeibullProbPlot draws ln(-ln(1-p_i)) of Benard's median ranks against
