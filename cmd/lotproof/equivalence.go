@@ -278,20 +278,24 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
+		var pr render.Resolution // of the lots' values (unknown without them)
+		if d != nil && o.Out.Format == render.Text {
+			pr = resolutionsOf(d, o.Out.System).Of(res.Property)
+		}
 		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k minimum", ">k mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {
 			ft.Add(strconv.Itoa(f.N), render.N(o.Alpha, 4), render.Factor(f.KMin), render.Factor(f.KMean), render.F(f.AlphaEach, 5),
-				render.Stat(float64(f.MinLimit)), render.Stat(float64(f.MeanLimit)), res.Unit)
+				pr.Stat(float64(f.MinLimit)), pr.Stat(float64(f.MeanLimit)), res.Unit)
 		}
-		ft.Note("Baseline mean %.5g %s, SD %.4g %s.", res.BaselineMean, res.Unit, res.BaselineSD, res.Unit)
+		ft.Note("Baseline mean %s %s, SD %s %s.", pr.Stat(res.BaselineMean), res.Unit, pr.Spread(res.BaselineSD), res.Unit)
 		ft.Note("Method: %s.", res.Method)
 		ft.Name = "limits"
 		tables := []*render.Table{ft}
 		if d != nil {
 			lt := render.NewTable("Lots ("+res.Property+")", string(by), "supplier", ">n", ">mean", ">min", ">mean limit", ">min limit", "verdict", "reasons")
 			for _, l := range res.Lots {
-				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), render.Stat(float64(l.Mean)), render.Given(float64(l.Min)),
-					render.Stat(float64(l.MeanLimit)), render.Stat(float64(l.MinLimit)), l.Verdict, joinReasons(l.Reasons))
+				lt.Add(l.Lot, l.Supplier, strconv.Itoa(l.N), pr.Stat(float64(l.Mean)), pr.Given(float64(l.Min)),
+					pr.Stat(float64(l.MeanLimit)), pr.Stat(float64(l.MinLimit)), l.Verdict, joinReasons(l.Reasons))
 			}
 			lt.Note("Source %s, SHA-256 %s.", res.Source, res.Digest)
 			lt.Name = "lots"
