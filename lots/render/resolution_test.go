@@ -91,3 +91,24 @@ func TestResolutionFormat(t *testing.T) {
 		t.Errorf("tensile: %+v, want 1 decimal", r)
 	}
 }
+
+// BenchmarkResolutionAdd: the cost per value of inferring a resolution
+// (values to 0.1, as tensile strengths in MPa), which summary, accept and
+// trend pay for each value when they print a table.
+func BenchmarkResolutionAdd(b *testing.B) {
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = 900 + float64(i%997)/10
+	}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		var r Resolution
+		for _, v := range vals {
+			r.Add(v)
+		}
+		if !r.Known || r.Dec != 1 {
+			b.Fatalf("%+v", r)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(vals)), "ns/value")
+}
