@@ -192,14 +192,14 @@ func acceptTables(r *acceptance.Result, rs render.Resolutions) []*render.Table {
 			case p.NeededN > 0:
 				need = strconv.Itoa(p.NeededN)
 			}
-			r := rs.Of(p.Property)
+			r := rs.Of(l.Material, p.Property)
 			pt.Add(l.Lot, p.Property, p.Side, p.Unit, r.Given(float64(p.Limit)), strconv.Itoa(p.N),
 				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Extreme)),
 				r.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), r.Stat(float64(p.ToleranceBound)),
 				render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
-			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, rs.Of(f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
+			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, rs.Of(l.Material, f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
 		}
 	}
 	c := r.Counts

@@ -280,7 +280,7 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 		}
 		var pr render.Resolution // of the lots' values (unknown without them)
 		if d != nil && o.Out.Format == render.Text {
-			pr = resolutionsOf(d, o.Out.System).Of(res.Property)
+			pr = resolutionsOf(d, o.Out.System).Of("", res.Property)
 		}
 		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k minimum", ">k mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {

@@ -14,15 +14,12 @@ func resolutionsOf(d *lots.Dataset, sys units.System) render.Resolutions {
 	return report.DataResolutions(d, sys)
 }
 
-// addLotResolutions takes one streamed lot's values into rs.
+// addLotResolutions takes one streamed lot's values into rs, under the
+// lot's material (that of its first specimen, as its rows are labelled).
 func addLotResolutions(rs render.Resolutions, props []lots.Property, l *lots.Lot, sys units.System) {
 	for p, prop := range props {
 		u := prop.Unit.Display(sys)
-		r := rs[prop.Name]
-		if r == nil {
-			r = &render.Resolution{}
-			rs[prop.Name] = r
-		}
+		r := rs.At(l.Material, prop.Name)
 		for _, v := range l.Values[p] {
 			r.Add(u.FromInternal(v))
 		}
@@ -49,11 +46,7 @@ func trendSeen(rs render.Resolutions, entered map[string]string, sys units.Syste
 			}
 			conv[key] = f
 		}
-		r := rs[v.Property]
-		if r == nil {
-			r = &render.Resolution{}
-			rs[v.Property] = r
-		}
+		r := rs.At(v.Material, v.Property)
 		for _, x := range v.Values {
 			r.Add(f(x))
 		}

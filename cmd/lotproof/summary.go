@@ -81,7 +81,7 @@ func summaryTable(by string, sum []lots.GroupSummary, rs render.Resolutions) *re
 	t := render.NewTable("", by, "supplier", "property", "unit", ">n", ">missing", ">mean", ">sd", ">min", ">max")
 	for _, g := range sum {
 		for _, p := range g.Properties {
-			r := rs.Of(p.Property)
+			r := rs.Of(g.Material, p.Property)
 			t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
 				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Min)), r.Given(float64(p.Max)))
 		}

@@ -111,7 +111,7 @@ func trendTables(r *trend.Result, rs render.Resolutions) []*render.Table {
 		if p.Baseline {
 			base = "yes"
 		}
-		pr := rs.Of(p.Property)
+		pr := rs.Of(p.Material, p.Property)
 		pt.Add(p.Group, p.Material, p.Property, p.Unit, p.Period, base, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
 			pr.Stat(float64(p.Mean)), pr.Spread(float64(p.SD)), pr.Given(float64(p.Minimum)), render.Factor(float64(p.Ppk)),
 			render.Factor(float64(p.PpkLower)), render.PPM(float64(p.PPMBelow)),
@@ -125,7 +125,7 @@ func trendTables(r *trend.Result, rs render.Resolutions) []*render.Table {
 	pt.Notes = append(pt.Notes, r.Caution)
 	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
 	for _, s := range r.Signals {
-		pr := rs.Of(s.Property)
+		pr := rs.Of(s.Material, s.Property)
 		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)), pr.Stat(float64(s.Limit)), s.Detail)
 	}
 	if len(r.Signals) == 0 {
@@ -133,7 +133,7 @@ func trendTables(r *trend.Result, rs render.Resolutions) []*render.Table {
 	}
 	lt := render.NewTable("Control limits", r.By, "material", "property", "unit", "baseline", ">baseline lots", ">centre", ">mean moving range", ">sigma", ">lower limit", ">upper limit", ">mean SD", "notes")
 	for _, s := range r.Series {
-		pr := rs.Of(s.Property)
+		pr := rs.Of(s.Material, s.Property)
 		notes := ""
 		for i, n := range s.Notes {
 			if i > 0 {

@@ -273,8 +273,21 @@ func TestOneNumberRuleDemo(t *testing.T) {
 			t.Errorf("report: %q in %d table cells, want at least 2 (acceptance and trend)", want, n)
 		}
 	}
-	// A limit prints at the data's resolution, whole-number hardness with
-	// one decimal in the mean.
+	// The demo's own report (receipts merged with plate values reduced
+	// from raw records, which have no finite resolution) prints the lot
+	// the same way: the resolution is per material and property.
+	demoHTML := filepath.Join(dir, "demo.html")
+	if code, _, errs := run(t, "", "demo", "--report", demoHTML, "--format", "json"); code != 0 {
+		t.Fatalf("demo --report: %s", errs)
+	}
+	if page, err = os.ReadFile(demoHTML); err != nil {
+		t.Fatal(err)
+	}
+	row := regexp.MustCompile(`>` + regexp.QuoteMeta(lot) + `</td><td[^>]*>tensile</td>(<td[^>]*>[^<]*</td>){2}<td[^>]*>([^<]*)</td><td[^>]*>([^<]*)</td>`).FindStringSubmatch(string(page))
+	if row == nil || row[2] != wantMean || row[3] != wantSD {
+		t.Errorf("demo report: lot %s tensile row %q, want mean %s and SD %s", lot, row, wantMean, wantSD)
+	}
+	// A limit prints at the data's resolution.
 	if got := cellOf(acc, "limit", tensile); !regexp.MustCompile(`^\d+\.\d$`).MatchString(got) {
 		t.Errorf("tensile limit %q, want one decimal as the data", got)
 	}

@@ -104,24 +104,49 @@ func (r Resolution) Spread(v float64) Number {
 	return Number{V: v, Digit: min(dec, 12), Fixed: true}
 }
 
-// Resolutions are the resolutions of several properties, by property name.
-// A nil map, or a property not in it, is unknown.
-type Resolutions map[string]*Resolution
+// Resolutions are the resolutions of several properties, by material and
+// property (one material's values may be reported at another step than
+// another's, or computed). A nil map, or a property not in it, is unknown.
+type Resolutions map[[2]string]*Resolution
 
-// Add takes one more value of property prop (in its display unit).
-func (m Resolutions) Add(prop string, v float64) {
-	r := m[prop]
+// At is the resolution of property prop of material, to Add values to.
+func (m Resolutions) At(material, prop string) *Resolution {
+	k := [2]string{material, prop}
+	r := m[k]
 	if r == nil {
 		r = &Resolution{}
-		m[prop] = r
+		m[k] = r
 	}
-	r.Add(v)
+	return r
 }
 
-// Of is the resolution of property prop (unknown when not seen).
-func (m Resolutions) Of(prop string) Resolution {
-	if r := m[prop]; r != nil {
-		return *r
+// Add takes one more value of property prop of material (in its display
+// unit).
+func (m Resolutions) Add(material, prop string, v float64) { m.At(material, prop).Add(v) }
+
+// Of is the resolution of property prop of material (unknown when not
+// seen); material "" is the property over every material: known only when
+// every material's is, at the finest of them.
+func (m Resolutions) Of(material, prop string) Resolution {
+	if material != "" {
+		if r := m[[2]string{material, prop}]; r != nil {
+			return *r
+		}
+		return Resolution{}
 	}
-	return Resolution{}
+	var out Resolution
+	for k, r := range m {
+		if k[1] != prop {
+			continue
+		}
+		switch {
+		case r.bad || out.bad:
+			out = Resolution{bad: true}
+		case !out.Known:
+			out = *r
+		case r.Known:
+			out.Dec = max(out.Dec, r.Dec)
+		}
+	}
+	return out
 }

@@ -81,14 +81,27 @@ func TestResolutionFormat(t *testing.T) {
 		}
 	}
 	var m Resolutions
-	if m.Of("tensile").Known {
+	if m.Of("bar", "tensile").Known || m.Of("", "tensile").Known {
 		t.Error("nil Resolutions knows a property")
 	}
 	m = Resolutions{}
-	m.Add("tensile", 955)
-	m.Add("tensile", 960.5)
-	if r := m.Of("tensile"); !r.Known || r.Dec != 1 {
-		t.Errorf("tensile: %+v, want 1 decimal", r)
+	m.Add("bar", "tensile", 955)
+	m.Add("bar", "tensile", 960.5)
+	m.Add("plate", "tensile", 320)
+	if r := m.Of("bar", "tensile"); !r.Known || r.Dec != 1 {
+		t.Errorf("bar tensile: %+v, want 1 decimal", r)
+	}
+	if r := m.Of("plate", "tensile"); !r.Known || r.Dec != 0 {
+		t.Errorf("plate tensile: %+v, want 0 decimals", r)
+	}
+	if r := m.Of("", "tensile"); !r.Known || r.Dec != 1 {
+		t.Errorf("tensile over both materials: %+v, want 1 decimal", r)
+	}
+	// A material whose values are computed (no finite resolution) keeps
+	// its own unknown resolution; the others keep theirs.
+	m.Add("forging", "tensile", 319.60975440679283)
+	if m.Of("forging", "tensile").Known || !m.Of("bar", "tensile").Known || m.Of("", "tensile").Known {
+		t.Errorf("with computed forging values: forging %+v, bar %+v, all %+v", m.Of("forging", "tensile"), m.Of("bar", "tensile"), m.Of("", "tensile"))
 	}
 }
 

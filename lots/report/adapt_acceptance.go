@@ -108,7 +108,7 @@ func AcceptanceSection(r *acceptance.Result, sys units.System, rs render.Resolut
 	out := &Table{Title: "Values flagged by the maximum normed residual test (kept)", Columns: Cols(r.GroupBy, "specimen", "property", ">value", ">MNR", ">critical", ">line")}
 	for _, l := range r.Lots {
 		for _, o := range l.Outliers {
-			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, rs.Of(o.Property).Given(float64(o.Value)).Text()+unitSuffix(o.Unit),
+			out.Rows = append(out.Rows, append(Cells(l.Lot, o.Specimen, o.Property, rs.Of(l.Material, o.Property).Given(float64(o.Value)).Text()+unitSuffix(o.Unit),
 				render.Factor(o.MNR).Text(), render.Factor(o.Critical).Text()), Cell{Text: strconv.Itoa(o.Line)}))
 		}
 	}
@@ -154,7 +154,7 @@ func limitTable(r *acceptance.Result, title string, keep func(verdict string) bo
 			if p.Side == "max" {
 				side = "max "
 			}
-			pr := rs.Of(p.Property)
+			pr := rs.Of(l.Material, p.Property)
 			row := Cells(l.Lot, p.Property, side+pr.Given(float64(p.Limit)).Text()+unitSuffix(p.Unit), strconv.Itoa(p.N),
 				pr.Stat(float64(p.Mean)).Text(), pr.Spread(float64(p.SD)).Text(), pr.Given(float64(p.Extreme)).Text(), render.Factor(float64(p.K)).Text(),
 				pr.Stat(float64(p.ToleranceBound)).Text(), render.Fraction(float64(p.FractionEstimate)).Text()+" / "+render.Fraction(float64(p.FractionUpper)).Text())

@@ -10,8 +10,9 @@ import (
 	"lotproof/stats"
 )
 
-// DataResolutions infers each property's resolution from its values in
-// the display units of sys (render.Resolution); nil data give none.
+// DataResolutions infers each material's and property's resolution from
+// its values in the display units of sys (render.Resolution); nil data give
+// none.
 func DataResolutions(d *lots.Dataset, sys units.System) render.Resolutions {
 	rs := render.Resolutions{}
 	if d == nil {
@@ -19,13 +20,11 @@ func DataResolutions(d *lots.Dataset, sys units.System) render.Resolutions {
 	}
 	for p, prop := range d.Properties {
 		u := prop.Unit.Display(sys)
-		r := &render.Resolution{}
 		for _, s := range d.Specimens {
 			if p < len(s.Values) {
-				r.Add(u.FromInternal(s.Values[p]))
+				rs.Add(s.Material, prop.Name, u.FromInternal(s.Values[p]))
 			}
 		}
-		rs[prop.Name] = r
 	}
 	return rs
 }

@@ -50,7 +50,7 @@ func TrendSection(r *trend.Result, all bool, rs render.Resolutions) (Section, er
 		if p.LotsRejected > 0 {
 			rej.Status = Fail
 		}
-		pr := rs.Of(p.Property)
+		pr := rs.Of(p.Material, p.Property)
 		row := Cells(p.Group, p.Property+unitText(p.Unit), period, strconv.Itoa(p.Lots), strconv.Itoa(p.Specimens),
 			pr.Stat(float64(p.Mean)).Text(), pr.Spread(float64(p.SD)).Text(), pr.Given(float64(p.Minimum)).Text())
 		row = append(row, ppk, Cell{Text: render.Factor(float64(p.PpkLower)).Text()}, Cell{Text: render.PPM(float64(p.PPMBelow)).Text()}, rej)
@@ -64,7 +64,7 @@ func TrendSection(r *trend.Result, all bool, rs render.Resolutions) (Section, er
 		st := &Table{Title: "Signals", Columns: Cols("rule", r.By, "property", "period", "lot", ">value", ">limit", "detail")}
 		for _, s := range r.Signals {
 			row := []Cell{{Text: s.Rule, Status: Warn}}
-			pr := rs.Of(s.Property)
+			pr := rs.Of(s.Material, s.Property)
 			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)).Text(), pr.Stat(float64(s.Limit)).Text(), s.Detail)...)
 			st.Rows = append(st.Rows, row)
 		}
@@ -187,7 +187,7 @@ func seriesCharts(r *trend.Result, s trend.Series, rs render.Resolutions) ([]Blo
 			}
 			out = append(out, &Figure{Title: "Individuals chart of lot means, " + name, SVG: svg,
 				Caption: fmt.Sprintf("Centre line and limits from the baseline %s to %s (%d lots): centre %s, limits %s to %s %s. Circled: lots that fired a run rule.%s",
-					s.BaselineFrom, s.BaselineTo, s.BaselineLots, rs.Of(s.Property).Stat(float64(s.Center)), rs.Of(s.Property).Stat(float64(s.Lower)), rs.Of(s.Property).Stat(float64(s.Upper)), s.Unit, leftText(left))})
+					s.BaselineFrom, s.BaselineTo, s.BaselineLots, rs.Of(s.Material, s.Property).Stat(float64(s.Center)), rs.Of(s.Material, s.Property).Stat(float64(s.Lower)), rs.Of(s.Material, s.Property).Stat(float64(s.Upper)), s.Unit, leftText(left))})
 		}
 		labels, vals, lo, hi, signals, left := chart("ewma", func(p trend.Point) float64 { return float64(p.EWMA) },
 			func(p trend.Point) float64 { return float64(p.EWMALow) }, func(p trend.Point) float64 { return float64(p.EWMAHigh) })
@@ -213,7 +213,7 @@ func seriesCharts(r *trend.Result, s trend.Series, rs render.Resolutions) ([]Blo
 			}
 			out = append(out, &Figure{Title: "S chart of lot SDs, " + name, SVG: svg,
 				Caption: fmt.Sprintf("Centre line the mean lot SD of the baseline, %s %s; limits for each lot's size. Circled: lots whose SD left its limits.%s",
-					rs.Of(s.Property).Spread(float64(s.SBar)), s.Unit, leftText(left))})
+					rs.Of(s.Material, s.Property).Spread(float64(s.SBar)), s.Unit, leftText(left))})
 		}
 	}
 	return out, nil
