@@ -398,7 +398,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 			rs = append(rs, r)
 		}
 		sort.Strings(rs)
-		sig.Add(k.group, k.property, f.Period, f.Lot, f.Rule, fmt.Sprint(count[k]), strings.Join(rs, " "))
+		sig.Add(k.group, k.property, f.Period, f.Lot, render.Label{Text: trend.RuleLabel(f.Rule), Key: f.Rule}, fmt.Sprint(count[k]), render.Label{Text: trend.RuleLabels(rs), Key: strings.Join(rs, " ")})
 	}
 	if text {
 		sig.Title = fmt.Sprintf("4. Supplier trend by quarter (control limits from %s): %d signals; the first per supplier and property (lotproof trend lists them all)", res.Trend.Baseline, len(res.Trend.Signals))

@@ -126,7 +126,7 @@ func trendTables(r *trend.Result, rs render.Resolutions) []*render.Table {
 	st := render.NewTable("Signals", "rule", r.By, "material", "property", "period", "lot", ">value", ">limit", "detail")
 	for _, s := range r.Signals {
 		pr := rs.Of(s.Material, s.Property)
-		st.Add(s.Rule, s.Group, s.Material, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)), pr.Stat(float64(s.Limit)), s.Detail)
+		st.Add(render.Label{Text: trend.RuleLabel(s.Rule), Key: s.Rule}, s.Group, s.Material, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)), pr.Stat(float64(s.Limit)), s.Detail)
 	}
 	if len(r.Signals) == 0 {
 		st.Note("no signals")

@@ -104,8 +104,14 @@ func Exact(v float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
+// Label is a cell that reads differently for people and for scripts: the
+// text table shows Text, CSV writes Key (a stable code).
+type Label struct {
+	Text, Key string
+}
+
 // Add appends a row; missing cells are left empty. A cell is a string, an
-// int or a Number.
+// int, a Number or a Label.
 func (t *Table) Add(cells ...any) {
 	row := make([]string, len(t.Columns))
 	var exact []string
@@ -124,13 +130,21 @@ func (t *Table) Add(cells ...any) {
 				exact = make([]string, len(row))
 			}
 			exact[i] = Exact(v.V)
+		case Label:
+			row[i] = v.Text
+			if exact == nil {
+				exact = make([]string, len(row))
+			}
+			exact[i] = v.Key
 		default:
 			panic(fmt.Sprintf("render: cell of type %T", c))
 		}
 	}
 	if exact != nil {
 		for i, c := range cells {
-			if _, isNum := c.(Number); !isNum {
+			switch c.(type) {
+			case Number, Label:
+			default:
 				exact[i] = row[i]
 			}
 		}

@@ -65,3 +65,24 @@ func TestCSVRoundTrip(t *testing.T) {
 		t.Errorf("text:\n%.300s", txt.String())
 	}
 }
+
+// A label cell shows words in the text table and its stable code in CSV,
+// so scripts keep the code and people read the words (common practice for
+// coded columns).
+func TestLabelCell(t *testing.T) {
+	tb := NewTable("", "rule", ">n")
+	tb.Add(Label{Text: "beyond 3 sigma", Key: "we1"}, 3)
+	var text, out strings.Builder
+	if err := tb.WriteText(&text); err != nil {
+		t.Fatal(err)
+	}
+	if err := tb.WriteCSV(&out); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(text.String(), "beyond 3 sigma") || strings.Contains(text.String(), "we1") {
+		t.Errorf("text table: %q", text.String())
+	}
+	if got, want := out.String(), "rule,n\nwe1,3\n"; got != want {
+		t.Errorf("CSV: %q, want %q", got, want)
+	}
+}

@@ -63,7 +63,7 @@ func TrendSection(r *trend.Result, all bool, rs render.Resolutions) (Section, er
 	if len(r.Signals) > 0 {
 		st := &Table{Title: "Signals", Columns: Cols("rule", r.By, "property", "period", "lot", ">value", ">limit", "detail")}
 		for _, s := range r.Signals {
-			row := []Cell{{Text: s.Rule, Status: Warn}}
+			row := []Cell{{Text: trend.RuleLabel(s.Rule), Status: Warn}}
 			pr := rs.Of(s.Material, s.Property)
 			row = append(row, Cells(s.Group, s.Property, s.Period, s.Lot, pr.Stat(float64(s.Value)).Text(), pr.Stat(float64(s.Limit)).Text(), s.Detail)...)
 			st.Rows = append(st.Rows, row)

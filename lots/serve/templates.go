@@ -9,10 +9,12 @@ import (
 	"lotproof/lots"
 	"lotproof/lots/render"
 	"lotproof/lots/report"
+	"lotproof/lots/trend"
 )
 
 var funcs = template.FuncMap{
-	"num": func(v lots.Float, sig int) string { return render.Num(float64(v), sig) },
+	"num":  func(v lots.Float, sig int) string { return render.Num(float64(v), sig) },
+	"rule": trend.RuleLabel,
 	"lotURL": func(u, id string) string {
 		return "/lot/" + url.PathEscape(id) + u
 	},
@@ -224,7 +226,7 @@ const pageTemplates = `
 <thead><tr><th scope="col">rule</th><th scope="col">property</th><th scope="col">period</th><th scope="col">lot</th><th class="n" scope="col">value</th><th class="n" scope="col">limit</th><th scope="col">detail</th></tr></thead>
 <tbody>
 {{- range .Signals}}
-<tr><td class="st-warn"><span class="mark">!</span> {{.Rule}}</td><td>{{.Property}}</td><td>{{.Period}}</td><td>{{if .Lot}}<a href="{{lotURL $u .Lot}}">{{.Lot}}</a>{{end}}</td><td class="n">{{num .Value 4}}</td><td class="n">{{num .Limit 4}}</td><td>{{.Detail}}</td></tr>
+<tr><td class="st-warn"><span class="mark">!</span> {{rule .Rule}}</td><td>{{.Property}}</td><td>{{.Period}}</td><td>{{if .Lot}}<a href="{{lotURL $u .Lot}}">{{.Lot}}</a>{{end}}</td><td class="n">{{num .Value 4}}</td><td class="n">{{num .Limit 4}}</td><td>{{.Detail}}</td></tr>
 {{- end}}
 </tbody></table></div>
 {{- else}}
