@@ -57,6 +57,20 @@ func goldenCases(db, page string) []goldenCase {
 	add("demo", "demo", "--no-report", "--date", "2026-12-02")
 	cs = append(cs, goldenCase{"demo-report.json", []string{"demo", "--date", "2026-12-02", "--report", page, "--format", "json"}})
 	add("trend-material", "trend", "--db", db, "--by", "material", "--property", "tensile", "--every", "month")
+	// Refusals: exit status 2 and the message.
+	bad := func(name string, args ...string) { cs = append(cs, goldenCase{name, args}) }
+	bad("bad-equivalence-materials", "equivalence", demoReceipts, "--property", "tensile", "--baseline-mean", "990", "--baseline-sd", "12")
+	bad("bad-equivalence-unit", "equivalence", demoReceipts, "--property", "tensile", "--all-materials", "--baseline-mean", "990", "--baseline-sd", "12", "--unit", "%")
+	bad("bad-equivalence-property", "equivalence", demoReceipts, "--property", "strength", "--baseline-mean", "990", "--baseline-sd", "12")
+	bad("bad-equivalence-nodata", "equivalence", "--property", "tensile", "--baseline-mean", "990", "--baseline-sd", "12")
+	bad("bad-equivalence-material", "equivalence", demoReceipts, "--property", "tensile", "--material", "brass", "--baseline-mean", "990", "--baseline-sd", "12")
+	bad("bad-equivalence-table", "equivalence", "--n", "4", "--baseline-mean", "990", "--baseline-sd", "12", "--table", "lots")
+	bad("bad-specimens-property", "specimens", "--spec", testSpec, "--property", "elongation", testLots)
+	bad("bad-specimens-target", "specimens", "--mean", "990", "--sd", "10", "--min", "930", "--target", "1")
+	bad("bad-specimens-sd", "specimens", "--mean", "990", "--sd", "-1", "--min", "930")
+	bad("bad-reduce-offset", "reduce", goldenDemo+"raw/LF-2604-2-1.rec", "--offset", "-1")
+	bad("bad-reduce-twice", "reduce", goldenDemo+"raw/LF-2604-2-1.rec", goldenDemo+"raw/LF-2604-2-1.rec")
+	bad("bad-demo-date", "demo", "--no-report", "--date", "2026-13-40")
 	return cs
 }
 
