@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"lotproof/lots/equivalence"
 	"lotproof/stats"
 )
 
@@ -17,7 +18,7 @@ func TestEquivalenceLimitsAndLots(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r equivalenceResult
+	var r equivalence.Result
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
