@@ -1,19 +1,15 @@
 package main
 
 import (
-	"fmt"
 	"io"
-	"math"
 	"strconv"
-	"strings"
 
 	"github.com/spf13/cobra"
 
 	"lotproof/lots"
+	"lotproof/lots/acceptance/specimens"
 	"lotproof/lots/render"
-	"lotproof/lots/units"
 	"lotproof/spec"
-	"lotproof/stats"
 )
 
 type specimensOptions struct {
@@ -29,9 +25,6 @@ type specimensOptions struct {
 	Input               inputOptions
 	Out                 output
 }
-
-// specimensSearchLimit bounds the search for the smallest n.
-const specimensSearchLimit = 2000
 
 func newSpecimensCmd(g *globalOptions, st streams) *cobra.Command {
 	var o specimensOptions
@@ -88,217 +81,30 @@ individual values lowers it slightly.`,
 
 func init() { register(newSpecimensCmd) }
 
-type specimensRow struct {
-	N    int        `json:"n"`
-	K    lots.Float `json:"k"`
-	Prob lots.Float `json:"probability"`
-}
-
-type specimensResult struct {
-	Spec       string         `json:"spec,omitempty"`
-	Source     string         `json:"source,omitempty"`
-	Property   string         `json:"property,omitempty"`
-	Unit       string         `json:"unit"`
-	Mean       float64        `json:"mean"`
-	SD         float64        `json:"sd"`
-	Side       string         `json:"side"`
-	Limit      float64        `json:"limit"`
-	Margin     float64        `json:"margin"` // (mean - L)/SD or (U - mean)/SD
-	Content    float64        `json:"content"`
-	Confidence float64        `json:"confidence"`
-	Target     float64        `json:"target"`
-	MinN       int            `json:"min_specimens"`
-	SmallestN  int            `json:"smallest_n"` // -1: not reachable, 0: beyond the search limit
-	Rows       []specimensRow `json:"rows"`
-	Reasons    []string       `json:"reasons"`
-	Method     string         `json:"method"`
-	Cautions   []string       `json:"cautions"`
-}
-
-const specimensCaution = "The planned probability assumes the lot's mean and SD are as given and the property is normal; it supports, and never replaces, the governing specification, local practice and the inspector's judgement."
-
 func runSpecimens(o specimensOptions, st streams) error {
-	if !(o.Target > 0 && o.Target < 1) {
-		return usageError{fmt.Errorf("--target %g: expected a probability between 0 and 1", o.Target)}
+	po := specimens.Options{Property: o.Property, Mean: o.Mean, SD: o.SD, Min: o.Min, Max: o.Max, Unit: o.Unit,
+		Content: o.Content, Confidence: o.Confidence, Target: o.Target, MinN: o.MinN, MaxN: o.MaxN, Set: o.set, System: o.Out.System}
+	if err := po.Check(o.Spec != "", o.Data != ""); err != nil {
+		return usageError{err}
 	}
-	if o.MaxN < 2 || o.MaxN > 1000 {
-		return usageError{fmt.Errorf("--max-n %d: expected 2 to 1000", o.MaxN)}
-	}
-	res := specimensResult{Target: o.Target, Method: "P(mean - k*SD >= L) = P(T >= k sqrt(n)), T noncentral t with n-1 df and noncentrality sqrt(n) (mean - L)/SD, k the exact one-sided normal tolerance factor (Owen 1968)",
-		Cautions: []string{specimensCaution}, Reasons: []string{}}
-	var u units.Unit
-	var mean, sd, limit float64 // internal units
-	side := "min"
+	var s *spec.Spec
+	var d *lots.Dataset
+	var by lots.GroupBy
 	if o.Spec != "" {
-		if o.Data == "" || o.Property == "" {
-			return usageError{fmt.Errorf("--spec needs --property and a results file")}
-		}
-		s, err := spec.ReadFile(o.Spec)
-		if err != nil {
-			return err
-		}
-		l, ok := s.Limit(o.Property)
-		if !ok {
-			return lots.Inputf(s.Source, "choose a property the specification names", "%s has no property %q", s.Label(), o.Property)
-		}
-		d, by, err := readData(o.Data, o.Input, st)
-		if err != nil {
-			return err
-		}
-		pi := d.Property(o.Property)
-		if pi < 0 {
-			return lots.Inputf(d.Source, "add the column or choose another property", "no property %q (columns: %v)", o.Property, d.PropertyNames())
-		}
-		if !units.Compatible(l.Unit, d.Properties[pi].Unit) {
-			return lots.Inputf(l.Where, "use the same quantity and scale in the specification and the data", "%s gives %q in %s but %s has it in %s", s.Label(), l.Property, l.Unit.Symbol, d.Source, d.Properties[pi].Unit.Symbol)
-		}
-		groups, err := d.Group(by, func(sp *lots.Specimen) bool {
-			return strings.EqualFold(strings.TrimSpace(sp.Material), strings.TrimSpace(s.Material)) || sp.Material == ""
-		})
-		if err != nil {
-			return lots.Inputf(d.Source, "group by lot, or fill the heat column", "%v", err)
-		}
-		sum, cnt, ss, df := 0.0, 0, 0.0, 0
-		for _, g := range groups {
-			vals, _ := d.Values(pi, g.Specimens)
-			if len(vals) == 0 {
-				continue
-			}
-			m := 0.0
-			for _, v := range vals {
-				m += v
-			}
-			m /= float64(len(vals))
-			for _, v := range vals {
-				ss += (v - m) * (v - m)
-			}
-			sum += m * float64(len(vals))
-			cnt += len(vals)
-			df += len(vals) - 1
-		}
-		if cnt == 0 || df == 0 {
-			return lots.Inputf(d.Source, "give a file with lots of "+s.Material, "no lots with at least two values of %q for material %q", o.Property, s.Material)
-		}
-		mean, sd = sum/float64(cnt), math.Sqrt(ss/float64(df))
-		u = d.Properties[pi].Unit
-		if o.set["mean"] {
-			mean = u.ToInternal(o.Mean)
-		}
-		if o.set["sd"] {
-			sd = u.ToInternal(o.SD)
-		}
-		if !(sd > 0) {
-			return lots.Inputf(d.Source, "check the data", "the pooled within-lot SD of %q is zero", o.Property)
-		}
-		switch {
-		case l.HasMin() && l.HasMax():
-			if (l.Max-mean)/sd < (mean-l.Min)/sd {
-				side, limit = "max", l.Max
-			} else {
-				limit = l.Min
-			}
-		case l.HasMax():
-			side, limit = "max", l.Max
-		default:
-			limit = l.Min
-		}
-		r := s.Acceptance
-		res.Content, res.Confidence, res.MinN = r.Content, r.Confidence, r.MinSpecimens
-		if o.set["content"] {
-			res.Content = o.Content
-		}
-		if o.set["confidence"] {
-			res.Confidence = o.Confidence
-		}
-		if o.set["min-specimens"] {
-			res.MinN = o.MinN
-		}
-		res.Spec, res.Source, res.Property = s.Label(), d.Source, l.Property
-		res.Reasons = append(res.Reasons, fmt.Sprintf("mean and pooled within-lot SD of %d values in %d lots of %s", cnt, len(groups), s.Material))
-	} else {
-		if o.Data != "" {
-			return usageError{fmt.Errorf("a results file is used only with --spec")}
-		}
-		if !o.set["mean"] || !o.set["sd"] || o.set["min"] == o.set["max"] {
-			return usageError{fmt.Errorf("give --mean, --sd and one of --min or --max (or --spec, --property and a results file)")}
-		}
 		var err error
-		if u, err = units.Parse(o.Unit); err != nil {
-			return usageError{err}
-		}
-		mean, sd = u.ToInternal(o.Mean), u.ToInternal(o.SD)
-		limit = u.ToInternal(o.Min)
-		if o.set["max"] {
-			side, limit = "max", u.ToInternal(o.Max)
-		}
-		for _, v := range []float64{mean, sd, limit} {
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return usageError{fmt.Errorf("--mean, --sd and the limit must be finite")}
-			}
-		}
-		if !(sd > 0) {
-			return usageError{fmt.Errorf("--sd %g must be positive", o.SD)}
-		}
-		res.Content, res.Confidence, res.MinN = o.Content, o.Confidence, o.MinN
-	}
-	for _, r := range []struct {
-		name string
-		v    float64
-	}{{"content", res.Content}, {"confidence", res.Confidence}} {
-		if !(r.v >= 0.5 && r.v < 1) {
-			return usageError{fmt.Errorf("--%s %g: expected a proportion in [0.5, 1)", r.name, r.v)}
-		}
-	}
-	if res.MinN < 2 || res.MinN > o.MaxN {
-		return usageError{fmt.Errorf("--min-specimens %d: expected 2 to --max-n (%d)", res.MinN, o.MaxN)}
-	}
-	margin := (mean - limit) / sd
-	if side == "max" {
-		margin = (limit - mean) / sd
-	}
-	disp := u.Display(o.Out.System)
-	res.Unit, res.Mean, res.SD, res.Limit, res.Side, res.Margin = disp.Symbol, disp.FromInternal(mean), disp.FromInternal(sd), disp.FromInternal(limit), side, margin
-	prob := func(n int) (float64, float64, error) {
-		k, err := stats.NormalK(n, res.Content, res.Confidence)
-		if err != nil {
-			return 0, 0, err
-		}
-		p, err := stats.ToleranceBoundPassProb(n, res.Content, res.Confidence, margin)
-		return k, p, err
-	}
-	for n := res.MinN; n <= o.MaxN; n++ {
-		k, p, err := prob(n)
-		if err != nil {
+		if s, err = spec.ReadFile(o.Spec); err != nil {
 			return err
 		}
-		res.Rows = append(res.Rows, specimensRow{N: n, K: lots.Float(k), Prob: lots.Float(p)})
-		if res.SmallestN == 0 && p >= o.Target {
-			res.SmallestN = n
+		if _, err := specimens.Limit(s, o.Property); err != nil {
+			return err
+		}
+		if d, by, err = readData(o.Data, o.Input, st); err != nil {
+			return err
 		}
 	}
-	zp := -math.Sqrt2 * math.Erfcinv(2*res.Content)
-	if res.SmallestN == 0 {
-		if margin <= zp {
-			res.SmallestN = -1
-			res.Reasons = append(res.Reasons, fmt.Sprintf("not reachable: the mean is %.3f SD inside the limit, not more than z_p = %.3f, so the probability does not grow towards 1 with n", margin, zp))
-		} else {
-			for n := o.MaxN + 1; n <= specimensSearchLimit; n++ {
-				_, p, err := prob(n)
-				if err != nil {
-					return err
-				}
-				if p >= o.Target {
-					res.SmallestN = n
-					break
-				}
-			}
-			if res.SmallestN == 0 {
-				res.Reasons = append(res.Reasons, fmt.Sprintf("more than %d specimens would be needed", specimensSearchLimit))
-			}
-		}
-	}
-	if res.SmallestN > 0 {
-		res.Reasons = append(res.Reasons, fmt.Sprintf("%d specimens give probability %.3g or more of a conforming verdict (first n from %d at which the target is reached)", res.SmallestN, o.Target, res.MinN))
+	res, err := specimens.Plan(po, s, d, by)
+	if err != nil {
+		return err
 	}
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
@@ -313,10 +119,10 @@ func runSpecimens(o specimensOptions, st streams) error {
 			t.Add(strconv.Itoa(r.N), render.F(float64(r.K), 4), render.F(float64(r.Prob), 4), mark)
 		}
 		word := "minimum"
-		if side == "max" {
+		if res.Side == "max" {
 			word = "maximum"
 		}
-		t.Note("Mean %.5g %s, SD %.4g %s, %s %.5g %s: margin %.3f SD; content %g, confidence %g, target %g.", res.Mean, res.Unit, res.SD, res.Unit, word, res.Limit, res.Unit, margin, res.Content, res.Confidence, o.Target)
+		t.Note("Mean %.5g %s, SD %.4g %s, %s %.5g %s: margin %.3f SD; content %g, confidence %g, target %g.", res.Mean, res.Unit, res.SD, res.Unit, word, res.Limit, res.Unit, res.Margin, res.Content, res.Confidence, res.Target)
 		if res.Spec != "" {
 			t.Note("From %s, property %s, data %s.", res.Spec, res.Property, res.Source)
 		}
@@ -324,7 +130,7 @@ func runSpecimens(o specimensOptions, st streams) error {
 			t.Note("%s.", r)
 		}
 		t.Note("Method: %s.", res.Method)
-		t.Note("Caution: %s", specimensCaution)
+		t.Note("Caution: %s", specimens.Caution)
 		return writeTables(w, o.Out.Format, t)
 	})
 }

@@ -6,6 +6,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"lotproof/lots/acceptance/specimens"
 )
 
 // Probabilities against testdata/acceptance/specimens_ref.json (scipy
@@ -36,7 +38,7 @@ func TestSpecimensFlags(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r specimensResult
+	var r specimens.Result
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
@@ -61,7 +63,7 @@ func TestSpecimensFlags(t *testing.T) {
 func TestSpecimensNotReachableAndSpec(t *testing.T) {
 	// Margin 1.0 SD < z_0.90 = 1.2816: never reachable.
 	code, out, _ := run(t, "", "specimens", "--mean", "940", "--sd", "10", "--min", "930", "--format", "json")
-	var r specimensResult
+	var r specimens.Result
 	if code != exitOK || json.Unmarshal([]byte(out), &r) != nil || r.SmallestN != -1 {
 		t.Fatalf("exit %d smallest %d", code, r.SmallestN)
 	}
