@@ -2,15 +2,11 @@ package main
 
 import (
 	"bytes"
-	"context"
 	"fmt"
 	"io"
-	"io/fs"
-	"os"
 	"path/filepath"
 	"sort"
 	"strings"
-	"time"
 
 	"github.com/spf13/cobra"
 
@@ -19,12 +15,8 @@ import (
 	"lotproof/lots/allowables"
 	"lotproof/lots/demo"
 	"lotproof/lots/progress"
-	"lotproof/lots/reduce"
 	"lotproof/lots/render"
-	"lotproof/lots/store"
 	"lotproof/lots/trend"
-	"lotproof/lots/units"
-	"lotproof/spec"
 )
 
 type demoOptions struct {
@@ -86,34 +78,6 @@ Every company, material, specification and number in it is invented.`,
 	return cmd
 }
 
-// demoResult is everything the demo computed, as written with --format json.
-type demoResult struct {
-	Scenario   string              `json:"scenario"`
-	Date       string              `json:"date"`
-	Seed       uint64              `json:"seed"`
-	Receipts   []lots.GroupSummary `json:"receipts"`
-	Reduced    []demoReduced       `json:"reduced"`
-	Acceptance *acceptance.Result  `json:"acceptance"`
-	Allowables *allowables.Report  `json:"allowables"`
-	Trend      *trend.Result       `json:"trend"`
-	Report     string              `json:"report"`
-	Cautions   []string            `json:"cautions"`
-	campaign   *lots.Dataset       // for the resolution the design values print at
-}
-
-// demoReduced is one reduced raw record, in display units.
-type demoReduced struct {
-	Specimen   string     `json:"specimen"`
-	Lot        string     `json:"lot"`
-	Modulus    lots.Float `json:"modulus"`
-	Proof      lots.Float `json:"proof"`
-	Tensile    lots.Float `json:"tensile"`
-	Elongation lots.Float `json:"elongation"`
-	Units      []string   `json:"units"` // modulus, strengths, elongation
-}
-
-const demoScenario = "Orrin Hollow Pumpworks (invented): steel bar and aluminium plate from five invented mills, 2025-Q1 to 2026-Q4"
-
 func runDemo(o demoOptions, st streams) error {
 	if err := o.Table.check(); err != nil {
 		return err
@@ -124,76 +88,16 @@ func runDemo(o demoOptions, st streams) error {
 	}
 	bar := progress.New(st.Err, st.ErrTerminal, 6, "demo")
 	defer bar.Finish()
-	res := demoResult{Scenario: demoScenario, Date: date, Seed: o.Seed}
-
-	// 1. Reduce the raw records; add the separately measured hardness.
-	rs, err := reduce.ReduceFS(demo.FS(), "raw", reduce.Options{})
+	res, err := demo.Run(demo.Options{Date: date, Seed: o.Seed, DB: o.DB, System: o.Out.System, Step: func() { bar.Add(1) }})
 	if err != nil {
 		return err
 	}
-	hardness, err := demoData("raw-hardness.csv")
-	if err != nil {
-		return err
-	}
-	newLots, err := lots.Merge("demo/raw (reduced) + demo/raw-hardness.csv", reduce.Dataset(rs, "demo/raw"), hardness)
-	if err != nil {
-		return err
-	}
-	res.Reduced = demoReducedRows(newLots, o.Out)
-	bar.Add(1)
-
-	// 2. Judge every lot, old and new, against its specification.
-	receipts, err := demoData("receipts.csv")
-	if err != nil {
-		return err
-	}
-	groups, err := receipts.Group(lots.ByLot, nil)
-	if err != nil {
-		return err
-	}
-	res.Receipts = lots.Summarize(receipts, groups, o.Out.System)
-	all, err := lots.Merge("demo/receipts.csv + reduced records", receipts, newLots)
-	if err != nil {
-		return err
-	}
-	specs, err := demoSpecs()
-	if err != nil {
-		return err
-	}
-	acc, err := acceptance.Judge(all, specs, lots.ByLot)
-	if err != nil {
-		return err
-	}
-	res.Acceptance = acc.Display(o.Out.System)
-	bar.Add(1)
-
-	// 3. Design values from the qualification campaign.
-	campaign, err := demoData("campaign.csv")
-	if err != nil {
-		return err
-	}
-	aopt := allowables.DefaultOptions()
-	aopt.Seed, aopt.System = o.Seed, o.Out.System
-	res.Allowables, err = allowables.Analyze(campaign, aopt, date)
-	res.campaign = campaign
-	if err != nil {
-		return err
-	}
-	bar.Add(1)
-
-	// 4. Record the history in a temporary database and trend it.
-	trendRes := render.Resolutions{}
-	tr, err := demoTrend(receipts, newLots, specs, date, o.DB, trendRes, o.Out.System)
-	if err != nil {
-		return err
-	}
-	bar.Add(1)
 
 	// 5. The report.
 	if o.Report != "" {
 		doc, err := reportDocument(reportInputs{Title: "Demo: Orrin Hollow Pumpworks receipts and qualification (invented)",
-			Date: date, Data: all, By: lots.ByLot, Specs: specs, Acceptance: acc, Campaign: campaign,
-			Allowables: res.Allowables, Trend: tr, TrendRes: trendRes, TrendFrom: "temporary SQLite database", Reduced: rs,
+			Date: date, Data: res.All, By: lots.ByLot, Specs: res.Specs, Acceptance: res.Judged, Campaign: res.Campaign,
+			Allowables: res.Allowables, Trend: res.Trend, TrendRes: res.TrendRes, TrendFrom: "temporary SQLite database", Reduced: res.RawResults,
 			System: o.Out.System, Seed: o.Seed})
 		if err != nil {
 			return err
@@ -211,11 +115,9 @@ func runDemo(o demoOptions, st streams) error {
 			res.Report = o.Report
 		}
 	} else {
-		tr.Display(o.Out.System)
+		res.Trend.Display(o.Out.System)
 	}
-	res.Trend = tr
 	bar.Add(1)
-	res.Cautions = append([]string{lots.Caution}, dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))...)
 	bar.Finish()
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
@@ -229,92 +131,9 @@ func runDemo(o demoOptions, st streams) error {
 	})
 }
 
-// demoData reads one embedded results file.
-func demoData(name string) (*lots.Dataset, error) {
-	b, err := demo.Read(name)
-	if err != nil {
-		return nil, err
-	}
-	return lots.ReadCSV(bytes.NewReader(b), "demo/"+name)
-}
-
-// demoSpecs reads the embedded purchase specifications.
-func demoSpecs() ([]*spec.Spec, error) {
-	var specs []*spec.Spec
-	for _, name := range []string{"spec-steel-bar.yaml", "spec-plate.yaml"} {
-		b, err := demo.Read(name)
-		if err != nil {
-			return nil, err
-		}
-		s, err := spec.Parse("demo/"+name, b)
-		if err != nil {
-			return nil, err
-		}
-		specs = append(specs, s)
-	}
-	return specs, spec.CheckSet(specs)
-}
-
-// demoTrend records the receipts and the new lots, with their verdicts,
-// into a temporary SQLite database (two imports, as an inspector would
-// make them) and computes the quarterly trend by supplier.
-func demoTrend(receipts, newLots *lots.Dataset, specs []*spec.Spec, date, db string, rs render.Resolutions, sys units.System) (*trend.Result, error) {
-	dir, err := os.MkdirTemp("", "lotproof-demo-")
-	if err != nil {
-		return nil, err
-	}
-	defer os.RemoveAll(dir)
-	ctx := context.Background()
-	path := filepath.Join(dir, "history.db")
-	if db != "" {
-		path = db
-	}
-	s, err := store.Open(ctx, path)
-	if err != nil {
-		return nil, err
-	}
-	defer s.Close()
-	when, _ := time.Parse("2006-01-02", date)
-	for _, d := range []*lots.Dataset{receipts, newLots} {
-		verdicts, _, _, err := judgeLots(d, specs, lots.ByLot)
-		if err != nil {
-			return nil, err
-		}
-		if _, err := s.Record(ctx, d, verdicts, store.LimitsOf(specs), store.Meta{Time: when, User: "demo", Version: lots.Version}); err != nil {
-			return nil, err
-		}
-	}
-	return computeTrend(ctx, s, trend.Options{Baseline: demoBaseline}, rs, sys)
-}
-
-func demoReducedRows(d *lots.Dataset, out output) []demoReduced {
-	col := func(name string) int { return d.Property(name) }
-	e, p, t, a := col("modulus"), col("proof"), col("tensile"), col("elongation")
-	var rows []demoReduced
-	for _, s := range d.Specimens {
-		r := demoReduced{Specimen: s.ID, Lot: s.Lot, Modulus: lots.NaN, Proof: lots.NaN, Tensile: lots.NaN, Elongation: lots.NaN}
-		for _, c := range []struct {
-			i   int
-			dst *lots.Float
-		}{{e, &r.Modulus}, {p, &r.Proof}, {t, &r.Tensile}, {a, &r.Elongation}} {
-			if c.i >= 0 && !s.Missing(c.i) {
-				u := d.Properties[c.i].Unit.Display(out.System)
-				*c.dst = lots.Float(u.FromInternal(s.Values[c.i]))
-			}
-		}
-		for _, i := range []int{e, p, a} {
-			if i >= 0 {
-				r.Units = append(r.Units, d.Properties[i].Unit.Display(out.System).Symbol)
-			}
-		}
-		rows = append(rows, r)
-	}
-	return rows
-}
-
 // demoTables lays the demo's results out: the reduced records, the lots
 // that did not conform, the design values and the trend signals.
-func demoTables(res demoResult, text bool) []*render.Table {
+func demoTables(res *demo.Result, text bool) []*render.Table {
 	var out []*render.Table
 	u := []string{"", "", ""}
 	if len(res.Reduced) > 0 && len(res.Reduced[0].Units) == 3 {
@@ -357,7 +176,7 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	}
 	out = append(out, lotsT)
 
-	al := allowablesTables(res.Allowables, res.campaign, false)[0]
+	al := allowablesTables(res.Allowables, res.Campaign, false)[0]
 	if text {
 		al.Title = fmt.Sprintf("3. Design values from the qualification campaign %s (A-basis %g%%/%g%%, B-basis %g%%/%g%% content/confidence; lotproof allowables shows the audit trail)",
 			res.Allowables.Input, 100*res.Allowables.Options.A.Content, 100*res.Allowables.Options.A.Confidence,
@@ -416,43 +235,12 @@ func demoTables(res demoResult, text bool) []*render.Table {
 	return out
 }
 
-// demoBaseline is the period the demo's control limits come from: the five
-// quarters before Coldmere Forge's drift begins.
-const demoBaseline = "2025-Q1..2026-Q1"
-
 // writeDemoData writes the embedded demo files into dir, which must not
 // exist yet (nothing is overwritten), and says what to try with them.
 func writeDemoData(dir string, st streams) error {
-	if _, err := os.Stat(dir); err == nil {
-		return usageError{fmt.Errorf("--data-dir %s exists: give a new folder (nothing is overwritten)", dir)}
-	}
-	fsys := demo.FS()
-	var files []string
-	err := fs.WalkDir(fsys, ".", func(p string, e fs.DirEntry, err error) error {
-		if err != nil {
-			return err
-		}
-		if e.IsDir() || strings.HasSuffix(p, "README.md") {
-			return nil
-		}
-		files = append(files, p)
-		return nil
-	})
+	files, err := demo.WriteFiles(dir)
 	if err != nil {
-		return err
-	}
-	for _, p := range files {
-		b, err := fs.ReadFile(fsys, p)
-		if err != nil {
-			return err
-		}
-		dst := filepath.Join(dir, filepath.FromSlash(p))
-		if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
-			return usageError{err}
-		}
-		if err := os.WriteFile(dst, b, 0o644); err != nil {
-			return usageError{err}
-		}
+		return usageError{err}
 	}
 	fmt.Fprintf(st.Out, "wrote %d demo files into %s; for example:\n"+
 		"  lotproof accept %s --spec %s --spec %s\n"+

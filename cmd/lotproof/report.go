@@ -251,7 +251,7 @@ func runReport(o reportOptions, st streams) error {
 			return usageError{err}
 		}
 		in.TrendRes = render.Resolutions{}
-		tr, err := computeTrend(ctx, s, trend.Options{Limits: store.LimitsOf(specs)}, in.TrendRes, o.Out.System)
+		tr, err := trend.ComputeShown(ctx, s, trend.Options{Limits: store.LimitsOf(specs)}, in.TrendRes, o.Out.System)
 		in.TrendFrom = s.Where()
 		s.Close()
 		if err != nil {

@@ -10,6 +10,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/acceptance"
+	"lotproof/lots/demo"
 	"lotproof/lots/reduce"
 	"lotproof/lots/units"
 )
@@ -145,7 +146,7 @@ func TestReportBadInput(t *testing.T) {
 // (320 specimens, 64 lots, two specifications) once the lots are judged:
 // figures, document and HTML. Judging is left out (see lots/acceptance).
 func BenchmarkReportDemo(b *testing.B) {
-	d, err := demoData("receipts.csv")
+	d, err := demo.Dataset("receipts.csv")
 	if err != nil {
 		b.Fatal(err)
 	}

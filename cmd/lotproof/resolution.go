@@ -4,7 +4,6 @@ import (
 	"lotproof/lots"
 	"lotproof/lots/render"
 	"lotproof/lots/report"
-	"lotproof/lots/store"
 	"lotproof/lots/units"
 )
 
@@ -22,33 +21,6 @@ func addLotResolutions(rs render.Resolutions, props []lots.Property, l *lots.Lot
 		r := rs.At(l.Material, prop.Name)
 		for _, v := range l.Values[p] {
 			r.Add(u.FromInternal(v))
-		}
-	}
-}
-
-// trendSeen takes the values a trend uses into rs, each in the unit the
-// trend shows it in (trend.Result.Display: the unit the property was
-// entered in, in the units of sys).
-func trendSeen(rs render.Resolutions, entered map[string]string, sys units.System) func(store.LotValues) {
-	conv := map[[2]string]func(float64) float64{}
-	return func(v store.LotValues) {
-		key := [2]string{v.Unit, v.Property}
-		f, ok := conv[key]
-		if !ok {
-			f = func(x float64) float64 { return x }
-			if u, err := units.Parse(v.Unit); err == nil {
-				shown := u
-				if e, err := units.Parse(entered[v.Property]); err == nil && entered[v.Property] != "" && units.Compatible(e, u) {
-					shown = e
-				}
-				d := shown.Display(sys)
-				f = func(x float64) float64 { return d.FromInternal(u.ToInternal(x)) }
-			}
-			conv[key] = f
-		}
-		r := rs.At(v.Material, v.Property)
-		for _, x := range v.Values {
-			r.Add(f(x))
 		}
 	}
 }

@@ -16,6 +16,7 @@ import (
 	"testing"
 	"time"
 
+	"lotproof/lots/demo"
 	"lotproof/lots/serve"
 )
 
@@ -90,7 +91,7 @@ func TestServeDemo(t *testing.T) {
 	if code, _, errs := run(t, "", "demo", "--db", db, "--no-report", "--date", "2026-12-02", "--format", "json"); code != 0 {
 		t.Fatalf("demo --db: exit %d: %s", code, errs)
 	}
-	base := startServe(t, serveOptions{DB: db, Every: "quarter", Baseline: demoBaseline, Recent: 8, MaxRequest: 16})
+	base := startServe(t, serveOptions{DB: db, Every: "quarter", Baseline: demo.Baseline, Recent: 8, MaxRequest: 16})
 	var ov serve.Overview
 	getJSONURL(t, base+"/?format=json", &ov)
 	if len(ov.Suppliers) != 5 || len(ov.Periods) != 8 || ov.Periods[0] != "2025-Q1" || ov.Periods[7] != "2026-Q4" {
@@ -145,7 +146,7 @@ func TestServeInBrowser(t *testing.T) {
 	if code, _, errs := run(t, "", "demo", "--db", db, "--no-report", "--date", "2026-12-02", "--format", "json"); code != 0 {
 		t.Fatalf("demo --db: exit %d: %s", code, errs)
 	}
-	base := startServe(t, serveOptions{DB: db, Every: "quarter", Baseline: demoBaseline, Recent: 8, MaxRequest: 16})
+	base := startServe(t, serveOptions{DB: db, Every: "quarter", Baseline: demo.Baseline, Recent: 8, MaxRequest: 16})
 	var sp serve.SupplierPage
 	getJSONURL(t, base+"/supplier/"+url.PathEscape("Coldmere Forge")+"?format=json", &sp)
 	pages := []string{"/", "/supplier/" + url.PathEscape("Coldmere Forge"), "/lot/" + url.PathEscape(sp.Lots[0].Lot)}

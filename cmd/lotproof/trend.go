@@ -83,7 +83,7 @@ func runTrend(o trendOptions, st streams) error {
 	if o.Out.Format == render.Text {
 		rs = render.Resolutions{}
 	}
-	res, err := computeTrend(ctx, s, o.Trend, rs, o.Out.System)
+	res, err := trend.ComputeShown(ctx, s, o.Trend, rs, o.Out.System)
 	if err != nil {
 		return err
 	}

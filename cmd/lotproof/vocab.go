@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -10,9 +9,6 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/render"
-	"lotproof/lots/store"
-	"lotproof/lots/trend"
-	"lotproof/lots/units"
 )
 
 // renameWeibullExact gives the exact Weibull factor the name allowables
@@ -51,24 +47,4 @@ func summaryJSON(w io.Writer, by lots.GroupBy, sum []lots.GroupSummary) error {
 		out[i] = append([]byte(`{"`+string(by)+`":`), raw[len(lotKey):]...)
 	}
 	return render.WriteJSON(w, out)
-}
-
-// computeTrend is trend.Compute with the units the properties were
-// entered in, so that Display shows each property as summary does. When rs
-// is not nil, the resolutions of the values used, in the display units of
-// sys, go into it.
-func computeTrend(ctx context.Context, s *store.Store, o trend.Options, rs render.Resolutions, sys units.System) (*trend.Result, error) {
-	entered, err := s.EnteredUnits(ctx)
-	if err != nil {
-		return nil, err
-	}
-	if rs != nil {
-		o.Seen = trendSeen(rs, entered, sys)
-	}
-	res, err := trend.Compute(ctx, s, o)
-	if err != nil {
-		return nil, err
-	}
-	res.EnteredUnits = entered
-	return res, nil
 }
