@@ -265,7 +265,7 @@ func runReport(o reportOptions, st streams) error {
 	}
 	if len(o.Records) > 0 {
 		var err error
-		if in.Reduced, err = reduceInputs(o.Records, st, reduce.Options{}, nil); err != nil {
+		if in.Reduced, err = reduce.ReducePaths(o.Records, st.In, reduce.Options{}, nil); err != nil {
 			return err
 		}
 		bar.Add(1)
