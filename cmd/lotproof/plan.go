@@ -3,16 +3,13 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
-	"sort"
 	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
 
-	"lotproof/lots"
+	"lotproof/lots/acceptance/sampling"
 	"lotproof/lots/render"
-	"lotproof/stats"
 )
 
 type planOptions struct {
@@ -71,48 +68,6 @@ func parseFraction(flag, s string) (float64, error) {
 	return v, nil
 }
 
-type planResult struct {
-	AQL          float64        `json:"aql"`
-	RQL          float64        `json:"rql"`
-	ProducerRisk float64        `json:"producer_risk"`
-	ConsumerRisk float64        `json:"consumer_risk"`
-	Variables    planVariables  `json:"variables"`
-	Wallis       planWallis     `json:"wallis"`
-	Attributes   planAttributes `json:"attributes"`
-	OC           []planOCPoint  `json:"oc"`
-	Method       string         `json:"method"`
-	Cautions     []string       `json:"cautions"`
-}
-
-type planVariables struct {
-	N            int     `json:"n"`
-	K            float64 `json:"k"`
-	KMin         float64 `json:"k_min"`
-	KMax         float64 `json:"k_max"`
-	ProducerRisk float64 `json:"producer_risk"`
-	ConsumerRisk float64 `json:"consumer_risk"`
-}
-
-type planWallis struct {
-	N float64 `json:"n"`
-	K float64 `json:"k"`
-}
-
-type planAttributes struct {
-	N            int     `json:"n"`
-	C            int     `json:"c"`
-	ProducerRisk float64 `json:"producer_risk"`
-	ConsumerRisk float64 `json:"consumer_risk"`
-}
-
-type planOCPoint struct {
-	P            float64    `json:"p"`
-	PaVariables  lots.Float `json:"pa_variables"`
-	PaAttributes lots.Float `json:"pa_attributes"`
-}
-
-const planCaution = "A sampling plan and its OC curve support, and never replace, the governing specification, contract terms and the inspector's judgement; the variables plan assumes a normal distribution of the property in the lot."
-
 func runPlan(o planOptions, st streams) error {
 	if err := o.Table.check(); err != nil {
 		return err
@@ -125,54 +80,18 @@ func runPlan(o planOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	for _, r := range []struct {
-		name string
-		v    float64
-	}{{"producer-risk", o.Producer}, {"consumer-risk", o.Cons}} {
-		if !(r.v > 0 && r.v < 0.5) {
-			return usageError{fmt.Errorf("--%s %g: expected a probability between 0 and 0.5", r.name, r.v)}
-		}
-	}
-	if !(p1 < p2) {
-		return usageError{fmt.Errorf("--aql %g must be below --rql %g", p1, p2)}
-	}
-	v, err := stats.DesignVariablesPlan(p1, p2, o.Producer, o.Cons)
-	if err != nil {
-		return lots.Inputf("plan", "choose AQL and RQL further apart", "%v", err)
-	}
-	wn, wk, err := stats.WallisPlan(p1, p2, o.Producer, o.Cons)
+	res, err := sampling.Design(p1, p2, o.Producer, o.Cons)
 	if err != nil {
 		return err
 	}
-	a, err := stats.DesignAttributesPlan(p1, p2, o.Producer, o.Cons)
-	if err != nil {
-		return lots.Inputf("plan", "choose AQL and RQL further apart", "%v", err)
-	}
-	res := planResult{AQL: p1, RQL: p2, ProducerRisk: o.Producer, ConsumerRisk: o.Cons,
-		Variables:  planVariables{N: v.N, K: v.K, KMin: v.KMin, KMax: v.KMax, ProducerRisk: v.ProducerRisk, ConsumerRisk: v.ConsumerRisk},
-		Wallis:     planWallis{N: wn, K: wk},
-		Attributes: planAttributes{N: a.N, C: a.C, ProducerRisk: a.ProducerRisk, ConsumerRisk: a.ConsumerRisk},
-		Method:     "variables plan, sigma unknown: Pa(p) = P(T >= k sqrt(n)), T noncentral t with n-1 df and noncentrality sqrt(n) z_(1-p), exact; smallest n meeting both risks, k holding the producer's risk; Wallis (1947) approximation for comparison; attributes plan: binomial, smallest c then smallest n",
-		Cautions:   []string{planCaution},
-	}
-	for _, p := range ocGrid(p1, p2) {
-		pv, err := stats.VariablesAcceptProb(v.N, v.K, p)
-		if err != nil {
-			return err
-		}
-		pa, err := stats.AttributesAcceptProb(a.N, a.C, p)
-		if err != nil {
-			return err
-		}
-		res.OC = append(res.OC, planOCPoint{P: p, PaVariables: lots.Float(pv), PaAttributes: lots.Float(pa)})
-	}
+	v, a := res.Variables, res.Attributes
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)
 		}
 		pt := render.NewTable("Sampling plans", "plan", ">n", ">k or c", ">risk at AQL", ">Pa at RQL")
 		pt.Add("variables, sigma unknown (exact)", strconv.Itoa(v.N), render.F(v.K, 4), render.F(v.ProducerRisk, 4), render.F(v.ConsumerRisk, 4))
-		pt.Add("variables, Wallis approximation", render.F(wn, 1), render.F(wk, 4), "", "")
+		pt.Add("variables, Wallis approximation", render.F(res.Wallis.N, 1), render.F(res.Wallis.K, 4), "", "")
 		pt.Add("attributes (binomial)", strconv.Itoa(a.N), strconv.Itoa(a.C), render.F(a.ProducerRisk, 4), render.F(a.ConsumerRisk, 4))
 		pt.Note("AQL %g with producer's risk %g; RQL %g with consumer's risk %g.", p1, o.Producer, p2, o.Cons)
 		pt.Note("Variables plan: test n items, accept when (mean - L)/SD >= k (or (U - mean)/SD >= k); any k in [%.4f, %.4f] meets both risks at n = %d.", v.KMin, v.KMax, v.N)
@@ -182,7 +101,7 @@ func runPlan(o planOptions, st streams) error {
 			oc.Add(render.N(q.P, 4), render.F(float64(q.PaVariables), 4), render.F(float64(q.PaAttributes), 4))
 		}
 		oc.Note("Method: %s.", res.Method)
-		oc.Note("Caution: %s", planCaution)
+		oc.Note("Caution: %s", sampling.Caution)
 		pt.Name, oc.Name = "plans", "oc"
 		tables, err := o.Table.pick(o.Out.Format, []*render.Table{pt, oc})
 		if err != nil {
@@ -190,24 +109,4 @@ func runPlan(o planOptions, st streams) error {
 		}
 		return writeTables(w, o.Out.Format, tables...)
 	})
-}
-
-// ocGrid returns fractions nonconforming for the OC table: a logarithmic
-// grid from p1/10 to min(0.5, 4 p2) plus p1 and p2, sorted, rounded to 3
-// significant digits.
-func ocGrid(p1, p2 float64) []float64 {
-	lo, hi := p1/10, math.Min(0.5, 4*p2)
-	const m = 14
-	set := map[float64]bool{p1: true, p2: true}
-	for i := 0; i <= m; i++ {
-		p := lo * math.Pow(hi/lo, float64(i)/m)
-		r, _ := strconv.ParseFloat(strconv.FormatFloat(p, 'g', 3, 64), 64)
-		set[r] = true
-	}
-	out := make([]float64, 0, len(set))
-	for p := range set {
-		out = append(out, p)
-	}
-	sort.Float64s(out)
-	return out
 }

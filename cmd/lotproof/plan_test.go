@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"lotproof/lots/acceptance/sampling"
 )
 
 // Plan figures against testdata/acceptance/sampling_ref.json (scipy
@@ -15,7 +17,7 @@ func TestPlanJSON(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var r planResult
+	var r sampling.Result
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
