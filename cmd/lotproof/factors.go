@@ -10,6 +10,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"lotproof/lots/allowables/factors"
 	"lotproof/lots/render"
 	"lotproof/stats"
 )
@@ -73,31 +74,6 @@ written as 0.9 or 90%.`,
 	return cmd
 }
 
-// factorRow is one factor. JSON keys n, content, confidence, method, factor
-// are always present; rank and mc_std_error where they apply.
-type factorRow struct {
-	N          int      `json:"n"`
-	Content    float64  `json:"content"`
-	Confidence float64  `json:"confidence"`
-	Method     string   `json:"method"`
-	Factor     float64  `json:"factor"`
-	Rank       int      `json:"rank,omitempty"`
-	MCStdErr   *float64 `json:"mc_std_error,omitempty"`
-	FailedFits *int     `json:"failed_fits,omitempty"` // weibull-exact: simulated fits that failed
-}
-
-type factorsResult struct {
-	Rows     []factorRow `json:"rows"`
-	Notes    []string    `json:"notes"`
-	Cautions []string    `json:"cautions"`
-}
-
-const (
-	factorsMaxN    = 100000
-	factorsMaxRows = 1000000
-	factorsMaxMCN  = 1000
-)
-
 // parseSizes reads "2-30", "5,10,20" or a mix into increasing unique sizes.
 func parseSizes(s string) ([]int, error) {
 	seen := map[int]bool{}
@@ -113,8 +89,8 @@ func parseSizes(s string) ([]int, error) {
 		}
 		a, err1 := strconv.Atoi(strings.TrimSpace(lo))
 		b, err2 := strconv.Atoi(strings.TrimSpace(hi))
-		if err1 != nil || err2 != nil || a < 2 || b < a || b > factorsMaxN {
-			return nil, usageError{fmt.Errorf("--n %q: expected sizes or ranges between 2 and %d, e.g. 2-30 or 5,10,20", s, factorsMaxN)}
+		if err1 != nil || err2 != nil || a < 2 || b < a || b > factors.MaxN {
+			return nil, usageError{fmt.Errorf("--n %q: expected sizes or ranges between 2 and %d, e.g. 2-30 or 5,10,20", s, factors.MaxN)}
 		}
 		for n := a; n <= b; n++ {
 			if !seen[n] {
@@ -183,106 +159,11 @@ func runFactors(o factorsOptions, st streams) error {
 	if len(methods) == 0 {
 		return usageError{fmt.Errorf("--method is empty")}
 	}
-	if len(ns)*len(contents)*len(confs)*len(methods) > factorsMaxRows {
-		return usageError{fmt.Errorf("too many factors requested (more than %d rows): narrow --n or the lists", factorsMaxRows)}
+	res, err := factors.Table(factors.Options{Sizes: ns, Contents: contents, Confidences: confs, Methods: methods,
+		Simulations: o.Sims, Seed: o.Seed, Pivot: o.pivot})
+	if err != nil {
+		return err
 	}
-	for _, m := range methods {
-		if m != "weibull-mc" {
-			continue
-		}
-		if o.Sims < 1000 || o.Sims > 10000000 {
-			return usageError{fmt.Errorf("--simulations %d: expected 1000 to 10,000,000", o.Sims)}
-		}
-		if ns[len(ns)-1] > factorsMaxMCN {
-			return usageError{fmt.Errorf("weibull-exact: n up to %d (asked for %d)", factorsMaxMCN, ns[len(ns)-1])}
-		}
-	}
-	res := factorsResult{Cautions: []string{stats.DesignValueCaution}}
-	noteSet := map[string]bool{}
-	note := func(s string) {
-		if !noteSet[s] {
-			noteSet[s] = true
-			res.Notes = append(res.Notes, s)
-		}
-	}
-	for _, m := range methods {
-		for _, p := range contents {
-			for _, g := range confs {
-				var ks []float64 // normal: the whole column at once (faster for long tables)
-				if m == "normal" {
-					if ks, err = stats.NormalKTable(ns, p, g); err != nil {
-						return err
-					}
-				}
-				for i, n := range ns {
-					row := factorRow{N: n, Content: p, Confidence: g, Method: m}
-					switch m {
-					case "normal":
-						row.Factor = ks[i]
-						note("normal: bound = mean - k s (exact for normal data)")
-					case "weibull-approx":
-						f, err := stats.WeibullBasisV(n, p, g)
-						if err != nil {
-							if n < 3 {
-								note("weibull-approx: needs n >= 3")
-							} else {
-								note(fmt.Sprintf("weibull-approx: no handbook approximation at content %g, confidence %g (use weibull-mc)", p, g))
-							}
-							continue
-						}
-						if f.Exact {
-							se := f.StdErr
-							row.MCStdErr = &se
-							note(fmt.Sprintf("weibull-approx: up to n = 100 the exact factor from the built-in table (seeded simulation, seed %d; MC s.e. is each factor's standard error), above it the handbook closed form; these are the factors the allowables command applies", f.Seed))
-						}
-						row.Factor = f.V
-						note("weibull: bound = alpha (-ln P)^(1/beta) exp(-V/(beta sqrt n)) from the maximum-likelihood fit")
-					case "weibull-mc":
-						if n < 3 {
-							note("weibull-mc: needs n >= 3")
-							continue
-						}
-						pivot := o.pivot
-						if pivot == nil {
-							pivot = stats.WeibullPivotFactor
-						}
-						f, err := pivot(n, p, g, stats.WeibullMCOptions{Sims: o.Sims, Seed: o.Seed})
-						if err != nil {
-							return err
-						}
-						row.Factor = f.V
-						se, nf := f.StdErrV, f.Failures
-						row.MCStdErr, row.FailedFits = &se, &nf
-						if nf > 0 {
-							note(fmt.Sprintf("weibull-mc: %d of %d simulated fits failed at n = %d (content %g, confidence %g); each was counted as the largest value, which errs on the safe side; more than %g%% failed fits would stop the command", nf, o.Sims, n, p, g, 100*stats.WeibullMCMaxFailFraction))
-						}
-						note(fmt.Sprintf("weibull-mc: %d simulations per factor, seed %d", o.Sims, o.Seed))
-						note("weibull: bound = alpha (-ln P)^(1/beta) exp(-V/(beta sqrt n)) from the maximum-likelihood fit")
-					case "nonparametric":
-						if n >= stats.OrderStatisticMinN(p, g) {
-							r, _, err := stats.OrderStatisticRank(n, p, g)
-							if err != nil {
-								return err
-							}
-							row.Method, row.Factor, row.Rank = "order-statistic", float64(r), r
-							note("order-statistic: bound = x(r), the r-th smallest value (factor = r)")
-						} else {
-							// The rank the allowables procedure applies.
-							r := stats.HansonKoopmansRank(n, p, g)
-							k, err := stats.HansonKoopmansK(n, r, p, g)
-							if err != nil {
-								return err
-							}
-							row.Method, row.Factor, row.Rank = "hanson-koopmans", k, r
-							note("hanson-koopmans: bound = x(r) (x(1)/x(r))^k for n below the order-statistic minimum, with the rank r the allowables command applies (CMH-17-1G Table 8.5.14 for the B-basis up to n = 28, otherwise the largest value, r = n)")
-						}
-					}
-					res.Rows = append(res.Rows, row)
-				}
-			}
-		}
-	}
-	renameWeibullExact(&res)
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
 			return render.WriteJSON(w, res)

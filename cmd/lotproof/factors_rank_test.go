@@ -8,6 +8,7 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/allowables"
+	"lotproof/lots/allowables/factors"
 	"lotproof/lots/units"
 	"lotproof/stats"
 )
@@ -23,7 +24,7 @@ func TestFactorsNonparametricRankAsApplied(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var res factorsResult
+	var res factors.Result
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"lotproof/lots/allowables/factors"
 	"lotproof/lots/render"
 	"lotproof/stats"
 )
@@ -42,17 +43,17 @@ func TestFactorsJSON(t *testing.T) {
 			}
 		}
 	}
-	var res factorsResult
+	var res factors.Result
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}
-	get := func(method string, n int, p float64) (factorRow, bool) {
+	get := func(method string, n int, p float64) (factors.Row, bool) {
 		for _, r := range res.Rows {
 			if r.Method == method && r.N == n && r.Content == p && r.Confidence == 0.95 {
 				return r, true
 			}
 		}
-		return factorRow{}, false
+		return factors.Row{}, false
 	}
 	// scipy reference rows.
 	b, err := os.ReadFile("../../testdata/tolerance/normal_k.json")
@@ -165,7 +166,7 @@ func TestFactorsFailedFits(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var res factorsResult
+	var res factors.Result
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}

@@ -5,25 +5,10 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"strings"
 
 	"lotproof/lots"
 	"lotproof/lots/render"
 )
-
-// renameWeibullExact gives the exact Weibull factor the name allowables
-// uses for the same method (weibull-exact; weibull-mc was its old name in
-// factors), in rows and notes.
-func renameWeibullExact(r *factorsResult) {
-	for i := range r.Rows {
-		if r.Rows[i].Method == "weibull-mc" {
-			r.Rows[i].Method = "weibull-exact"
-		}
-	}
-	for i, n := range r.Notes {
-		r.Notes[i] = strings.ReplaceAll(n, "weibull-mc", "weibull-exact")
-	}
-}
 
 // summaryJSON writes the summary with each group's key named after the
 // grouping: "lot", or "heat" with --group-by heat.
