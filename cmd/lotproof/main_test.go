@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"lotproof/lots/sizing"
 )
 
 // run executes a command line with captured streams.
@@ -206,7 +208,7 @@ func TestRunFunctionsWithoutCobra(t *testing.T) {
 		t.Errorf("runSummary: %v\n%s", err, out.String())
 	}
 	out.Reset()
-	err = runSize(sizeOptions{DesignValue: 300, StressUnit: "MPa", Safety: 2, Load: 15, LoadUnit: "kN", Shape: "rectangle", Width: 20, Out: output{Format: "json", System: "si"}}, st)
+	err = runSize(sizeOptions{Member: sizing.MemberOptions{DesignValue: 300, StressUnit: "MPa", Safety: 2, Load: 15, LoadUnit: "kN", Shape: "rectangle", Width: 20}, Out: output{Format: "json", System: "si"}}, st)
 	// 15 kN at 150 MPa needs 100 mm^2: 5 mm thick at 20 mm wide (closed form).
 	if err != nil || !strings.Contains(out.String(), `"thickness": 5,`) {
 		t.Errorf("runSize: %v\n%s", err, out.String())
