@@ -183,20 +183,8 @@ func reportDocument(in reportInputs) (*report.Document, error) {
 		}
 	}
 	b.Reduced = in.Reduced
-	b.Cautions = dedupe(b.Cautions)
+	b.Cautions = lots.ExtraCautions(b.Cautions)
 	return report.Build(b)
-}
-
-func dedupe(xs []string) []string {
-	seen := map[string]bool{report.Caution: true}
-	var out []string
-	for _, x := range xs {
-		if x != "" && !seen[x] {
-			seen[x] = true
-			out = append(out, x)
-		}
-	}
-	return out
 }
 
 func runReport(o reportOptions, st streams) error {

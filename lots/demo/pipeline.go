@@ -146,21 +146,8 @@ func Run(o Options) (*Result, error) {
 		return nil, err
 	}
 	step()
-	res.Cautions = append([]string{lots.Caution}, dedupe(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))...)
+	res.Cautions = append([]string{lots.Caution}, lots.ExtraCautions(append(append([]string{}, acc.Cautions...), res.Allowables.Cautions...))...)
 	return res, nil
-}
-
-// dedupe drops empty and repeated cautions and the general one.
-func dedupe(xs []string) []string {
-	seen := map[string]bool{lots.Caution: true}
-	var out []string
-	for _, x := range xs {
-		if x != "" && !seen[x] {
-			seen[x] = true
-			out = append(out, x)
-		}
-	}
-	return out
 }
 
 // Dataset reads one embedded results file (named demo/NAME).
