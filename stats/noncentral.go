@@ -653,16 +653,7 @@ func NoncentralTQuantile(p, df, delta float64) (float64, error) {
 			nx = math.NaN()
 		}
 		if math.IsNaN(nx) || nx <= lo || nx >= hi {
-			switch {
-			case math.IsInf(lo, -1):
-				nx = hi - step
-				step *= 2
-			case math.IsInf(hi, 1):
-				nx = lo + step
-				step *= 2
-			default:
-				nx = 0.5 * (lo + hi)
-			}
+			nx = bracketStep(lo, hi, &step)
 		}
 		if math.Abs(nx-x) <= 4e-15*math.Abs(nx)+1e-300 {
 			return nx, nil
@@ -682,4 +673,24 @@ func NoncentralTQuantile(p, df, delta float64) (float64, error) {
 		}
 	}
 	return x, fmt.Errorf("stats: noncentral t quantile did not converge (p=%g df=%g delta=%g)", p, df, delta)
+}
+
+// bracketStep is the safeguard of the bracketed root finders: the midpoint
+// of a closed bracket [lo, hi], or, while one end is still infinite, a step
+// of *expand beyond the finite end, doubling *expand each time (the
+// bracketing and bisection fallback of Press et al. 2007, Numerical
+// Recipes, 3rd ed., sections 9.1 and 9.4, rtsafe).
+func bracketStep(lo, hi float64, expand *float64) float64 {
+	switch {
+	case math.IsInf(lo, -1):
+		x := hi - *expand
+		*expand *= 2
+		return x
+	case math.IsInf(hi, 1):
+		x := lo + *expand
+		*expand *= 2
+		return x
+	default:
+		return 0.5 * (lo + hi)
+	}
 }

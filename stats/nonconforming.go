@@ -218,16 +218,7 @@ func solveNoncentralityCount(t, df, target float64) (float64, ncSolveStats, erro
 		// step before last (slow progress; as in Press et al. 2007, rtsafe).
 		open := math.IsInf(lo, 0) || math.IsInf(hi, 0)
 		if math.IsNaN(nx) || nx <= lo || nx >= hi || (!open && math.Abs(nx-x) > 0.5*math.Abs(dxOld)) {
-			switch {
-			case math.IsInf(lo, -1):
-				nx = hi - expand
-				expand *= 2
-			case math.IsInf(hi, 1):
-				nx = lo + expand
-				expand *= 2
-			default:
-				nx = 0.5 * (lo + hi)
-			}
+			nx = bracketStep(lo, hi, &expand)
 		}
 		if !open && hi-lo <= 1e-12*scale(nx) {
 			return 0.5 * (lo + hi), st, nil

@@ -17,12 +17,7 @@ import (
 // page for the front matter and at least one per major section (each
 // starts a new page). Skipped when chromium is absent.
 func TestDemoReportInBrowser(t *testing.T) {
-	if _, err := exec.LookPath("chromium"); err != nil {
-		t.Skip("chromium is not installed (run .ci/browser-check --install); browser check skipped")
-	}
-	if testing.Short() {
-		t.Skip("browser check skipped in -short mode")
-	}
+	needChromium(t)
 	dir := t.TempDir()
 	page := filepath.Join(dir, "demo.html")
 	if code, _, errs := run(t, "", "demo", "--format", "json", "--date", "2026-12-02", "--report", page); code != 0 {
@@ -129,5 +124,17 @@ func tablesPrinted(t *testing.T, paper string, dom []byte, pdf string) {
 	}
 	if len(inTables) < 50 {
 		t.Errorf("%s: only %d distinct words in the tables: the check found no tables", paper, len(inTables))
+	}
+}
+
+// needChromium skips a browser check when chromium is absent or in -short
+// mode.
+func needChromium(t *testing.T) {
+	t.Helper()
+	if _, err := exec.LookPath("chromium"); err != nil {
+		t.Skip("chromium is not installed (run .ci/browser-check --install); browser check skipped")
+	}
+	if testing.Short() {
+		t.Skip("browser check skipped in -short mode")
 	}
 }

@@ -135,12 +135,7 @@ func getJSONURL(t *testing.T, u string, v any) {
 // messages, no script in the DOM, and every link on each page answers 200.
 // Skipped when chromium is absent.
 func TestServeInBrowser(t *testing.T) {
-	if _, err := exec.LookPath("chromium"); err != nil {
-		t.Skip("chromium is not installed (run .ci/browser-check --install); browser check skipped")
-	}
-	if testing.Short() {
-		t.Skip("browser check skipped in -short mode")
-	}
+	needChromium(t)
 	dir := t.TempDir()
 	db := filepath.Join(dir, "demo.db")
 	if code, _, errs := run(t, "", "demo", "--db", db, "--no-report", "--date", "2026-12-02", "--format", "json"); code != 0 {
