@@ -64,7 +64,7 @@ nonconforming, undecided or not judged, 2 on bad input.`,
 	cmd.Flags().StringArrayVar(&o.Specs, "spec", nil, "specification file (YAML); repeat for several materials")
 	cmd.Long += multiFileHelp
 	addInputFlags(cmd, &o.Input)
-	addTableFlag(cmd, &o.Table, "lots", "limits", "outliers")
+	addTableFlag(cmd, &o.Table, acceptTableNames...)
 	return cmd
 }
 
@@ -79,6 +79,7 @@ func readSpecs(names []string) ([]*spec.Spec, error) {
 }
 
 func runAccept(o acceptOptions, st streams) error {
+	o.Table.names = acceptTableNames
 	if err := o.Table.check(); err != nil {
 		return err
 	}
@@ -119,7 +120,7 @@ func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, ta
 	if out.Format == render.JSON {
 		return render.WriteJSON(w, shown)
 	}
-	tables, err := table.pick(out.Format, acceptTables(shown, rs))
+	tables, err := table.pick(out.Format, acceptTables(shown, rs, func(name string) bool { return table.wanted(out.Format, name) }))
 	if err != nil {
 		return err
 	}
@@ -168,7 +169,10 @@ func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, r
 
 // acceptTables lays the result out as a lot table, a limit table and an
 // outlier table (hidden in text when no value was flagged).
-func acceptTables(r *acceptance.Result, rs render.Resolutions) []*render.Table {
+// acceptTableNames are the tables of accept, the first the default for CSV.
+var acceptTableNames = []string{"lots", "limits", "outliers"}
+
+func acceptTables(r *acceptance.Result, rs render.Resolutions, want func(name string) bool) []*render.Table {
 	by := r.GroupBy
 	lt := render.NewTable("Lot verdicts", by, "supplier", "material", "spec", ">n", "verdict", "reasons")
 	pt := render.NewTable("Limits", by, "property", "side", "unit", ">limit", ">n", ">mean", ">sd", ">extreme", ">mean bound", ">k", ">tol. bound", ">frac. est", ">frac. upper", "verdict", ">needed n")
@@ -176,13 +180,21 @@ func acceptTables(r *acceptance.Result, rs render.Resolutions) []*render.Table {
 	ot := render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
 	ot.Name = "outliers"
 	var retests []string
+	// Rows only for the tables that will be written (a CSV stream holds
+	// one): formatting the others is most of the time spent here.
+	wantL, wantP, wantO := want(lt.Name), want(pt.Name), want(ot.Name)
 	for _, l := range r.Lots {
 		why, retest := acceptance.DecisiveReasons(l, r.MinSpecimens(l.Spec))
 		if retest != "" && !slices.Contains(retests, retest) {
 			retests = append(retests, retest)
 		}
-		lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, why)
+		if wantL {
+			lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, why)
+		}
 		for _, p := range l.Properties {
+			if !wantP {
+				break
+			}
 			need := ""
 			switch {
 			case p.NeededN < 0:
@@ -199,6 +211,9 @@ func acceptTables(r *acceptance.Result, rs render.Resolutions) []*render.Table {
 				render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
 		}
 		for _, f := range l.Outliers {
+			if !wantO {
+				break
+			}
 			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, rs.Of(l.Material, f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
 		}
 	}

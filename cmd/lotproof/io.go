@@ -130,6 +130,18 @@ func orList(s []string) string {
 	return strings.Join(s[:len(s)-1], ", ") + " or " + s[len(s)-1]
 }
 
+// wanted reports whether pick can return the table called name for
+// format f, so that a command need not fill tables that are not written.
+func (o tableOption) wanted(f render.Format, name string) bool {
+	switch {
+	case o.Name != "":
+		return o.Name == name
+	case f == render.CSV && o.names != nil:
+		return o.names[0] == name
+	}
+	return true
+}
+
 // pick returns the tables to write: the named one; else, for CSV, the
 // first; else (text) every table not hidden.
 func (o tableOption) pick(f render.Format, tables []*render.Table) ([]*render.Table, error) {

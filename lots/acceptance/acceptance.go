@@ -455,11 +455,11 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 	if f, err := stats.TailFractionMVUE(n, q); err == nil {
 		pr.FractionEstimate = lots.Float(f)
 	}
-	up, err := stats.TailFractionBound(n, q, r.Confidence, true)
+	up, err := f.TailFractionBound(n, q, r.Confidence, true)
 	if err != nil {
 		return pr, err
 	}
-	lo, err := stats.TailFractionBound(n, q, r.Confidence, false)
+	lo, err := f.TailFractionBound(n, q, r.Confidence, false)
 	if err != nil {
 		return pr, err
 	}
