@@ -24,7 +24,7 @@ import (
 // 100 bytes per distinct key (for lot acceptance: distinct lot sizes times
 // the levels in use), so it stays small; make a new Factors to drop it.
 type Factors struct {
-	mu sync.Mutex
+	mu   sync.Mutex
 	k    map[factorKey]*factorEntry
 	t    map[factorKey]*factorEntry
 	frac map[fracKey]*fracTable
