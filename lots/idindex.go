@@ -96,11 +96,19 @@ func (x *idIndex) find(h uint64) (int, bool) {
 	}
 }
 
+// grow enlarges the table fourfold (so that a large input rehashes about
+// a third of its ids rather than all of them), up to the size that holds
+// memCap ids at a load of at most 3/4.
 func (x *idIndex) grow() {
-	size := 2 * len(x.slots)
+	size := 4 * len(x.slots)
 	if size == 0 {
 		size = 1024
 	}
+	top := 1024
+	for 3*top < 4*x.memCap+4 {
+		top *= 2
+	}
+	size = max(min(size, top), 2*len(x.slots))
 	old := x.slots
 	x.slots = make([]idSlot, size)
 	for _, e := range old {

@@ -156,6 +156,25 @@ func Describe(x []float64) (Summary, error) {
 	return out, nil
 }
 
+// MeanSD returns the mean and the sample standard deviation (divisor n-1)
+// of x, the same values, bit for bit, as Describe's Mean and SD (and the
+// same errors) without the sorted copy Describe makes for the median, for
+// callers that need only these two (lot acceptance, once per lot and
+// limit).
+func MeanSD(x []float64) (mean, sd float64, err error) {
+	if len(x) < 2 {
+		return 0, 0, fmt.Errorf("describe: %d values, need at least 2: %w", len(x), ErrTooFew)
+	}
+	if err := checkFinite(x); err != nil {
+		return 0, 0, fmt.Errorf("describe: %w", err)
+	}
+	m, s := meanSD(x)
+	if math.IsInf(s, 0) || math.IsInf(m, 0) || math.IsNaN(m) || math.IsNaN(s) {
+		return 0, 0, fmt.Errorf("describe: values too large, sums overflow: %w", ErrNonFinite)
+	}
+	return m, s, nil
+}
+
 // OrderStatistics returns the order statistics x_(1) <= ... <= x_(n) of x as
 // a new slice (x is not modified). It returns an error for an empty sample
 // or non-finite values.

@@ -28,6 +28,7 @@ type Factors struct {
 	k    map[factorKey]*factorEntry
 	t    map[factorKey]*factorEntry
 	frac map[fracKey]*fracTable
+	mnr  map[factorKey]*factorEntry
 }
 
 type factorKey struct {
@@ -90,4 +91,21 @@ func (c *Factors) MeanT(n int, gamma float64) (float64, error) {
 // bit for bit) with the t quantile taken from the cache.
 func (c *Factors) MeanLowerBound(n int, xbar, s, gamma float64) (float64, error) {
 	return meanLowerBoundWith(n, xbar, s, gamma, c.MeanT)
+}
+
+// MNRCritical returns MNRCritical(n, alpha) (bit for bit), computed once
+// per (n, alpha).
+func (c *Factors) MNRCritical(n int, alpha float64) (float64, error) {
+	if n < 3 || !(alpha > 0 && alpha < 1) {
+		return MNRCritical(n, alpha)
+	}
+	e := c.get(&c.mnr, factorKey{n, alpha, 0})
+	e.once.Do(func() { e.v, e.err = MNRCritical(n, alpha) })
+	return e.v, e.err
+}
+
+// ScreenOutliers returns ScreenOutliers(x, alpha, iterative) (the same
+// results) with the critical values taken from the cache.
+func (c *Factors) ScreenOutliers(x []float64, alpha float64, iterative bool) ([]MNRResult, error) {
+	return screenOutliersWith(x, alpha, iterative, c.MNRCritical)
 }

@@ -106,13 +106,19 @@ func MNRCritical(n int, alpha float64) (float64, error) {
 //
 // It needs at least 3 finite values that are not all equal, and 0 < alpha < 1.
 func MaxNormedResidual(x []float64, alpha float64) (MNRResult, error) {
+	return maxNormedResidualWith(x, alpha, MNRCritical)
+}
+
+// maxNormedResidualWith is MaxNormedResidual with the critical value from
+// crit (MNRCritical or a cache of it).
+func maxNormedResidualWith(x []float64, alpha float64, crit func(n int, alpha float64) (float64, error)) (MNRResult, error) {
 	if len(x) < 3 {
 		return MNRResult{}, fmt.Errorf("max normed residual: %d values, need at least 3: %w", len(x), ErrTooFew)
 	}
 	if err := checkFinite(x); err != nil {
 		return MNRResult{}, fmt.Errorf("max normed residual: %w", err)
 	}
-	c, err := MNRCritical(len(x), alpha)
+	c, err := crit(len(x), alpha)
 	if err != nil {
 		return MNRResult{}, err
 	}
@@ -147,7 +153,12 @@ func MaxNormedResidual(x []float64, alpha float64) (MNRResult, error) {
 // with indices into x; x itself is never changed and nothing is deleted —
 // whether a flagged value is excluded is the caller's (documented) decision.
 func ScreenOutliers(x []float64, alpha float64, iterative bool) ([]MNRResult, error) {
-	r, err := MaxNormedResidual(x, alpha)
+	return screenOutliersWith(x, alpha, iterative, MNRCritical)
+}
+
+// screenOutliersWith is ScreenOutliers with the critical values from crit.
+func screenOutliersWith(x []float64, alpha float64, iterative bool, crit func(n int, alpha float64) (float64, error)) ([]MNRResult, error) {
+	r, err := maxNormedResidualWith(x, alpha, crit)
 	if err != nil {
 		return nil, err
 	}
@@ -171,7 +182,7 @@ func ScreenOutliers(x []float64, alpha float64, iterative bool) ([]MNRResult, er
 		for j, i := range idx {
 			y[j] = x[i]
 		}
-		r, err := MaxNormedResidual(y, alpha)
+		r, err := maxNormedResidualWith(y, alpha, crit)
 		if err != nil {
 			// All remaining values equal: nothing more to flag.
 			break

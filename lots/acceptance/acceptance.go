@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 
@@ -161,7 +162,6 @@ type Judging struct {
 	specs []*spec.Spec
 	by    lots.GroupBy
 	f     *stats.Factors
-	mnr   mnrCritical
 	jobs  chan job
 	wg    sync.WaitGroup
 	out   []*judged
@@ -220,7 +220,7 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 		go func() {
 			defer j.wg.Done()
 			for jb := range j.jobs {
-				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f, &j.mnr)
+				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
 			}
 		}()
 	}
@@ -279,7 +279,7 @@ func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
 
 var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
 
-func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors, mnr *mnrCritical) (LotResult, error) {
+func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors) (LotResult, error) {
 	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: g.Len(),
 		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
 	if g.Mixed {
@@ -296,8 +296,16 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 	worst := map[string][]string{}
 	for _, l := range s.Limits {
 		pi := d.Property(l.Property)
-		vals, idx := g.Present(pi)
-		ids := func(j int) string { return g.ID(idx[j]) }
+		vals, idx := g.Values[pi], []int(nil) // read only; no value missing: positions are indices
+		if slices.ContainsFunc(vals, math.IsNaN) {
+			vals, idx = g.Present(pi)
+		}
+		ids := func(j int) string {
+			if idx == nil {
+				return g.ID(j)
+			}
+			return g.ID(idx[j])
+		}
 		for _, side := range []string{"min", "max"} {
 			if (side == "min" && !l.HasMin()) || (side == "max" && !l.HasMax()) {
 				continue
@@ -319,11 +327,14 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 			lr.Properties = append(lr.Properties, pr)
 		}
 		// Outlier screen (flag, never delete).
-		if len(vals) >= 3 && !mnr.clearlyNoOutlier(vals) {
-			fl, err := stats.ScreenOutliers(vals, OutlierAlpha, true)
+		if len(vals) >= 3 && !clearlyNoOutlier(f, vals) {
+			fl, err := f.ScreenOutliers(vals, OutlierAlpha, true)
 			if err == nil {
 				for _, f := range fl {
-					at := idx[f.Index]
+					at := f.Index
+					if idx != nil {
+						at = idx[f.Index]
+					}
 					lr.Outliers = append(lr.Outliers, Outlier{Specimen: g.ID(at), Property: l.Property, Value: lots.Float(f.Value),
 						Unit: unitLabel(l.Unit), MNR: f.MNR, Critical: f.Critical, Line: g.Lines[at]})
 				}
@@ -384,10 +395,13 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		pr.Reasons = append(pr.Reasons, "no values for this property in the lot")
 		return pr, nil
 	}
-	// Mirror for a maximum.
-	x := make([]float64, n)
-	for i, v := range vals {
-		x[i] = sign * v
+	// Mirror for a maximum (vals itself, which is only read, for a minimum).
+	x := vals
+	if sign < 0 {
+		x = make([]float64, n)
+		for i, v := range vals {
+			x[i] = sign * v
+		}
 	}
 	L := sign * limit
 	sum := 0.0
@@ -419,11 +433,10 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		pr.Verdict = orUndecided(decided)
 		return pr, nil
 	}
-	desc, err := stats.Describe(x)
+	mean, sd, err := stats.MeanSD(x)
 	if err != nil {
 		return pr, fmt.Errorf("describe %s: %w", l.Property, err)
 	}
-	mean, sd := desc.Mean, desc.SD
 	pr.Mean, pr.SD = lots.Float(sign*mean), lots.Float(sd)
 	if sd == 0 && len(fails) == n {
 		// Every value is beyond the limit: the estimated fraction beyond

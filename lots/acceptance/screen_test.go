@@ -14,7 +14,7 @@ import (
 // most clean samples.
 func TestClearlyNoOutlierNeverHidesOne(t *testing.T) {
 	r := rand.New(rand.NewPCG(12, 34))
-	var m mnrCritical
+	m := stats.NewFactors()
 	skipped, clean := 0, 0
 	for i := 0; i < 20000; i++ {
 		n := 3 + r.IntN(58)
@@ -42,7 +42,7 @@ func TestClearlyNoOutlierNeverHidesOne(t *testing.T) {
 		if len(fl) == 0 {
 			clean++
 		}
-		if m.clearlyNoOutlier(x) {
+		if clearlyNoOutlier(m, x) {
 			skipped++
 			if len(fl) > 0 {
 				t.Fatalf("sample %d (n = %d): shortcut says no outlier, the screen flags %+v", i, n, fl[0])
