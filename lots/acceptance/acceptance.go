@@ -563,6 +563,47 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 	if good, err := ok(hi); err != nil || !good {
 		return MaxPlannedSpecimens + 1, err
 	}
+	// Narrow [lo, hi] (lo too few, hi enough) around a starting guess from
+	// the normal approximation of the noncentral t (Johnson, Kotz and
+	// Balakrishnan vol. 2, 31.7): k(m) ~ z_p + z_gamma sqrt(1/m + z_p^2/(2m)),
+	// so m ~ (1 + z_p^2/2) (z_gamma / (q - z_p))^2; then step away from it
+	// in doubling steps until the answer is bracketed, and bisect. The guess
+	// only saves work: the answer is decided by the exact k alone, so it is
+	// the same as a bisection over the whole range.
+	if zg := -math.Sqrt2 * math.Erfcinv(2*gamma); zg > 0 {
+		d := (q - zp) / zg
+		guess := (1 + zp*zp/2) / (d * d)
+		if guess > float64(lo) && guess < float64(hi) {
+			m := int(math.Ceil(guess))
+			good, err := ok(m)
+			if err != nil {
+				return 0, err
+			}
+			for step := 1; ; step *= 2 {
+				c := m + step
+				if good {
+					c = m - step
+				}
+				if c <= lo || c >= hi {
+					break
+				}
+				g, err := ok(c)
+				if err != nil {
+					return 0, err
+				}
+				if g != good { // bracketed between m and c
+					lo, hi = min(m, c), max(m, c)
+					break
+				}
+				m = c
+			}
+			if good {
+				hi = min(hi, m)
+			} else {
+				lo = max(lo, m)
+			}
+		}
+	}
 	for hi-lo > 1 {
 		mid := (lo + hi) / 2
 		good, err := ok(mid)

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"os"
 	"strings"
 	"testing"
@@ -275,5 +276,47 @@ func TestJudgeParallelSameAsOneWorker(t *testing.T) {
 	}
 	if !bytes.Equal(outs[0], outs[1]) {
 		t.Error("4 workers judged differently from 1")
+	}
+}
+
+// TestNeededSpecimensMatchesBisection: the search that starts from the
+// normal approximation gives the same answer as a plain bisection over
+// the whole range (the smallest m with k(m) <= q, k exact and decreasing
+// in m, Owen 1968), over margins from just above z_p to 6, three levels
+// and starting sizes 2 to 60.
+func TestNeededSpecimensMatchesBisection(t *testing.T) {
+	f := stats.NewFactors()
+	r := rand.New(rand.NewPCG(3, 4))
+	for i := 0; i < 300; i++ {
+		p := []float64{0.90, 0.95, 0.99}[i%3]
+		g := []float64{0.90, 0.95, 0.99}[(i/3)%3]
+		zp := -math.Sqrt2 * math.Erfcinv(2*p)
+		q := zp + 0.01 + (6-zp)*r.Float64()*r.Float64()
+		n0 := 2 + r.IntN(59)
+		got, err := neededSpecimens(q, p, g, n0, f.NormalK)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Reference: bisection between n0 (or 2) and MaxPlannedSpecimens.
+		lo, hi := max(n0, 2), MaxPlannedSpecimens
+		want := 0
+		if k, _ := f.NormalK(lo, p, g); k <= q {
+			want = lo
+		} else if k, _ := f.NormalK(hi, p, g); k > q {
+			want = MaxPlannedSpecimens + 1
+		} else {
+			for hi-lo > 1 {
+				mid := (lo + hi) / 2
+				if k, _ := f.NormalK(mid, p, g); k <= q {
+					hi = mid
+				} else {
+					lo = mid
+				}
+			}
+			want = hi
+		}
+		if got != want {
+			t.Fatalf("q %g p %g gamma %g n0 %d: %d specimens, bisection says %d", q, p, g, n0, got, want)
+		}
 	}
 }
