@@ -21,8 +21,8 @@ import (
 // are merged (external sort-merge, Knuth, TAOCP vol. 3, 5.4.1) and a hash
 // met in two runs is a duplicate found late (its message cannot quote the
 // id, which is not kept, but names both places). Memory therefore stays
-// below about 50 MB whatever the size of the input (the 32 MB table, and
-// while it grows the old table; a spill sorts it in place); disk takes 16
+// below about 35 MB whatever the size of the input (the 32 MB table, and
+// while it grows the old table of at most 1 MB; a spill sorts it in place); disk takes 16
 // bytes per specimen, only for inputs of more than memCap specimens. When
 // the first occurrence of an id was already spilled, a repeat met again in
 // memory names the earlier in-memory occurrence as "first"; the merge still
@@ -96,9 +96,10 @@ func (x *idIndex) find(h uint64) (int, bool) {
 	}
 }
 
-// grow enlarges the table fourfold (so that a large input rehashes about
-// a third of its ids rather than all of them), up to the size that holds
-// memCap ids at a load of at most 3/4.
+// grow enlarges the table fourfold, and from 2^16 slots (about 49,000
+// ids) straight to the size that holds memCap ids at a load of at most
+// 3/4 (32 MB), so that a large input rehashes its first ids only, not
+// every id several times.
 func (x *idIndex) grow() {
 	size := 4 * len(x.slots)
 	if size == 0 {
@@ -107,6 +108,9 @@ func (x *idIndex) grow() {
 	top := 1024
 	for 3*top < 4*x.memCap+4 {
 		top *= 2
+	}
+	if len(x.slots) >= 1<<16 {
+		size = top
 	}
 	size = max(min(size, top), 2*len(x.slots))
 	old := x.slots

@@ -211,11 +211,15 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			s.Values[i] = math.NaN()
 			continue
 		}
-		v, err := strconv.ParseFloat(raw, 64)
-		if err == nil && notDecimal(raw) {
-			// Go also reads hexadecimal floats and digit separators; a
-			// results file holds plain decimal numbers.
-			err = strconv.ErrSyntax
+		v, quick := quickDecimal(raw)
+		var err error
+		if !quick {
+			v, err = strconv.ParseFloat(raw, 64)
+			if err == nil && notDecimal(raw) {
+				// Go also reads hexadecimal floats and digit separators; a
+				// results file holds plain decimal numbers.
+				err = strconv.ErrSyntax
+			}
 		}
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 			what := fmt.Sprintf("%s: %s is not a number", p.Name, short(raw))
