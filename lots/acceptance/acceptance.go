@@ -162,7 +162,8 @@ type Judging struct {
 	specs []*spec.Spec
 	by    lots.GroupBy
 	f     *stats.Factors
-	jobs  chan job
+	jobs  chan []job
+	batch []job // lots added but not yet queued
 	wg    sync.WaitGroup
 	out   []*judged
 	done  bool
@@ -214,30 +215,44 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 	if n <= 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan job, 4*n)}
+	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan []job, 4*n)}
 	for range n {
 		j.wg.Add(1)
 		go func() {
 			defer j.wg.Done()
-			for jb := range j.jobs {
-				jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
+			for b := range j.jobs {
+				for _, jb := range b {
+					jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
+				}
 			}
 		}()
 	}
 	return j, nil
 }
 
+// judgeBatch is how many lots go to a worker at a time (fewer hand-offs
+// between goroutines than one lot at a time).
+const judgeBatch = 16
+
 // Add queues a lot for judging; the lot belongs to the Judging from then on.
 func (j *Judging) Add(l *lots.Lot) {
 	o := &judged{}
 	j.out = append(j.out, o)
-	j.jobs <- job{l, o}
+	j.batch = append(j.batch, job{l, o})
+	if len(j.batch) == judgeBatch {
+		j.jobs <- j.batch
+		j.batch = make([]job, 0, judgeBatch)
+	}
 }
 
 // Stop ends the workers and drops the results.
 func (j *Judging) Stop() {
 	if !j.done {
 		j.done = true
+		if len(j.batch) > 0 {
+			j.jobs <- j.batch
+			j.batch = nil
+		}
 		close(j.jobs)
 		j.wg.Wait()
 	}
