@@ -7,6 +7,7 @@ import (
 	"encoding/binary"
 	"errors"
 	"io"
+	"math/bits"
 	"os"
 	"slices"
 	"sync/atomic"
@@ -35,6 +36,7 @@ type idIndex struct {
 	slots  []idSlot // open-addressing table
 	n      int
 	memCap int
+	shift  uint // 64 - log2(len(slots))
 	runs   []*os.File
 	err    error
 }
@@ -83,10 +85,14 @@ func (x *idIndex) seen(h uint64, line, col int) int {
 	return 0
 }
 
-// find returns the slot holding h, or the empty slot where it goes.
+// find returns the slot holding h, or the empty slot where it goes. The
+// first slot probed is the top bits of h times 2^64/phi (Fibonacci hashing,
+// Knuth, TAOCP vol. 3, 6.4): the low bits of FNV hashes of ids that differ
+// only in their last characters (S1, S2, ...) cluster, and linear probing
+// from them made long runs.
 func (x *idIndex) find(h uint64) (int, bool) {
 	mask := uint64(len(x.slots) - 1)
-	for i := h & mask; ; i = (i + 1) & mask {
+	for i := (h * 0x9E3779B97F4A7C15) >> x.shift; ; i = (i + 1) & mask {
 		switch x.slots[i].hash {
 		case 0:
 			return int(i), false
@@ -114,12 +120,16 @@ func (x *idIndex) grow() {
 	}
 	size = max(min(size, top), 2*len(x.slots))
 	old := x.slots
-	x.slots = make([]idSlot, size)
+	x.slots = newSlots(size)
+	x.shift = uint(64 - bits.TrailingZeros(uint(size)))
 	for _, e := range old {
 		if e.hash != 0 {
 			i, _ := x.find(e.hash)
 			x.slots[i] = e
 		}
+	}
+	if old != nil {
+		releaseSlots(old)
 	}
 }
 
@@ -170,6 +180,7 @@ func (x *idIndex) finish(dup func(line, col, first int)) error {
 	if err := x.spill(); err != nil {
 		return err
 	}
+	releaseSlots(x.slots)
 	x.slots = nil
 	h := &runHeap{}
 	for _, f := range x.runs {
@@ -206,6 +217,10 @@ func (x *idIndex) finish(dup func(line, col, first int)) error {
 }
 
 func (x *idIndex) close() {
+	if x.slots != nil {
+		releaseSlots(x.slots)
+		x.slots = nil
+	}
 	for _, f := range x.runs {
 		f.Close()
 	}

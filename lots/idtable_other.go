@@ -1,0 +1,10 @@
+//go:build !linux
+
+package lots
+
+// newSlots returns a zeroed table of n slots.
+func newSlots(n int) []idSlot { return make([]idSlot, n) }
+
+// releaseSlots does nothing here: the table belongs to the garbage
+// collector.
+func releaseSlots([]idSlot) {}
