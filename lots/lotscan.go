@@ -458,3 +458,26 @@ func (d *digester) close() {
 		d.in = nil
 	}
 }
+
+// RescanFile reads again a results file that ScanLotsFile has read and
+// checked, calling fn for every specimen in file order (fn may keep
+// nothing of the specimen: its strings and values are reused), so that a
+// caller can write a large file somewhere in bounded memory. The file must
+// be unchanged: when its SHA-256 is no longer digest, RescanFile returns an
+// error after the last specimen (the caller discards what it did).
+func RescanFile(name, digest string, fn func(*Specimen) error) error {
+	f, _, err := input.OpenFile(name, input.Results)
+	if err != nil {
+		return fromInput(err)
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := ScanCSV(io.TeeReader(input.Limit(f, name, input.Results), h), name, func(_ *Header, s *Specimen) error { return fn(s) }); err != nil {
+		return err
+	}
+	if fmt.Sprintf("%x", h.Sum(nil)) != digest {
+		return Inputf(name, "make sure nothing writes to the file while it is being recorded, and run the command again",
+			"the file changed while it was being read (its SHA-256 is not that of the first reading)")
+	}
+	return nil
+}

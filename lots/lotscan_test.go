@@ -2,9 +2,12 @@ package lots
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
@@ -167,5 +170,34 @@ func TestScanLotsDuplicateIDsAsReadCSV(t *testing.T) {
 				}
 			}
 		}()
+	}
+}
+
+// TestRescanFileChecksTheDigest: the second reading calls fn for every
+// specimen in file order, and refuses a file whose SHA-256 is not the one
+// of the first reading (it changed in between).
+func TestRescanFileChecksTheDigest(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "r.csv")
+	if err := os.WriteFile(name, []byte("specimen,lot,tensile [MPa]\nA1,L1,100\nA2,L1,101\nB1,L2,99\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	d, err := ScanLotsFile(name, ReadOptions{}, LotScan{By: ByLot, Lot: func(*Lot) error { return nil }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ids []string
+	if err := RescanFile(name, d.Digest, func(s *Specimen) error { ids = append(ids, strings.Clone(s.ID)); return nil }); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(ids, " ") != "A1 A2 B1" {
+		t.Errorf("specimens %v, want A1 A2 B1 in file order", ids)
+	}
+	if err := os.WriteFile(name, []byte("specimen,lot,tensile [MPa]\nA1,L1,100\nA2,L1,102\nB1,L2,99\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	err = RescanFile(name, d.Digest, func(*Specimen) error { return nil })
+	var ie *InputError
+	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "changed while it was being read") {
+		t.Errorf("changed file: %v, want an input error saying it changed", err)
 	}
 }

@@ -7,7 +7,9 @@ import (
 	"io"
 	"os"
 	"os/user"
+	"path/filepath"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -85,20 +87,30 @@ func currentUser() string {
 }
 
 func runRecord(o recordOptions, st streams) error {
-	d, by, err := readData(o.Data, o.Input, st)
+	// Problems with the data are reported before those with the
+	// specifications (which are then not used for reading).
+	specs, specErr := spec.ReadFiles(o.Specs)
+	if specErr != nil {
+		specs = nil
+	}
+	var err error
+	var in store.RecordInput
+	var verdicts []store.Verdict
+	var judged bool
+	var note string
+	if o.Data != "-" && len(o.Input.More) == 0 && !strings.EqualFold(filepath.Ext(o.Data), ".xlsx") {
+		in, verdicts, judged, note, err = streamRecordInput(o, st, specs)
+	} else {
+		in, verdicts, judged, note, err = readRecordInput(o, st, specs)
+	}
 	if err != nil {
 		return err
 	}
-	if len(d.Specimens) == 0 {
-		return lots.Inputf(d.Source, "give a file with at least one specimen row", "no specimens to record")
+	if in.Specimens == 0 {
+		return lots.Inputf(in.Source, "give a file with at least one specimen row", "no specimens to record")
 	}
-	specs, err := spec.ReadFiles(o.Specs)
-	if err != nil {
-		return err
-	}
-	verdicts, judged, note, err := judgeLots(d, specs, by)
-	if err != nil {
-		return err
+	if specErr != nil {
+		return specErr
 	}
 	now := o.Now
 	if now == nil {
@@ -114,7 +126,7 @@ func runRecord(o recordOptions, st streams) error {
 		return usageError{err}
 	}
 	defer s.Close()
-	r, err := s.Record(ctx, d, verdicts, store.LimitsOf(specs), store.Meta{Time: now(), User: who, Version: lots.Version})
+	r, err := s.RecordStream(ctx, in, verdicts, store.LimitsOf(specs), store.Meta{Time: now(), User: who, Version: lots.Version})
 	if err != nil {
 		var ce *store.ConflictError
 		if errors.As(err, &ce) {
@@ -131,10 +143,10 @@ func runRecord(o recordOptions, st streams) error {
 		res.Specs = append(res.Specs, sp.Label())
 	}
 	if r.AlreadyRecorded {
-		fmt.Fprintf(st.Err, "lotproof: %s (SHA-256 %s) was already recorded on %s by %s; nothing changed\n", d.Source, d.Digest[:12], r.ImportedAt, r.User)
+		fmt.Fprintf(st.Err, "lotproof: %s (SHA-256 %s) was already recorded on %s by %s; nothing changed\n", in.Source, in.Digest[:12], r.ImportedAt, r.User)
 	} else {
 		fmt.Fprintf(st.Err, "lotproof: recorded %s in %s: %d new specimens, %d already stored (%d of them given %d new values), %d new lots, %d verdicts\n",
-			d.Source, s.Where(), r.SpecimensNew, r.SpecimensSame, r.SpecimensAdded, r.ValuesAdded, r.LotsNew, r.Verdicts)
+			in.Source, s.Where(), r.SpecimensNew, r.SpecimensSame, r.SpecimensAdded, r.ValuesAdded, r.LotsNew, r.Verdicts)
 	}
 	return emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
@@ -180,6 +192,82 @@ func recordTable(r recordResult) *render.Table {
 	return t
 }
 
+// readRecordInput reads the data whole (several files combined by
+// specimen id, a workbook, standard input) and judges its lots.
+func readRecordInput(o recordOptions, st streams, specs []*spec.Spec) (store.RecordInput, []store.Verdict, bool, string, error) {
+	d, by, err := readData(o.Data, o.Input, st)
+	if err != nil {
+		return store.RecordInput{}, nil, false, "", err
+	}
+	verdicts, judged, note, err := judgeLots(d, specs, by)
+	in := store.RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
+		Each: func(fn func(*lots.Specimen) error) error {
+			for i := range d.Specimens {
+				if err := fn(&d.Specimens[i]); err != nil {
+					return err
+				}
+			}
+			return nil
+		}}
+	return in, verdicts, judged, note, err
+}
+
+// streamRecordInput reads one results file lot by lot (lots.ScanLotsFile,
+// bounded memory), judging the lots as they come, and returns a
+// RecordInput that reads the file again as it is recorded
+// (lots.RescanFile, which checks that the file is unchanged).
+func streamRecordInput(o recordOptions, st streams, specs []*spec.Spec) (store.RecordInput, []store.Verdict, bool, string, error) {
+	by, err := lots.ParseGroupBy(o.Input.GroupBy)
+	if err != nil {
+		return store.RecordInput{}, nil, false, "", usageError{err}
+	}
+	judge := len(specs) > 0 && by == lots.ByLot
+	var j *acceptance.Judging
+	var specErr error
+	count := 0
+	scanIn := o.Input
+	scanIn.GroupBy = string(lots.ByLot) // verdicts are per lot; heats need not be given
+	d, _, err := scanLots(o.Data, scanIn, st, func(d *lots.Dataset) {
+		count = 0
+		if j != nil {
+			j.Stop()
+			j = nil
+		}
+		if judge && specErr == nil {
+			j, specErr = acceptance.Start(d, specs, by)
+		}
+	}, func(l *lots.Lot) error {
+		count += l.Len()
+		if j != nil {
+			j.Add(l)
+		}
+		return nil
+	})
+	if err == nil {
+		err = specErr
+	}
+	if err != nil {
+		if j != nil {
+			j.Stop()
+		}
+		return store.RecordInput{}, nil, false, "", err
+	}
+	in := store.RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: count,
+		Each: func(fn func(*lots.Specimen) error) error { return lots.RescanFile(o.Data, d.Digest, fn) }}
+	if len(specs) == 0 {
+		return in, nil, false, "", nil
+	}
+	if !judge {
+		return in, nil, false, headingNote, nil
+	}
+	res, err := j.Finish(d)
+	if err != nil {
+		return store.RecordInput{}, nil, false, "", err
+	}
+	verdicts, note := verdictsOf(res)
+	return in, verdicts, true, note, nil
+}
+
 // judgeLots computes each lot's verdict against its specification with
 // package acceptance. Verdicts are stored per lot, so a file judged by
 // heat stores its limits but no verdicts.
@@ -188,16 +276,25 @@ func judgeLots(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) ([]store.Ve
 		return nil, false, "", nil
 	}
 	if by != lots.ByLot {
-		return nil, false, "verdicts are recorded per lot; with --group-by heat only the specification limits were stored", nil
+		return nil, false, headingNote, nil
 	}
 	res, err := acceptance.Judge(d, specs, by)
 	if err != nil {
 		return nil, false, "", err
 	}
+	out, note := verdictsOf(res)
+	return out, true, note, nil
+}
+
+// headingNote says why a file judged by heat has no verdicts stored.
+const headingNote = "verdicts are recorded per lot; with --group-by heat only the specification limits were stored"
+
+// verdictsOf returns the lots' verdicts to store and the note that counts them.
+func verdictsOf(res *acceptance.Result) ([]store.Verdict, string) {
 	out := make([]store.Verdict, 0, len(res.Lots))
 	for _, l := range res.Lots {
 		out = append(out, store.Verdict{Lot: l.Lot, Spec: l.Spec, Verdict: l.Verdict})
 	}
-	return out, true, fmt.Sprintf("verdicts: %d conforming, %d nonconforming, %d undecided, %d not judged (lotproof accept shows the reasons)",
-		res.Counts.Conforming, res.Counts.Nonconforming, res.Counts.Undecided, res.Counts.NotJudged), nil
+	return out, fmt.Sprintf("verdicts: %d conforming, %d nonconforming, %d undecided, %d not judged (lotproof accept shows the reasons)",
+		res.Counts.Conforming, res.Counts.Nonconforming, res.Counts.Undecided, res.Counts.NotJudged)
 }

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"lotproof/spec"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -182,8 +183,40 @@ func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict,
 	if d == nil {
 		return nil, fmt.Errorf("store: no dataset")
 	}
-	if len(d.Digest) != 64 {
-		return nil, fmt.Errorf("store: dataset %s has no SHA-256 digest", d.Source)
+	in := RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
+		Each: func(fn func(*lots.Specimen) error) error {
+			for i := range d.Specimens {
+				if err := fn(&d.Specimens[i]); err != nil {
+					return err
+				}
+			}
+			return nil
+		}}
+	return s.RecordStream(ctx, in, verdicts, limits, meta)
+}
+
+// RecordInput is a results file to record without holding it in memory:
+// its digest, source, properties and number of specimens (known from a
+// first reading, e.g. lots.ScanLotsFile), and Each, which reads the
+// specimens again in file order and calls fn for each (fn may keep nothing
+// of the specimen it is given; an error from fn or from reading ends the
+// recording, and nothing is written).
+type RecordInput struct {
+	Digest     string
+	Source     string
+	Properties []lots.Property
+	Specimens  int
+	Each       func(fn func(*lots.Specimen) error) error
+}
+
+// RecordStream is Record for a file read as it is recorded: memory holds
+// one batch of specimens and the keys of the lots met, not the file.
+func (s *Store) RecordStream(ctx context.Context, in RecordInput, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
+	if len(in.Digest) != 64 {
+		return nil, fmt.Errorf("store: dataset %s has no SHA-256 digest", in.Source)
+	}
+	if in.Each == nil {
+		return nil, fmt.Errorf("store: no specimens to read")
 	}
 	if meta.Time.IsZero() {
 		return nil, fmt.Errorf("store: import time not set")
@@ -195,7 +228,7 @@ func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict,
 	limits = dedupeLimits(limits)
 	res := &RecordResult{}
 	err := s.inTx(ctx, func(tx *sql.Tx) error {
-		r, err := s.record(ctx, tx, d, verdicts, limits, meta)
+		r, err := s.record(ctx, tx, in, verdicts, limits, meta)
 		if err == nil {
 			*res = *r
 		}
@@ -244,7 +277,7 @@ func nullable(v float64) any {
 	return v
 }
 
-func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
+func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts []Verdict, limits []SpecLimit, meta Meta) (*RecordResult, error) {
 	res := &RecordResult{
 		Digest:     d.Digest,
 		Source:     d.Source,
@@ -261,7 +294,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		}
 		// The counts say what this run did: nothing new, every specimen
 		// already stored. When and by whom are those of the first import.
-		res.ImportedAt, res.User, res.SpecimensNew, res.SpecimensSame = at, user, 0, len(d.Specimens)
+		res.ImportedAt, res.User, res.SpecimensNew, res.SpecimensSame = at, user, 0, d.Specimens
 		return res, nil
 	}
 	if err != sql.ErrNoRows {
@@ -292,44 +325,52 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		}
 	}
 
-	// Lots: the same lot must keep its supplier and material.
-	groups, err := d.Group(lots.ByLot, nil)
-	if err != nil {
-		return nil, err
-	}
+	// Lots: the same lot must keep its supplier and material. A lot is
+	// written when its first specimen is met (before that specimen), with
+	// that specimen's supplier and material, as lots.Dataset.Group takes
+	// them. Its conflicts are listed before those of specimens, as when
+	// the lots were written first.
 	lotStmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO lots (lot, supplier, material, import_digest) VALUES (?, ?, ?, ?) ON CONFLICT (lot) DO NOTHING`))
 	if err != nil {
 		return nil, err
 	}
 	defer lotStmt.Close()
-	for _, g := range groups {
-		r, err := lotStmt.ExecContext(ctx, g.Key, g.Supplier, g.Material, d.Digest)
+	lotConf := &ConflictError{Source: d.Source}
+	metLots := map[string]bool{}
+	addLot := func(sp *lots.Specimen) error {
+		if metLots[sp.Lot] {
+			return nil
+		}
+		key := strings.Clone(sp.Lot)
+		metLots[key] = true
+		r, err := lotStmt.ExecContext(ctx, key, sp.Supplier, sp.Material, d.Digest)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if n, _ := r.RowsAffected(); n == 1 {
 			res.LotsNew++
-			continue
+			return nil
 		}
 		var sup, mat string
-		if err := tx.QueryRowContext(ctx, s.q(`SELECT supplier, material FROM lots WHERE lot = ?`), g.Key).Scan(&sup, &mat); err != nil {
-			return nil, err
+		if err := tx.QueryRowContext(ctx, s.q(`SELECT supplier, material FROM lots WHERE lot = ?`), key).Scan(&sup, &mat); err != nil {
+			return err
 		}
-		line := d.Specimens[g.Specimens[0]].Line
 		// A supplier or material not recorded yet is an addition; an
 		// empty one in the file changes nothing.
-		for _, f := range []struct{ name, stored, incoming string }{{"supplier", sup, g.Supplier}, {"material", mat, g.Material}} {
+		for _, f := range []struct{ name, stored, incoming string }{{"supplier", sup, sp.Supplier}, {"material", mat, sp.Material}} {
 			switch {
 			case f.stored == f.incoming || f.incoming == "":
 			case f.stored == "":
-				if _, err := tx.ExecContext(ctx, s.q(`UPDATE lots SET `+f.name+` = ? WHERE lot = ?`), f.incoming, g.Key); err != nil {
-					return nil, err
+				if _, err := tx.ExecContext(ctx, s.q(`UPDATE lots SET `+f.name+` = ? WHERE lot = ?`), f.incoming, key); err != nil {
+					return err
 				}
 			default:
-				conf.add(Conflict{Kind: "lot", Key: g.Key, Field: f.name, Stored: strconv.Quote(f.stored), Incoming: strconv.Quote(f.incoming), Line: line})
+				lotConf.add(Conflict{Kind: "lot", Key: key, Field: f.name, Stored: strconv.Quote(f.stored), Incoming: strconv.Quote(f.incoming), Line: sp.Line})
 			}
 		}
+		return nil
 	}
+	conflicts := func() bool { return len(conf.Conflicts) > 0 || len(lotConf.Conflicts) > 0 }
 
 	// Specimens and their values, in multi-row statements of up to
 	// batchRows rows. RETURNING (SQLite >= 3.35, PostgreSQL) tells which
@@ -372,11 +413,11 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		return err
 	}
 	inserted := map[string]bool{}
-	for startAt := 0; startAt < len(d.Specimens); startAt += batchRows {
+	chunk := make([]lots.Specimen, 0, batchRows)
+	flushChunk := func() error {
 		if err := ctx.Err(); err != nil {
-			return nil, err
+			return err
 		}
-		chunk := d.Specimens[startAt:min(startAt+batchRows, len(d.Specimens))]
 		args = args[:0]
 		for i := range chunk {
 			sp := &chunk[i]
@@ -386,7 +427,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 		if len(chunk) == batchRows {
 			if fullSpec == nil {
 				if fullSpec, err = tx.PrepareContext(ctx, specSQL(batchRows)); err != nil {
-					return nil, err
+					return err
 				}
 			}
 			rows, err = fullSpec.QueryContext(ctx, args...)
@@ -394,26 +435,26 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 			rows, err = tx.QueryContext(ctx, specSQL(len(chunk)), args...)
 		}
 		if err != nil {
-			return nil, err
+			return err
 		}
 		clear(inserted)
 		for rows.Next() {
 			var id string
 			if err := rows.Scan(&id); err != nil {
 				rows.Close()
-				return nil, err
+				return err
 			}
 			inserted[id] = true
 		}
 		if err := rows.Close(); err != nil {
-			return nil, err
+			return err
 		}
 		for i := range chunk {
 			sp := &chunk[i]
 			if !inserted[sp.ID] {
-				if len(conf.Conflicts) == 0 {
+				if !conflicts() {
 					if err := flushVals(); err != nil { // the stored specimen may be from this chunk
-						return nil, err
+						return err
 					}
 				}
 				added, err := s.compare(ctx, tx, d, sp, unitOf, conf, func(pi int) error {
@@ -424,7 +465,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 					return nil
 				})
 				if err != nil {
-					return nil, err
+					return err
 				}
 				res.SpecimensSame++
 				if added > 0 {
@@ -436,7 +477,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 			// A specimen id twice in one file: the second is compared.
 			delete(inserted, sp.ID)
 			res.SpecimensNew++
-			if len(conf.Conflicts) > 0 {
+			if conflicts() {
 				continue // nothing will be written; only look for more conflicts
 			}
 			for pi, v := range sp.Values {
@@ -446,18 +487,41 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 				vals = append(vals, sp.ID, d.Properties[pi].Name, v)
 				if len(vals) == 3*batchRows {
 					if err := flushVals(); err != nil {
-						return nil, err
+						return err
 					}
 				}
 			}
 		}
 		// Write the values before comparing the next chunk, which may
 		// hold this chunk's specimen ids again.
-		if len(conf.Conflicts) == 0 {
+		if !conflicts() {
 			if err := flushVals(); err != nil {
-				return nil, err
+				return err
 			}
 		}
+		return nil
+	}
+	err = d.Each(func(sp *lots.Specimen) error {
+		if err := addLot(sp); err != nil {
+			return err
+		}
+		chunk = append(chunk, cloneSpecimen(sp))
+		if len(chunk) == batchRows {
+			err := flushChunk()
+			chunk = chunk[:0]
+			return err
+		}
+		return nil
+	})
+	if err == nil && len(chunk) > 0 {
+		err = flushChunk()
+	}
+	if err != nil {
+		return nil, err
+	}
+	if len(lotConf.Conflicts) > 0 {
+		lotConf.Conflicts = append(lotConf.Conflicts, conf.Conflicts...)
+		conf = lotConf
 	}
 	if len(conf.Conflicts) > 0 {
 		return nil, conf
@@ -486,7 +550,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d *lots.Dataset, verdict
 // value the stored specimen lacks is an addition: identity fields are
 // filled in at once, property values handed to addValue (written with the
 // import unless a conflict turns up). It returns the number of additions.
-func (s *Store) compare(ctx context.Context, tx *sql.Tx, d *lots.Dataset, sp *lots.Specimen, unitOf []string, conf *ConflictError, addValue func(pi int) error) (int, error) {
+func (s *Store) compare(ctx context.Context, tx *sql.Tx, d RecordInput, sp *lots.Specimen, unitOf []string, conf *ConflictError, addValue func(pi int) error) (int, error) {
 	var lot, heat, tested, cond, from string
 	if err := tx.QueryRowContext(ctx, s.q(`SELECT s.lot, s.heat, s.tested, s.test_condition, i.source FROM specimens s JOIN imports i ON i.digest = s.import_digest WHERE s.specimen = ?`), sp.ID).Scan(&lot, &heat, &tested, &cond, &from); err != nil {
 		return 0, err
@@ -567,4 +631,14 @@ func (s *Store) Imports(ctx context.Context) ([]Import, error) {
 		out = append(out, im)
 	}
 	return out, rows.Err()
+}
+
+// cloneSpecimen copies a specimen whose strings and values may live in a
+// reader's buffers.
+func cloneSpecimen(sp *lots.Specimen) lots.Specimen {
+	c := *sp
+	c.ID, c.Lot, c.Heat, c.Supplier, c.Material = strings.Clone(sp.ID), strings.Clone(sp.Lot), strings.Clone(sp.Heat), strings.Clone(sp.Supplier), strings.Clone(sp.Material)
+	c.Tested, c.Condition = strings.Clone(sp.Tested), strings.Clone(sp.Condition)
+	c.Values = slices.Clone(sp.Values)
+	return c
 }
