@@ -200,16 +200,7 @@ func readRecordInput(o recordOptions, st streams, specs []*spec.Spec) (store.Rec
 		return store.RecordInput{}, nil, false, "", err
 	}
 	verdicts, judged, note, err := judgeLots(d, specs, by)
-	in := store.RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
-		Each: func(fn func(*lots.Specimen) error) error {
-			for i := range d.Specimens {
-				if err := fn(&d.Specimens[i]); err != nil {
-					return err
-				}
-			}
-			return nil
-		}}
-	return in, verdicts, judged, note, err
+	return store.DatasetInput(d), verdicts, judged, note, err
 }
 
 // streamRecordInput reads one results file lot by lot (lots.ScanLotsFile,

@@ -183,7 +183,12 @@ func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict,
 	if d == nil {
 		return nil, fmt.Errorf("store: no dataset")
 	}
-	in := RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
+	return s.RecordStream(ctx, DatasetInput(d), verdicts, limits, meta)
+}
+
+// DatasetInput is the RecordInput of a dataset held in memory.
+func DatasetInput(d *lots.Dataset) RecordInput {
+	return RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
 		Each: func(fn func(*lots.Specimen) error) error {
 			for i := range d.Specimens {
 				if err := fn(&d.Specimens[i]); err != nil {
@@ -192,7 +197,6 @@ func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict,
 			}
 			return nil
 		}}
-	return s.RecordStream(ctx, in, verdicts, limits, meta)
 }
 
 // RecordInput is a results file to record without holding it in memory:
