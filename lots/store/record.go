@@ -384,7 +384,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts 
 			placeholders(n, 6) + ` ON CONFLICT (specimen) DO NOTHING RETURNING specimen`)
 	}
 	valSQL := func(n int) string {
-		return s.q(`INSERT INTO measurements (specimen, property, value) VALUES ` + placeholders(n, 3))
+		return s.q(`INSERT INTO measurements (specimen, property, value, lot) VALUES ` + placeholders(n, 4))
 	}
 	var fullSpec, fullVal *sql.Stmt
 	defer func() {
@@ -396,9 +396,9 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts 
 		}
 	}()
 	args := make([]any, 0, 6*batchRows)
-	vals := make([]any, 0, 3*batchRows)
+	vals := make([]any, 0, 4*batchRows)
 	flushVals := func() error {
-		n := len(vals) / 3
+		n := len(vals) / 4
 		if n == 0 {
 			return nil
 		}
@@ -461,9 +461,9 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts 
 						return err
 					}
 				}
-				added, err := s.compare(ctx, tx, d, sp, unitOf, conf, func(pi int) error {
-					vals = append(vals, sp.ID, d.Properties[pi].Name, sp.Values[pi])
-					if len(vals) == 3*batchRows {
+				added, err := s.compare(ctx, tx, d, sp, unitOf, conf, func(pi int, lot string) error {
+					vals = append(vals, sp.ID, d.Properties[pi].Name, sp.Values[pi], lot) // the stored lot
+					if len(vals) == 4*batchRows {
 						return flushVals()
 					}
 					return nil
@@ -488,8 +488,8 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts 
 				if math.IsNaN(v) {
 					continue
 				}
-				vals = append(vals, sp.ID, d.Properties[pi].Name, v)
-				if len(vals) == 3*batchRows {
+				vals = append(vals, sp.ID, d.Properties[pi].Name, v, sp.Lot)
+				if len(vals) == 4*batchRows {
 					if err := flushVals(); err != nil {
 						return err
 					}
@@ -554,7 +554,7 @@ func (s *Store) record(ctx context.Context, tx *sql.Tx, d RecordInput, verdicts 
 // value the stored specimen lacks is an addition: identity fields are
 // filled in at once, property values handed to addValue (written with the
 // import unless a conflict turns up). It returns the number of additions.
-func (s *Store) compare(ctx context.Context, tx *sql.Tx, d RecordInput, sp *lots.Specimen, unitOf []string, conf *ConflictError, addValue func(pi int) error) (int, error) {
+func (s *Store) compare(ctx context.Context, tx *sql.Tx, d RecordInput, sp *lots.Specimen, unitOf []string, conf *ConflictError, addValue func(pi int, lot string) error) (int, error) {
 	var lot, heat, tested, cond, from string
 	if err := tx.QueryRowContext(ctx, s.q(`SELECT s.lot, s.heat, s.tested, s.test_condition, i.source FROM specimens s JOIN imports i ON i.digest = s.import_digest WHERE s.specimen = ?`), sp.ID).Scan(&lot, &heat, &tested, &cond, &from); err != nil {
 		return 0, err
@@ -598,7 +598,7 @@ func (s *Store) compare(ctx context.Context, tx *sql.Tx, d RecordInput, sp *lots
 		switch {
 		case math.IsNaN(v): // an empty cell adds nothing and changes nothing
 		case !ok:
-			if err := addValue(pi); err != nil {
+			if err := addValue(pi, lot); err != nil {
 				return 0, err
 			}
 			added++

@@ -151,29 +151,23 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lo
 	return rows.Err()
 }
 
-// samplesPostgres groups by lot and property in PostgreSQL (a hash
-// aggregate: no sort of the measurements): per group the values as
-// concatenated IEEE 754 binary64 and the specimen ids joined by NUL (text
-// never holds NUL), in the same row order (every row feeds both
-// aggregates). They are put in specimen-id order here.
+// samplesPostgres groups the measurements by the lot they carry (schema
+// version 4) and property in PostgreSQL, without joining the specimens:
+// per group the values as concatenated IEEE 754 binary64 in specimen-id
+// order, bytewise (COLLATE "C", as SQLite's BINARY and Go compare). The
+// earliest test date of each lot comes from a second, small query over
+// the specimens (specimens without measurements count, as in lotMeta).
 func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
-	on := ``
+	where := ``
 	var args []any
 	if f.Property != "" {
-		on = ` AND m.property = $1`
+		where = ` WHERE property = $1`
 		args = append(args, f.Property)
 	}
-	// Specimens without measurements form a group of property NULL: it
-	// only gives its test dates to the lot's.
-	query := `SELECT s.lot, m.property, MIN(NULLIF(s.tested, '')), COUNT(*),
-			string_agg(float8send(m.value), ''::bytea), string_agg(textsend(s.specimen), '\x00'::bytea)
-		FROM specimens s LEFT JOIN measurements m ON m.specimen = s.specimen` + on + `
-		GROUP BY s.lot, m.property`
-	// One read-only transaction whose work_mem lets the hash join and the
-	// hash aggregate of a large history stay in memory (hash tables may
-	// use hash_mem_multiplier times this); with the server's default of
-	// 4 MB they spill to temporary files. Any role may set work_mem, and
-	// SET LOCAL ends with the transaction.
+	// One read-only transaction whose work_mem lets the sort of a large
+	// history stay in memory; with the server's default of 4 MB it spills
+	// to temporary files. Any role may set work_mem, and SET LOCAL ends
+	// with the transaction.
 	tx, err := s.db.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
 	if err != nil {
 		return err
@@ -182,49 +176,45 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*
 	if _, err := tx.ExecContext(ctx, `SET LOCAL work_mem = '`+pgWorkMem+`'`); err != nil {
 		return err
 	}
-	rows, err := tx.QueryContext(ctx, query, args...)
+	dates, err := tx.QueryContext(ctx, `SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`)
 	if err != nil {
 		return err
 	}
-	defer rows.Close()
-	var ids [][]byte
-	var idx []int
-	for rows.Next() {
+	for dates.Next() {
 		var lot string
-		var prop, tested sql.NullString
-		var n int
-		var vb, ib []byte
-		if err := rows.Scan(&lot, &prop, &tested, &n, &vb, &ib); err != nil {
+		var tested sql.NullString
+		if err := dates.Scan(&lot, &tested); err != nil {
+			dates.Close()
 			return err
 		}
 		if m, ok := meta[lot]; ok {
 			m.earlier(tested.String)
 		}
-		if !prop.Valid {
-			continue
+	}
+	if err := dates.Close(); err != nil {
+		return err
+	}
+	rows, err := tx.QueryContext(ctx, `SELECT lot, property, COUNT(*), string_agg(float8send(value), ''::bytea ORDER BY specimen COLLATE "C")
+		FROM measurements`+where+` GROUP BY lot, property`, args...)
+	if err != nil {
+		return err
+	}
+	defer rows.Close()
+	for rows.Next() {
+		var lot, prop string
+		var n int
+		var vb []byte
+		if err := rows.Scan(&lot, &prop, &n, &vb); err != nil {
+			return err
 		}
-		ids = ids[:0]
-		for k := 0; k < n; k++ {
-			i := bytes.IndexByte(ib, 0)
-			if i < 0 {
-				i = len(ib)
-			}
-			ids = append(ids, ib[:i])
-			ib = ib[min(i+1, len(ib)):]
+		if len(vb) != 8*n {
+			return fmt.Errorf("store: lot %q, %s: packed values malformed", lot, prop)
 		}
-		if len(vb) != 8*n || len(ids) != n || len(ib) != 0 {
-			return fmt.Errorf("store: lot %q, %s: packed values malformed", lot, prop.String)
-		}
-		idx = idx[:0]
-		for k := 0; k < n; k++ {
-			idx = append(idx, k)
-		}
-		sort.SliceStable(idx, func(i, j int) bool { return bytes.Compare(ids[idx[i]], ids[idx[j]]) < 0 })
 		vals := make([]float64, n)
-		for k, i := range idx {
-			vals[k] = math.Float64frombits(binary.BigEndian.Uint64(vb[8*i:]))
+		for k := range vals {
+			vals[k] = math.Float64frombits(binary.BigEndian.Uint64(vb[8*k:]))
 		}
-		if err := add(lot, prop.String, vals); err != nil {
+		if err := add(lot, prop, vals); err != nil {
 			return err
 		}
 	}

@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"reflect"
+	"slices"
 	"testing"
 )
 
@@ -163,5 +164,39 @@ func TestLotValuesPacking(t *testing.T) {
 	}
 	if err := a.Step(nil, []driver.Value{"s-2", "tensile", "x"}); err == nil {
 		t.Error("a text value: no error")
+	}
+}
+
+// TestLotSamplesAfterAdditions: values added to specimens already stored
+// (a later file gives a property they lacked) carry the stored lot, so
+// LotSamples (grouping by the measurements' lot on PostgreSQL) still
+// agrees with LotData (which joins the specimens), on both backends.
+func TestLotSamplesAfterAdditions(t *testing.T) {
+	ctx := context.Background()
+	for _, b := range backends(t) {
+		t.Run(b.name, func(t *testing.T) {
+			s := open(t, b.fresh(t))
+			full := synth("AD", 4, 5, 3)
+			first := slices.Clone(full)
+			for i := range first {
+				first[i].proof = math.NaN() // proof comes later
+			}
+			if _, err := s.Record(ctx, dataset(t, "tensile.csv", first), nil, nil, Meta{Time: t0, User: "t"}); err != nil {
+				t.Fatal(err)
+			}
+			r, err := s.Record(ctx, dataset(t, "both.csv", full), nil, nil, Meta{Time: t0, User: "t"})
+			if err != nil || r.ValuesAdded != len(full) {
+				t.Fatalf("second file: %+v, %v; want %d values added", r, err, len(full))
+			}
+			want, err := s.LotData(ctx, Filter{Property: "proof"})
+			if err != nil || len(want) != 4 {
+				t.Fatalf("proof groups %d (%v), want 4", len(want), err)
+			}
+			got, err := s.LotSamples(ctx, Filter{Property: "proof"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			sameSamples(t, "proof added later", want, got)
+		})
 	}
 }

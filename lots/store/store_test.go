@@ -322,8 +322,18 @@ func TestMigrateFromVersion1(t *testing.T) {
 			writeV1(t, url)
 			s := open(t, url)
 			v, err := s.SchemaVersion(ctx)
-			if err != nil || v != 3 || Latest() != 3 {
+			if err != nil || v != 4 || Latest() != 4 {
 				t.Fatalf("version after migrating: %d (%v), latest %d", v, err, Latest())
+			}
+			// Version 4 copied each specimen's lot onto its measurements,
+			// which LotSamples groups by.
+			var lot string
+			var n int
+			if err := s.db.QueryRowContext(ctx, `SELECT MIN(lot), COUNT(*) FROM measurements`).Scan(&lot, &n); err != nil || lot != "OLD-1" || n != 2 {
+				t.Fatalf("measurements' lot after migrating: %q of %d (%v)", lot, n, err)
+			}
+			if ls, err := s.LotSamples(ctx, Filter{}); err != nil || len(ls) != 1 || ls[0].Lot != "OLD-1" || len(ls[0].Values) != 2 {
+				t.Fatalf("lot samples after migrating: %+v (%v)", ls, err)
 			}
 			lv, err := s.LotData(ctx, Filter{})
 			if err != nil || len(lv) != 1 || lv[0].Lot != "OLD-1" || len(lv[0].Values) != 2 || lv[0].Values[0] != 1001.5 || lv[0].Values[1] != 998.25 {
@@ -349,7 +359,7 @@ func TestMigrateFromVersion1(t *testing.T) {
 			// Opening again changes nothing.
 			s.Close()
 			s2 := open(t, url)
-			if v, _ := s2.SchemaVersion(ctx); v != 3 {
+			if v, _ := s2.SchemaVersion(ctx); v != Latest() {
 				t.Fatalf("version on reopening %d", v)
 			}
 		})
