@@ -118,7 +118,14 @@ func writeAccept(w io.Writer, res *acceptance.Result, rs render.Resolutions, tab
 // writeShown writes a judgement already in display units.
 func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, table tableOption, out output) error {
 	if out.Format == render.JSON {
-		return render.WriteJSON(w, shown)
+		// The lots one at a time: the text of a hundred thousand lots
+		// need not be built whole in memory.
+		head := *shown
+		head.Lots = nil
+		if len(shown.Lots) == 0 {
+			return render.WriteJSON(w, shown)
+		}
+		return render.WriteJSONList(w, &head, "lots", len(shown.Lots), func(i int) any { return &shown.Lots[i] })
 	}
 	tables, err := table.pick(out.Format, acceptTables(shown, rs, func(name string) bool { return table.wanted(out.Format, name) }))
 	if err != nil {

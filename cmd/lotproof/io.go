@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"bytes"
 	"fmt"
 	"io"
@@ -85,12 +86,68 @@ func readData(name string, in inputOptions, st streams) (*lots.Dataset, lots.Gro
 // emit renders everything into memory first and writes it to w only when
 // rendering succeeded, so a failing command writes nothing partial.
 func emit(w io.Writer, render func(io.Writer) error) error {
-	var b bytes.Buffer
+	var b spillBuffer
+	defer b.close()
 	if err := render(&b); err != nil {
 		return err
 	}
-	_, err := w.Write(b.Bytes())
+	return b.writeTo(w)
+}
+
+// spillBuffer holds output until it is complete: up to spillAt bytes in
+// memory, the rest in a temporary file (unlinked at once, so it goes away
+// with the process), so that a large result (JSON of a hundred thousand
+// lots) does not have to fit in memory twice. When no temporary file can
+// be made it keeps everything in memory.
+type spillBuffer struct {
+	mem  bytes.Buffer
+	f    *os.File
+	fw   *bufio.Writer
+	fail bool // no temporary file could be made
+}
+
+const spillAt = 8 << 20
+
+func (b *spillBuffer) Write(p []byte) (int, error) {
+	if b.f == nil && (b.fail || b.mem.Len()+len(p) <= spillAt) {
+		return b.mem.Write(p)
+	}
+	if b.f == nil {
+		f, err := os.CreateTemp("", "lotproof-out-*")
+		if err != nil {
+			b.fail = true
+			return b.mem.Write(p)
+		}
+		os.Remove(f.Name())
+		b.f, b.fw = f, bufio.NewWriterSize(f, 1<<16)
+		if _, err := b.fw.Write(b.mem.Bytes()); err != nil {
+			return 0, err
+		}
+		b.mem = bytes.Buffer{}
+	}
+	return b.fw.Write(p)
+}
+
+// writeTo copies the whole output to w.
+func (b *spillBuffer) writeTo(w io.Writer) error {
+	if b.f == nil {
+		_, err := w.Write(b.mem.Bytes())
+		return err
+	}
+	if err := b.fw.Flush(); err != nil {
+		return err
+	}
+	if _, err := b.f.Seek(0, io.SeekStart); err != nil {
+		return err
+	}
+	_, err := io.Copy(w, b.f)
 	return err
+}
+
+func (b *spillBuffer) close() {
+	if b.f != nil {
+		b.f.Close()
+	}
 }
 
 // tableOption is the --table flag of a command that lays its result out

@@ -1,6 +1,8 @@
 package render
 
 import (
+	"bufio"
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -285,4 +287,53 @@ func (t *Table) DropColumn(i int) {
 			t.Exact[r] = cut(t.Exact[r])
 		}
 	}
+}
+
+// WriteJSONList writes what WriteJSON writes for a value whose member key
+// (at the top level) is a long list, without building the whole text in
+// memory: head is the value with that list set to nil (so that it encodes
+// as null), and item(i) returns the list's i-th of n elements, each encoded
+// on its own in the same indented form. The bytes are those of WriteJSON
+// on the whole value (TestWriteJSONListSameAsWriteJSON).
+func WriteJSONList(w io.Writer, head any, key string, n int, item func(i int) any) error {
+	var hb bytes.Buffer
+	if err := WriteJSON(&hb, head); err != nil {
+		return err
+	}
+	kb, err := json.Marshal(key)
+	if err != nil {
+		return err
+	}
+	marker := append(append([]byte("\n  "), kb...), []byte(": null")...)
+	at := bytes.Index(hb.Bytes(), marker)
+	if at < 0 || bytes.Contains(hb.Bytes()[at+len(marker):], marker) {
+		return fmt.Errorf("render: the member %s is not a single top-level null", key)
+	}
+	bw := bufio.NewWriterSize(w, 1<<16)
+	bw.Write(hb.Bytes()[:at+len(marker)-len("null")])
+	if n == 0 { // an empty (not nil) list
+		bw.WriteString("[]")
+		bw.Write(hb.Bytes()[at+len(marker):])
+		return bw.Flush()
+	}
+	bw.WriteString("[\n")
+	var ib bytes.Buffer
+	enc := json.NewEncoder(&ib)
+	enc.SetIndent("    ", "  ")
+	enc.SetEscapeHTML(false)
+	for i := range n {
+		ib.Reset()
+		if err := enc.Encode(item(i)); err != nil {
+			return err
+		}
+		bw.WriteString("    ")
+		bw.Write(bytes.TrimSuffix(ib.Bytes(), []byte("\n")))
+		if i < n-1 {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n")
+	}
+	bw.WriteString("  ]")
+	bw.Write(hb.Bytes()[at+len(marker):])
+	return bw.Flush()
 }
