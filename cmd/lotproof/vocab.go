@@ -14,22 +14,27 @@ import (
 // grouping: "lot", or "heat" with --group-by heat.
 func summaryJSON(w io.Writer, by lots.GroupBy, sum []lots.GroupSummary) error {
 	if by == lots.ByLot {
-		return render.WriteJSON(w, sum)
+		return render.WriteJSONArray(w, len(sum), func(i int) any { return &sum[i] })
 	}
 	const lotKey = `{"lot":`
-	out := make([]json.RawMessage, len(sum))
-	for i, g := range sum {
+	var failed error
+	err := render.WriteJSONArray(w, len(sum), func(i int) any {
 		var b bytes.Buffer
 		enc := json.NewEncoder(&b)
 		enc.SetEscapeHTML(false)
-		if err := enc.Encode(g); err != nil {
-			return err
+		if err := enc.Encode(sum[i]); err != nil {
+			failed = err
+			return nil
 		}
 		raw := bytes.TrimSpace(b.Bytes())
 		if !bytes.HasPrefix(raw, []byte(lotKey)) {
-			return fmt.Errorf("internal: summary JSON does not start with the group key: %.40s", raw)
+			failed = fmt.Errorf("internal: summary JSON does not start with the group key: %.40s", raw)
+			return nil
 		}
-		out[i] = append([]byte(`{"`+string(by)+`":`), raw[len(lotKey):]...)
+		return json.RawMessage(append([]byte(`{"`+string(by)+`":`), raw[len(lotKey):]...))
+	})
+	if failed != nil {
+		return failed
 	}
-	return render.WriteJSON(w, out)
+	return err
 }

@@ -46,3 +46,25 @@ func TestWriteJSONListSameAsWriteJSON(t *testing.T) {
 		t.Error("a head whose list is not nil: no error")
 	}
 }
+
+// TestWriteJSONArraySameAsWriteJSON: a top-level list written element by
+// element gives encoding/json's bytes for the whole list (0, 1, 3 elements).
+func TestWriteJSONArraySameAsWriteJSON(t *testing.T) {
+	type item struct {
+		Lot  string    `json:"lot"`
+		Vals []float64 `json:"values"`
+	}
+	all := []item{{"A<&>", []float64{1, 2}}, {"B", nil}, {"C", []float64{}}}
+	for _, n := range []int{0, 1, 3} {
+		var want, got bytes.Buffer
+		if err := WriteJSON(&want, all[:n]); err != nil {
+			t.Fatal(err)
+		}
+		if err := WriteJSONArray(&got, n, func(i int) any { return all[i] }); err != nil {
+			t.Fatal(err)
+		}
+		if got.String() != want.String() {
+			t.Errorf("%d elements:\ngot  %q\nwant %q", n, got.String(), want.String())
+		}
+	}
+}

@@ -289,6 +289,45 @@ func (t *Table) DropColumn(i int) {
 	}
 }
 
+// WriteJSONArray writes what WriteJSON writes for a list of n elements
+// (item(i) the i-th; n = 0 writes an empty list, []), one element at a
+// time, so that the whole text is never in memory.
+func WriteJSONArray(w io.Writer, n int, item func(i int) any) error {
+	if n == 0 {
+		_, err := io.WriteString(w, "[]\n")
+		return err
+	}
+	bw := bufio.NewWriterSize(w, 1<<16)
+	bw.WriteString("[\n")
+	if err := writeJSONItems(bw, "  ", n, item); err != nil {
+		return err
+	}
+	bw.WriteString("]\n")
+	return bw.Flush()
+}
+
+// writeJSONItems writes the n elements of a list, each indented by prefix
+// and followed by a comma but the last, one per line.
+func writeJSONItems(bw *bufio.Writer, prefix string, n int, item func(i int) any) error {
+	var ib bytes.Buffer
+	enc := json.NewEncoder(&ib)
+	enc.SetIndent(prefix, "  ")
+	enc.SetEscapeHTML(false)
+	for i := range n {
+		ib.Reset()
+		if err := enc.Encode(item(i)); err != nil {
+			return err
+		}
+		bw.WriteString(prefix)
+		bw.Write(bytes.TrimSuffix(ib.Bytes(), []byte("\n")))
+		if i < n-1 {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n")
+	}
+	return nil
+}
+
 // WriteJSONList writes what WriteJSON writes for a value whose member key
 // (at the top level) is a long list, without building the whole text in
 // memory: head is the value with that list set to nil (so that it encodes
@@ -317,21 +356,8 @@ func WriteJSONList(w io.Writer, head any, key string, n int, item func(i int) an
 		return bw.Flush()
 	}
 	bw.WriteString("[\n")
-	var ib bytes.Buffer
-	enc := json.NewEncoder(&ib)
-	enc.SetIndent("    ", "  ")
-	enc.SetEscapeHTML(false)
-	for i := range n {
-		ib.Reset()
-		if err := enc.Encode(item(i)); err != nil {
-			return err
-		}
-		bw.WriteString("    ")
-		bw.Write(bytes.TrimSuffix(ib.Bytes(), []byte("\n")))
-		if i < n-1 {
-			bw.WriteString(",")
-		}
-		bw.WriteString("\n")
+	if err := writeJSONItems(bw, "    ", n, item); err != nil {
+		return err
 	}
 	bw.WriteString("  ]")
 	bw.Write(hb.Bytes()[at+len(marker):])
