@@ -140,7 +140,10 @@ func computeBasis(r *Result, opt Options) error {
 		for k, v := range b.Params {
 			r.Parameters[paramKey(k)] = lots.Float(v)
 		}
-		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g, factor %.5g", method, b.N, lv.l.Content, lv.l.Confidence, b.Factor)
+		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g", method, b.N, lv.l.Content, lv.l.Confidence)
+		if !math.IsNaN(b.Factor) {
+			reason += fmt.Sprintf(", factor %.5g", b.Factor)
+		}
 		if b.MCStdErr > 0 {
 			reason += fmt.Sprintf(", Monte Carlo standard error %.3g (%d samples, seed %d)", b.MCStdErr, int(b.Params["sims"]), uint64(b.Params["seed"]))
 		}
