@@ -314,7 +314,7 @@ func notAnalysed(prop lots.Property, cond string, opt Options, ie *lots.InputErr
 
 func methodName(m string) string {
 	if m == "" {
-		return "automatic"
+		return LotAware
 	}
 	return m
 }
