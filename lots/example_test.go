@@ -75,7 +75,7 @@ func Example() {
 		return
 	}
 	for _, r := range rep.Results {
-		fmt.Printf("%s at %s: %s, A-basis %.1f, B-basis %.1f %s\n", r.Property, r.Condition, r.Method, float64(r.ABasis), float64(r.BBasis), r.Unit)
+		fmt.Printf("%s at %s: %s (handbook choice %s), A-basis %.1f, B-basis %.1f %s\n", r.Property, r.Condition, r.Method, r.AutoMethod, float64(r.ABasis), float64(r.BBasis), r.Unit)
 	}
 	// Output:
 	// lot A: conforming
@@ -84,5 +84,5 @@ func Example() {
 	// lot D: undecided
 	// lot E: undecided
 	// lot F: not judged
-	// tensile at RT: anova, A-basis 846.6, B-basis 904.6 MPa
+	// tensile at RT: lot-aware (handbook choice anova), A-basis 846.6, B-basis 904.6 MPa
 }

@@ -1,19 +1,16 @@
 package stats
 
-import (
-	"fmt"
-	"math"
-	"math/rand/v2"
-	"sort"
-
-	"gonum.org/v1/gonum/stat/distuv"
-)
-
 // GPQOptions control the Monte Carlo evaluation of a generalized pivotal
 // quantity.
 type GPQOptions struct {
 	Sims int    // pivots drawn; 0 means 10,000
 	Seed uint64 // the result depends only on the data, the levels, Sims and Seed
+
+	// SEVTables, when given, are the tables NewSEVTable(1 - p) for the
+	// contents p of RandomEffectsLowerBounds with SEV errors, in the same
+	// order (a caller that computes many bounds at the same levels makes
+	// them once); nil: computed on each call.
+	SEVTables []SEVTable
 }
 
 // RandomEffectsLowerBound is the one-sided lower tolerance bound for the
@@ -46,82 +43,9 @@ type GPQOptions struct {
 //
 // Needs at least 2 groups, N > a, finite values not all equal.
 func RandomEffectsLowerBound(groups [][]float64, p, gamma float64, opt GPQOptions) (Bound, error) {
-	if err := checkLevels(p, gamma); err != nil {
+	b, err := RandomEffectsLowerBounds(groups, []float64{p}, gamma, WithinNormal, opt)
+	if err != nil {
 		return Bound{}, err
 	}
-	a := len(groups)
-	if a < 2 {
-		return Bound{}, fmt.Errorf("random-effects bound needs at least 2 groups, have %d: %w", a, ErrTooFew)
-	}
-	N := 0
-	var ybar, invN, sse float64
-	means := make([]float64, a)
-	for i, g := range groups {
-		if len(g) == 0 {
-			return Bound{}, fmt.Errorf("random-effects bound: group %d is empty: %w", i+1, ErrTooFew)
-		}
-		if err := checkFinite(g); err != nil {
-			return Bound{}, fmt.Errorf("random-effects bound: %w", err)
-		}
-		m, v := meanVar(g)
-		if len(g) == 1 {
-			v = 0
-		}
-		means[i] = m
-		sse += float64(len(g)-1) * v
-		ybar += m
-		invN += 1 / float64(len(g))
-		N += len(g)
-	}
-	if N <= a {
-		return Bound{}, fmt.Errorf("random-effects bound needs more values (%d) than groups (%d): %w", N, a, ErrTooFew)
-	}
-	ybar /= float64(a)
-	nh := float64(a) / invN
-	var ssy float64
-	for _, m := range means {
-		ssy += (m - ybar) * (m - ybar)
-	}
-	if sse == 0 && ssy == 0 {
-		return Bound{}, fmt.Errorf("random-effects bound: all values equal: %w", ErrZeroSpread)
-	}
-	sims := opt.Sims
-	if sims == 0 {
-		sims = 10000
-	}
-	if sims < 1000 {
-		return Bound{}, fmt.Errorf("%w: random-effects bound needs at least 1000 pivots (got %d)", ErrDomain, sims)
-	}
-	zp := distuv.UnitNormal.Quantile(p)
-	src := rand.NewPCG(opt.Seed, 0x6770710a)
-	rng := rand.New(src)
-	ut := distuv.ChiSquared{K: float64(a - 1), Src: src}
-	ue := distuv.ChiSquared{K: float64(N - a), Src: src}
-	r := make([]float64, sims)
-	for s := range r {
-		z := rng.NormFloat64()
-		re := sse / ue.Rand()
-		rm := ssy / ut.Rand()
-		rt := math.Max(0, rm-re/nh)
-		r[s] = ybar - z*math.Sqrt(rm/float64(a)) - zp*math.Sqrt(rt+re)
-	}
-	sort.Float64s(r)
-	q := 1 - gamma
-	j := int(math.Floor(q * float64(sims)))
-	if j >= sims {
-		j = sims - 1
-	}
-	d := int(math.Ceil(1.96 * math.Sqrt(float64(sims)*q*(1-q))))
-	lo, hi := max(j-d, 0), min(j+d, sims-1)
-	se := (r[hi] - r[lo]) / (2 * 1.96)
-	sdHat := math.Sqrt(math.Max(0, ssy/float64(a-1)-sse/float64(N-a)/nh) + sse/float64(N-a))
-	factor := math.NaN()
-	if sdHat > 0 {
-		factor = (ybar - r[j]) / sdHat
-	}
-	return Bound{Value: r[j], Factor: factor, Method: "random-effects", N: N, Content: p, Confidence: gamma,
-		Params: map[string]float64{"lotMeanAverage": ybar, "withinSS": sse, "lotMeanSS": ssy, "harmonicLotSize": nh,
-			"groups": float64(a), "sims": float64(sims), "seed": float64(opt.Seed)},
-		MCStdErr: se,
-		Notes:    []string{fmt.Sprintf("generalized pivotal quantity for the one-way random-effects model, %d pivots", sims)}}, nil
+	return b[0], nil
 }

@@ -48,11 +48,17 @@ B-basis: 90% content, both at 95% confidence) per property and test condition
 from a campaign's specimen results (CSV, .xlsx, or - for standard input).
 
 For each property and condition it screens outliers (maximum normed residual,
-flagged, never dropped), compares the lots (k-sample Anderson-Darling), pools
-them and picks a distribution by Anderson-Darling OSL in the order Weibull,
-normal, lognormal (then nonparametric, then Hanson-Koopmans), or uses the
-ANOVA method when the lots differ; then it tries to pool test conditions.
-Every decision is recorded: --format json carries the whole audit trail.
+flagged, never dropped), then follows the handbook procedure: it compares the
+lots (k-sample Anderson-Darling), pools them and picks a distribution by
+Anderson-Darling OSL in the order Weibull, normal, lognormal (then
+nonparametric, then Hanson-Koopmans), or uses the ANOVA method when the lots
+differ. By default (lot-aware) each value is then lowered to either of two
+bounds that allow for lot-to-lot variation whenever they are lower: the
+random-effects bound of normal lots (Krishnamoorthy and Mathew 2004) and the
+same bound on the logarithms with Weibull values within lots; --method
+handbook gives the handbook procedure's value as it is. Then it tries to pool
+test conditions. Every decision is recorded: --format json carries the whole
+audit trail.
 
 Statistical design values support, and never replace, the governing
 specification, regulations, local codes and licensed engineering judgement.`,
@@ -74,7 +80,7 @@ specification, regulations, local codes and licensed engineering judgement.`,
 	f.Float64Var(&o.Confidence, "confidence", o.Confidence, "confidence of both bounds")
 	f.StringArrayVar(&o.Exclude, "exclude", nil, "leave this specimen out (repeat; each needs a --reason)")
 	f.StringArrayVar(&o.Reasons, "reason", nil, "the reason for the matching --exclude, recorded in the audit trail")
-	f.StringVar(&o.Method, "method", "auto", "auto, or force one of: "+strings.Join(allowables.AllMethods, ", "))
+	f.StringVar(&o.Method, "method", "auto", "auto (the lot-aware default), handbook (the handbook procedure as published), or force one of: "+strings.Join(allowables.BoundMethods, ", "))
 	f.Uint64Var(&o.Seed, "seed", o.Seed, "seed of the Monte Carlo bound (weibull-exact)")
 	f.IntVar(&o.Sims, "simulations", o.Sims, "Monte Carlo samples of the weibull-exact bound")
 	f.StringVar(&o.Date, "date", "", "date written into the audit trail (default: today, or SOURCE_DATE_EPOCH)")
@@ -172,7 +178,7 @@ func allowablesTables(rep *allowables.Report, campaign *lots.Dataset, text bool)
 		if r.Pooled != nil {
 			pa, pb = pr.Stat(float64(r.Pooled.ABasis)), pr.Stat(float64(r.Pooled.BBasis))
 		}
-		t.Add(r.Property, r.Condition, r.Unit, strconv.Itoa(r.N), strconv.Itoa(r.Lots), r.Method,
+		t.Add(r.Property, r.Condition, r.Unit, strconv.Itoa(r.N), strconv.Itoa(r.Lots), methodLabel(r),
 			pr.Stat(float64(r.ABasis)), pr.Stat(float64(r.BBasis)), pa, pb,
 			pr.Stat(float64(r.Mean)), pr.Spread(float64(r.SD)), pr.Given(float64(r.Min)))
 	}
@@ -200,8 +206,8 @@ func allowablesTables(rep *allowables.Report, campaign *lots.Dataset, text bool)
 			}
 			d.Add(s.Step, s.Decision, render.N(float64(s.Statistic), 4), render.N(float64(s.Threshold), 4))
 		}
-		d.Note("A-basis %s (factor %s), B-basis %s (factor %s) by %s", pr.Stat(float64(r.ABasis)), render.Factor(float64(r.A.Factor)),
-			pr.Stat(float64(r.BBasis)), render.Factor(float64(r.B.Factor)), r.Method)
+		d.Note("A-basis %s (factor %s) by %s, B-basis %s (factor %s) by %s (%s)", pr.Stat(float64(r.ABasis)), render.Factor(float64(r.A.Factor)), orDash(r.A.Method),
+			pr.Stat(float64(r.BBasis)), render.Factor(float64(r.B.Factor)), orDash(r.B.Method), r.Method)
 		for _, wn := range r.Warnings {
 			d.Note("Warning: %s", wn)
 		}
@@ -215,4 +221,23 @@ func short(h string) string {
 		return h[:16] + "..."
 	}
 	return h
+}
+
+// methodLabel is the method column: the method, and for the lot-aware
+// default the method that gave the B-basis value (or the A-basis value).
+func methodLabel(r allowables.Result) string {
+	if r.Method != allowables.LotAware {
+		return r.Method
+	}
+	if r.B.Method != "" {
+		return r.Method + ": " + r.B.Method
+	}
+	return r.Method + ": " + orDash(r.A.Method)
+}
+
+func orDash(s string) string {
+	if s == "" {
+		return "-"
+	}
+	return s
 }

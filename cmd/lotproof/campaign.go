@@ -62,7 +62,7 @@ design-value procedure as "lotproof allowables" on each, and reports:
   - the design value as a fraction of the true percentile: the median, and
     the 10th percentile of the campaigns (a plan whose 10th percentile is low
     gives a poor design value one time in ten);
-  - how often each method was chosen, and the plan's cost.
+  - how often each method gave the B-basis value, and the plan's cost.
 
 With --target-ratio it names the cheapest plan whose median B-basis ratio
 (or A-basis, --target-basis a) reaches the target. Plans come from every
@@ -94,7 +94,7 @@ assumes the population you describe.`,
 	f.Float64Var(&o.AContent, "a-content", o.AContent, "content of the A-basis bound")
 	f.Float64Var(&o.BContent, "b-content", o.BContent, "content of the B-basis bound")
 	f.Float64Var(&o.Confidence, "confidence", o.Confidence, "confidence of both bounds")
-	f.StringVar(&o.Method, "method", o.Method, "auto, or force one of: "+strings.Join(allowables.AllMethods, ", "))
+	f.StringVar(&o.Method, "method", o.Method, "auto (the lot-aware default), handbook (the handbook procedure as published), or force one of: "+strings.Join(allowables.BoundMethods, ", "))
 	f.IntVar(&o.Runs, "runs", o.Runs, "campaigns simulated per plan")
 	f.Uint64Var(&o.Seed, "seed", o.Seed, "seed of the simulation")
 	f.Float64Var(&o.TargetRatio, "target-ratio", 0, "name the cheapest plan whose median design value reaches this fraction of the true percentile")
@@ -239,7 +239,7 @@ func campaignCSV(res *campaign.Result) *render.Table {
 		"B coverage", "B coverage standard error", "A median ratio", "A 10th percentile ratio", "A 90th percentile ratio",
 		"B median ratio", "B 10th percentile ratio", "B 90th percentile ratio", "campaigns with an A-basis value",
 		"campaigns with a B-basis value", "campaigns without a design value"}
-	for _, m := range allowables.AllMethods {
+	for _, m := range allowables.BoundMethods {
 		cols = append(cols, "campaigns by "+m)
 	}
 	t := render.NewTable("", cols...)
@@ -248,7 +248,7 @@ func campaignCSV(res *campaign.Result) *render.Table {
 			render.Exact(float64(p.CoverageA)), render.Exact(float64(p.CoverageASE)), render.Exact(float64(p.CoverageB)), render.Exact(float64(p.CoverageBSE)),
 			render.Exact(float64(p.MedianARatio)), render.Exact(float64(p.P10ARatio)), render.Exact(float64(p.P90ARatio)), render.Exact(float64(p.MedianBRatio)), render.Exact(float64(p.P10BRatio)),
 			render.Exact(float64(p.P90BRatio)), strconv.Itoa(p.DefinedA), strconv.Itoa(p.DefinedB), strconv.Itoa(p.Failed)}
-		for _, m := range allowables.AllMethods {
+		for _, m := range allowables.BoundMethods {
 			row = append(row, strconv.Itoa(p.Methods[m]))
 		}
 		t.Add(row...)

@@ -14,19 +14,25 @@ import (
 
 // Methods a design value can be computed by.
 const (
-	Weibull       = "weibull"         // two-parameter Weibull, exact tabulated factor to n = 100, handbook closed form above
-	WeibullExact  = "weibull-exact"   // two-parameter Weibull, exact pivotal bound by Monte Carlo
-	Normal        = "normal"          // normal, exact noncentral-t factor
-	Lognormal     = "lognormal"       // normal method on logarithms
-	Nonparametric = "nonparametric"   // order statistic (rank from the binomial)
-	HansonKoop    = "hanson-koopmans" // Hanson-Koopmans (1964)
-	ANOVA         = "anova"           // between/within-lot variance components
-	RandomEffects = "random-effects"  // one-way random-effects generalized pivotal bound (never chosen automatically)
-	LotAware      = "lot-aware"       // the automatic choice, lowered to the random-effects bound where that is lower (2+ lots)
+	Weibull              = "weibull"                // two-parameter Weibull, exact tabulated factor to n = 100, handbook closed form above
+	WeibullExact         = "weibull-exact"          // two-parameter Weibull, exact pivotal bound by Monte Carlo
+	Normal               = "normal"                 // normal, exact noncentral-t factor
+	Lognormal            = "lognormal"              // normal method on logarithms
+	Nonparametric        = "nonparametric"          // order statistic (rank from the binomial)
+	HansonKoop           = "hanson-koopmans"        // Hanson-Koopmans (1964)
+	ANOVA                = "anova"                  // between/within-lot variance components
+	RandomEffects        = "random-effects"         // one-way random-effects generalized pivotal bound (never chosen automatically)
+	RandomEffectsWeibull = "random-effects-weibull" // the random-effects bound on the logarithms, Weibull values within lots
+	LotAware             = "lot-aware"              // the default: the handbook choice, lowered to the lot-aware bounds where they are lower (2+ lots)
+	Handbook             = "handbook"               // the handbook procedure: the automatic choice of CMH-17-1G 8.3, used as it is
 )
 
-// AllMethods lists the methods a user may force, in documentation order.
-var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA, RandomEffects, LotAware}
+// AllMethods lists the methods a user may ask for, in documentation order.
+var AllMethods = []string{Weibull, WeibullExact, Normal, Lognormal, Nonparametric, HansonKoop, ANOVA, RandomEffects, RandomEffectsWeibull, LotAware, Handbook}
+
+// BoundMethods are the methods that compute a bound themselves (AllMethods
+// without the two procedures that choose among them), in the same order.
+var BoundMethods = AllMethods[:len(AllMethods)-2]
 
 // Level is a tolerance-bound level: content p at confidence gamma.
 type Level struct {
@@ -112,6 +118,7 @@ type Basis struct {
 	Content    float64    `json:"content"`
 	Confidence float64    `json:"confidence"`
 	MCStdErr   lots.Float `json:"mc_std_error"` // Monte Carlo standard error, null when exact
+	Method     string     `json:"method"`       // the method that gave this value ("" when not defined)
 	Note       string     `json:"note,omitempty"`
 }
 
@@ -172,6 +179,7 @@ type Result struct {
 	Steps      []Step                `json:"steps"`
 
 	values [][]float64 // per lot, display units, after exclusions
+	usedB  string      // the method that gave the B-basis value (lot-aware)
 	pooled bool        // the lots were pooled (no lot effect)
 	shape  string      // the accepted distribution, for pooling across conditions
 }
@@ -306,7 +314,7 @@ func notAnalysed(prop lots.Property, cond string, opt Options, ie *lots.InputErr
 
 func methodName(m string) string {
 	if m == "" {
-		return "automatic"
+		return LotAware
 	}
 	return m
 }
@@ -445,12 +453,21 @@ func analyzeOne(d *lots.Dataset, p int, cond string, groups []lots.Group, opt Op
 		return nil, lots.Inputf(d.Source, "check the values", "%s: %v", where, err)
 	}
 	r.AutoMethod = auto
-	r.Method = auto
-	if opt.Method != "" && opt.Method != auto {
-		r.Method = opt.Method
+	r.Method = procedureMethod(opt.Method, auto)
+	switch {
+	case r.Method == LotAware:
+		r.step("method", math.NaN(), math.NaN(), "lot-aware (the default)",
+			"the handbook procedure's "+auto+" bound, lowered to either of two bounds that allow for lot-to-lot variation wherever it is lower: "+
+				"the random-effects bound for normal lots by generalized pivotal quantities (Krishnamoorthy and Mathew 2004, Technometrics 46), "+
+				"and the same bound on the logarithms of the values with Weibull values within lots and a lognormal lot factor "+
+				"(smallest-extreme-value errors, their variance's spread matched by Satterthwaite's 1946 method); the lowest of the three bounds holds its confidence wherever any of them does")
+	case opt.Method == Handbook:
+		r.step("method", math.NaN(), math.NaN(), "handbook procedure chosen by the user",
+			"the automatic choice of the handbook procedure, used as it is: "+auto)
+	case r.Method != auto:
 		r.step("method", math.NaN(), math.NaN(), "method forced to "+opt.Method,
-			"the user chose the method; the automatic choice would have been "+auto)
-		r.warn("method forced to %s by the user; the automatic procedure would have used %s", opt.Method, auto)
+			"the user chose the method; the handbook procedure would have used "+auto)
+		r.warn("method forced to %s by the user; the handbook procedure would have used %s", opt.Method, auto)
 	}
 	if err := computeBasis(r, opt); err != nil {
 		return nil, lots.Inputf(d.Source, "choose another method with --method, or test more specimens", "%s: %v", where, err)

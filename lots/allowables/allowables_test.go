@@ -46,11 +46,12 @@ func stepNamed(r Result, prefix string) *Step {
 	return nil
 }
 
-// The automatic choice uses the ANOVA method when the lot effect is clear
+// The handbook procedure uses the ANOVA method when the lot effect is clear
 // (lot SD three times the within-lot SD) and pools when there is none.
 // Simulated populations: checks of the decision logic, not references.
 func TestChoosesANOVAOnLotEffectAndPoolsWithout(t *testing.T) {
 	opt := DefaultOptions()
+	opt.Method = Handbook
 	rep, err := Analyze(read(t, campaignCSV(3, 8, 6, 500, 30, 10, "RT")), opt, "2026-12-02")
 	if err != nil {
 		t.Fatal(err)

@@ -45,6 +45,19 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 		// the one-way random-effects model by generalized pivots
 		// (stats.RandomEffectsLowerBound), normal lots.
 		return stats.RandomEffectsLowerBound(values, l.Content, l.Confidence, stats.GPQOptions{Sims: opt.Sims, Seed: opt.Seed})
+	case RandomEffectsWeibull:
+		// The random-effects bound on the logarithms with Weibull values
+		// within lots (stats.RandomEffectsLowerBounds).
+		logs, err := logValues(values)
+		if err != nil {
+			return stats.Bound{}, err
+		}
+		bs, err := stats.RandomEffectsLowerBounds(logs, []float64{l.Content}, l.Confidence, stats.WithinSEV,
+			stats.GPQOptions{Sims: opt.Sims, Seed: opt.Seed, SEVTables: []stats.SEVTable{sevTable(1 - l.Content)}})
+		if err != nil {
+			return stats.Bound{}, err
+		}
+		return expBound(bs[0]), nil
 	}
 	return stats.Bound{}, fmt.Errorf("unknown method %q", method)
 }
@@ -53,8 +66,14 @@ func bound(method string, values [][]float64, l Level, opt Options) (stats.Bound
 // nonparametric methods use the order statistic where n is large enough
 // for the level and Hanson-Koopmans below that (A-basis below 299 values,
 // B-basis below 29; CMH-17-1G 8.3.4.5), as stats.NonparametricLowerBound
-// decides; the method actually used is recorded per level.
+// decides; the method actually used is recorded per level. The lot-aware
+// method (the default) takes, per level, the lowest of the handbook bound
+// and the lot-aware bounds (lotAwareBounds).
 func computeBasis(r *Result, opt Options) error {
+	var guards map[string][]candidate
+	if r.Method == LotAware {
+		guards = lotAwareBounds(r, opt)
+	}
 	for _, lv := range []struct {
 		name string
 		l    Level
@@ -66,24 +85,29 @@ func computeBasis(r *Result, opt Options) error {
 			method = r.AutoMethod
 		}
 		b, err := bound(method, r.values, lv.l, opt)
-		if r.Method == LotAware && r.Lots >= 2 {
-			// The lower of the automatic bound and the random-effects
-			// bound: its coverage is at least the larger of the two
-			// methods' coverages (the minimum lies below the percentile
-			// whenever either does).
-			re, rerr := bound(RandomEffects, r.values, lv.l, opt)
-			switch {
-			case rerr != nil:
-				r.step(lv.name+"-basis: lot-aware check", math.NaN(), math.NaN(), "random-effects bound not defined", rerr.Error())
-			case err != nil || re.Value < b.Value:
-				why := "lower than the " + method + " bound"
-				if err != nil {
-					why = "the " + method + " bound is not defined"
+		if r.Method == LotAware {
+			// The lowest of the handbook bound and the lot-aware bounds:
+			// its coverage is at least the largest of their coverages (the
+			// lowest lies below the percentile whenever any of them does).
+			for _, c := range guards[lv.name] {
+				switch {
+				case c.err != nil:
+					r.step(lv.name+"-basis: "+c.words, math.NaN(), math.NaN(), "not defined", c.err.Error())
+				case err != nil || c.b.Value < b.Value:
+					why := "lower than the " + method + " bound"
+					if err != nil {
+						why = "the " + method + " bound is not defined"
+					}
+					r.step(lv.name+"-basis: "+c.words, c.b.Value, math.NaN(), c.b.Method+" bound used", why)
+					b, err, method = c.b, nil, c.b.Method
+				default:
+					r.step(lv.name+"-basis: "+c.words, c.b.Value, b.Value, method+" bound kept", "the "+c.words+" bound is not lower")
 				}
-				r.step(lv.name+"-basis: lot-aware check", re.Value, math.NaN(), "random-effects bound used", why)
-				b, err = re, nil
-			default:
-				r.step(lv.name+"-basis: lot-aware check", re.Value, b.Value, method+" bound kept", "the random-effects bound is not lower")
+			}
+			if err == nil {
+				if lv.name == "B" {
+					r.usedB = method
+				}
 			}
 		}
 		if err == nil && b.Method != "" {
@@ -100,7 +124,7 @@ func computeBasis(r *Result, opt Options) error {
 			r.warn("no %s-basis value: %v", lv.name, err)
 			continue
 		}
-		lv.dst.Value, lv.dst.Factor = lots.Float(b.Value), lots.Float(b.Factor)
+		lv.dst.Value, lv.dst.Factor, lv.dst.Method = lots.Float(b.Value), lots.Float(b.Factor), method
 		if b.MCStdErr > 0 {
 			lv.dst.MCStdErr = lots.Float(b.MCStdErr)
 		}
@@ -116,7 +140,10 @@ func computeBasis(r *Result, opt Options) error {
 		for k, v := range b.Params {
 			r.Parameters[paramKey(k)] = lots.Float(v)
 		}
-		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g, factor %.5g", method, b.N, lv.l.Content, lv.l.Confidence, b.Factor)
+		reason := fmt.Sprintf("%s method, n %d, content %g, confidence %g", method, b.N, lv.l.Content, lv.l.Confidence)
+		if !math.IsNaN(b.Factor) {
+			reason += fmt.Sprintf(", factor %.5g", b.Factor)
+		}
 		if b.MCStdErr > 0 {
 			reason += fmt.Sprintf(", Monte Carlo standard error %.3g (%d samples, seed %d)", b.MCStdErr, int(b.Params["sims"]), uint64(b.Params["seed"]))
 		}

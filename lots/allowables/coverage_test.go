@@ -20,17 +20,19 @@ type coverageCase struct {
 	lotSD float64
 }
 
-// procedureCoverage runs the whole automatic procedure on reps simulated
-// campaigns and returns the fraction of A- and B-basis values that lie
+// procedureCoverage runs the whole procedure (the lot-aware default, or
+// the method given, e.g. handbook) on reps simulated campaigns and returns the fraction of A- and B-basis values that lie
 // below the true population quantiles (the population of individual
-// values is N(100, lotSD^2 + 25)), and how often each method was chosen.
-func procedureCoverage(c coverageCase, reps int, seed uint64) (a, b float64, methods map[string]int) {
+// values is N(100, lotSD^2 + 25)), and how often each method gave the
+// B-basis value.
+func procedureCoverage(c coverageCase, reps int, seed uint64, method string) (a, b float64, methods map[string]int) {
 	const within = 5.0
 	rng := rand.New(rand.NewPCG(seed, uint64(c.k*1000+c.m)))
 	sd := math.Hypot(c.lotSD, within)
 	qa := 100 + sd*distuv.UnitNormal.Quantile(0.01)
 	qb := 100 + sd*distuv.UnitNormal.Quantile(0.10)
 	opt := DefaultOptions()
+	opt.Method = method
 	u, _ := units.Parse("MPa")
 	methods = map[string]int{}
 	var okA, okB, defA, defB int
@@ -48,7 +50,7 @@ func procedureCoverage(c coverageCase, reps int, seed uint64) (a, b float64, met
 			continue
 		}
 		res := rep.Results[0]
-		methods[res.Method]++
+		methods[res.B.Method]++
 		if v := float64(res.ABasis); !math.IsNaN(v) {
 			defA++
 			if v <= qa {
@@ -78,7 +80,7 @@ func TestProcedureCoverage(t *testing.T) {
 		t.Skip("coverage simulation skipped with -short")
 	}
 	for _, c := range []coverageCase{{10, 6, 0}, {10, 6, 5}} {
-		a, b, m := procedureCoverage(c, 200, 42)
+		a, b, m := procedureCoverage(c, 200, 42, "")
 		t.Logf("k=%d m=%d lotSD=%g: A %.3f B %.3f methods %v", c.k, c.m, c.lotSD, a, b, m)
 		// 200 campaigns: a binomial SD of about 0.015 at 0.95; a coverage
 		// below 0.80 means the procedure is badly wrong.
@@ -88,16 +90,20 @@ func TestProcedureCoverage(t *testing.T) {
 	}
 }
 
+// BenchmarkProcedureCoverage prints the coverage of the default procedure,
+// or of the method in LOTPROOF_COVERAGE_METHOD (handbook: the README's
+// table), LOTPROOF_COVERAGE_REPS campaigns per case.
 func BenchmarkProcedureCoverage(b *testing.B) {
 	reps := 2000
 	if s := os.Getenv("LOTPROOF_COVERAGE_REPS"); s != "" {
 		fmt.Sscan(s, &reps)
 	}
+	method := os.Getenv("LOTPROOF_COVERAGE_METHOD")
 	for i := 0; i < b.N; i++ {
-		fmt.Printf("\nwhole-procedure coverage, %d campaigns per case (nominal 0.95)\n", reps)
+		fmt.Printf("\nwhole-procedure coverage (%s), %d campaigns per case (nominal 0.95)\n", methodName(method), reps)
 		fmt.Printf("%5s %5s %7s %8s %8s  methods\n", "lots", "per", "lotSD/sd", "A cover", "B cover")
 		for _, c := range coverageCases {
-			a, bb, m := procedureCoverage(c, reps, 2026)
+			a, bb, m := procedureCoverage(c, reps, 2026, method)
 			fmt.Printf("%5d %5d %8.2f %8.3f %8.3f  %v\n", c.k, c.m, c.lotSD/5, a, bb, m)
 		}
 	}

@@ -13,8 +13,9 @@ import (
 // without the audit trail: the design values and the method used.
 type Outcome struct {
 	A, B       float64 // NaN when not defined
-	Method     string  // the method used (forced or automatic)
-	AutoMethod string  // the automatic choice
+	Method     string  // the method asked for: lot-aware (the default), a forced method, or the handbook procedure's choice
+	Used       string  // the method that gave the B-basis value (for lot-aware: the handbook choice or a lot-aware bound)
+	AutoMethod string  // the handbook procedure's choice
 }
 
 // DesignValues runs the same steps as Analyze for one property at one
@@ -53,13 +54,14 @@ func DesignValues(values [][]float64, opt Options) (Outcome, error) {
 	if err != nil {
 		return out, err
 	}
-	r.AutoMethod, r.Method = auto, auto
-	if opt.Method != "" {
-		r.Method = opt.Method
-	}
+	r.AutoMethod, r.Method = auto, procedureMethod(opt.Method, auto)
 	out.Method, out.AutoMethod = r.Method, auto
 	if err := computeBasis(r, opt); err != nil {
 		return out, err
+	}
+	out.Used = out.Method
+	if r.usedB != "" {
+		out.Used = r.usedB
 	}
 	out.A, out.B = float64(r.ABasis), float64(r.BBasis)
 	return out, nil
@@ -68,3 +70,16 @@ func DesignValues(values [][]float64, opt Options) (Outcome, error) {
 // Check reports whether the options can be used (levels strictly between
 // 0 and 1, a known method, enough Monte Carlo samples).
 func (opt Options) Check() error { return checkOptions(opt) }
+
+// procedureMethod is the method a result is computed by: the lot-aware
+// method by default, the handbook's automatic choice for Handbook, else
+// the forced method.
+func procedureMethod(forced, auto string) string {
+	switch forced {
+	case "":
+		return LotAware
+	case Handbook:
+		return auto
+	}
+	return forced
+}

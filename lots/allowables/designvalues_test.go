@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"lotproof/lots"
@@ -46,10 +47,10 @@ func TestDesignValuesMatchesAnalyze(t *testing.T) {
 		}
 		r := rep.Results[0]
 		same := func(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b)) }
-		if got.Method != r.Method || !same(got.A, float64(r.ABasis)) || !same(got.B, float64(r.BBasis)) {
-			t.Errorf("trial %d (%dx%d): DesignValues %s %g %g, Analyze %s %g %g", trial, k, m, got.Method, got.A, got.B, r.Method, float64(r.ABasis), float64(r.BBasis))
+		if got.Method != r.Method || !same(got.A, float64(r.ABasis)) || !same(got.B, float64(r.BBasis)) || !strings.HasPrefix(r.B.Note, "by "+got.Used) {
+			t.Errorf("trial %d (%dx%d): DesignValues %s (%s) %g %g, Analyze %s (%s) %g %g", trial, k, m, got.Method, got.Used, got.A, got.B, r.Method, r.B.Note, float64(r.ABasis), float64(r.BBasis))
 		}
-		seen[r.Method] = true
+		seen[got.Used] = true
 	}
 	if len(seen) < 3 {
 		t.Errorf("only methods %v were exercised", seen)
@@ -57,9 +58,12 @@ func TestDesignValuesMatchesAnalyze(t *testing.T) {
 	t.Logf("methods exercised: %v", seen)
 }
 
-// The lot-aware method gives, per level, the lower of the automatic bound
-// and the random-effects bound (2 or more lots), so A stays below B.
-func TestLotAwareIsTheLowerBound(t *testing.T) {
+// The lot-aware method (the default) gives, per level, the lowest of the
+// handbook procedure's bound, the random-effects bound of normal lots and
+// the random-effects bound on the logarithms with Weibull values within
+// lots (2 or more lots; each also available as a forced method, computed
+// from the same pivots), so A stays below B. Normal and Weibull lots.
+func TestLotAwareIsTheLowestBound(t *testing.T) {
 	rng := rand.New(rand.NewPCG(8, 9))
 	for trial := 0; trial < 30; trial++ {
 		k, m := 2+trial%5, 3+trial%4
@@ -68,31 +72,40 @@ func TestLotAwareIsTheLowerBound(t *testing.T) {
 			mu := 100 + float64(trial%3)*3*rng.NormFloat64()
 			var lot []float64
 			for j := 0; j < m; j++ {
-				lot = append(lot, mu+5*rng.NormFloat64())
+				v := mu + 5*rng.NormFloat64()
+				if trial%2 == 1 {
+					v = mu * math.Pow(-math.Log(1-rng.Float64()), 1.0/15)
+				}
+				lot = append(lot, v)
 			}
 			vals = append(vals, lot)
 		}
 		opt := DefaultOptions()
-		auto, err := DesignValues(vals, opt)
+		la, err := DesignValues(vals, opt)
 		if err != nil {
 			continue
 		}
-		opt.Method = RandomEffects
-		re, err := DesignValues(vals, opt)
-		if err != nil {
-			t.Fatal(err)
+		want := [2]float64{math.Inf(1), math.Inf(1)}
+		used := ""
+		for _, m := range []string{Handbook, RandomEffects, RandomEffectsWeibull} {
+			opt.Method = m
+			opt.Sims = 10000
+			if m != Handbook {
+				opt.Sims = LotAwareSims(10000) // the pivots the lot-aware bounds draw
+			}
+			o, err := DesignValues(vals, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if o.A < want[0] {
+				want[0] = o.A
+			}
+			if o.B < want[1] {
+				want[1], used = o.B, o.Used
+			}
 		}
-		opt.Method = LotAware
-		la, err := DesignValues(vals, opt)
-		if err != nil {
-			t.Fatal(err)
-		}
-		wantA, wantB := math.Min(auto.A, re.A), math.Min(auto.B, re.B)
-		if math.IsNaN(auto.A) {
-			wantA = re.A
-		}
-		if la.A != wantA || la.B != wantB || !(la.A <= la.B) {
-			t.Errorf("trial %d: lot-aware A %g B %g; automatic %g %g, random-effects %g %g", trial, la.A, la.B, auto.A, auto.B, re.A, re.B)
+		if la.A != want[0] || la.B != want[1] || la.Used != used || la.Method != LotAware || !(la.A <= la.B) {
+			t.Errorf("trial %d: lot-aware A %g B %g by %s; lowest %g %g by %s", trial, la.A, la.B, la.Used, want[0], want[1], used)
 		}
 	}
 }

@@ -13,8 +13,10 @@ import (
 // Design values from a multi-lot campaign: the NIST StRD data set SiRstv
 // (silicon resistivity, 5 instruments x 5 replicates, read from
 // testdata/stats/nist_anova), with the instruments in the role of lots.
-// The lots are pooled; the automatic procedure then takes the Weibull
+// The lots are pooled; the handbook procedure then takes the Weibull
 // distribution (checked first, and accepted by its Anderson-Darling OSL).
+// The default lot-aware method keeps that bound here: both random-effects
+// bounds are higher.
 // With the normal distribution forced, the A- and B-basis values agree
 // with scipy's in testdata/allowables/ref.json (195.85558 and 195.99500).
 func ExampleDesignValues() {
@@ -28,9 +30,17 @@ func ExampleDesignValues() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("%s: A-basis %.5f, B-basis %.5f\n", out.Method, out.A, out.B)
+	fmt.Printf("%s (B-basis by %s, handbook choice %s): A-basis %.5f, B-basis %.5f\n", out.Method, out.Used, out.AutoMethod, out.A, out.B)
 
 	opt := allowables.DefaultOptions()
+	opt.Method = allowables.Handbook
+	out, err = allowables.DesignValues(groups, opt)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("handbook %s: A-basis %.5f, B-basis %.5f\n", out.Method, out.A, out.B)
+
 	opt.Method = allowables.Normal
 	out, err = allowables.DesignValues(groups, opt)
 	if err != nil {
@@ -39,7 +49,8 @@ func ExampleDesignValues() {
 	}
 	fmt.Printf("%s: A-basis %.5f, B-basis %.5f\n", out.Method, out.A, out.B)
 	// Output:
-	// weibull: A-basis 195.62871, B-basis 195.93036
+	// lot-aware (B-basis by weibull, handbook choice weibull): A-basis 195.62871, B-basis 195.93036
+	// handbook weibull: A-basis 195.62871, B-basis 195.93036
 	// normal: A-basis 195.85558, B-basis 195.99500
 }
 

@@ -39,7 +39,7 @@ func TestSmallSampleDistributionChoice(t *testing.T) {
 	if s, ok := stepOf(r, "goodness of fit: weibull"); !ok || s.Decision != "fits: chosen" {
 		t.Errorf("Weibull step: %+v", s)
 	}
-	if r.Method != Weibull || !(float64(r.ABasis) < float64(r.BBasis)) {
+	if r.AutoMethod != Weibull || r.Method != LotAware || !(float64(r.ABasis) < float64(r.BBasis)) {
 		t.Errorf("method %s, A %v, B %v", r.Method, r.ABasis, r.BBasis)
 	}
 	// Four equal-ish values and one far above: the Weibull (long lower
@@ -53,7 +53,7 @@ func TestSmallSampleDistributionChoice(t *testing.T) {
 		t.Fatalf("Weibull step: %+v", s)
 	}
 	s, ok := stepOf(r, "distribution choice")
-	if !ok || r.Method != HansonKoop || !strings.Contains(s.Decision, "could be tested") {
+	if !ok || r.AutoMethod != HansonKoop || !strings.Contains(s.Decision, "could be tested") {
 		t.Errorf("method %s, step %+v", r.Method, s)
 	}
 	if !strings.Contains(strings.Join(r.Warnings, " "), "cannot be checked is not assumed") {

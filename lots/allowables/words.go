@@ -32,6 +32,11 @@ var paramWords = map[string]string{
 	"achievedConfidence": "achieved confidence",
 	"minN":               "fewest values for the order statistic",
 	"minNOrderStatistic": "fewest values for the order statistic",
+	"lotMeanAverage":     "average of the lot means",
+	"withinSS":           "within-lot sum of squares",
+	"lotMeanSS":          "sum of squares of the lot means",
+	"harmonicLotSize":    "harmonic mean lot size",
+	"withinDF":           "within-lot degrees of freedom",
 }
 
 // paramWord is a parameter's name in words: from paramWords, else the

@@ -64,7 +64,7 @@ type PlanResult struct {
 	P10BRatio    lots.Float `json:"p10_b_ratio"`
 	P90BRatio    lots.Float `json:"p90_b_ratio"`
 
-	Methods map[string]int `json:"methods"` // campaigns per method used
+	Methods map[string]int `json:"methods"` // campaigns per method that gave the B-basis value (under lot-aware: the handbook choice or a lot-aware bound)
 	Failed  int            `json:"failed"`  // campaigns that gave no design value at all
 }
 
@@ -181,10 +181,10 @@ func Run(c Config) (*Result, error) {
 					rng := rand.New(rand.NewPCG(c.Seed, uint64(pi)<<32|uint64(r)))
 					o, err := allowables.DesignValues(m.sample(rng, p.Lots, p.Specimens), opt)
 					if err != nil {
-						outs[pi][r] = outcome{a: math.NaN(), b: math.NaN(), method: o.Method}
+						outs[pi][r] = outcome{a: math.NaN(), b: math.NaN(), method: o.Used}
 						continue
 					}
-					outs[pi][r] = outcome{a: o.A / qa, b: o.B / qb, method: o.Method}
+					outs[pi][r] = outcome{a: o.A / qa, b: o.B / qb, method: o.Used}
 				}
 				if c.Done != nil {
 					mu.Lock()
@@ -207,7 +207,7 @@ func Run(c Config) (*Result, error) {
 
 func methodName(m string) string {
 	if m == "" {
-		return "automatic"
+		return allowables.LotAware
 	}
 	return m
 }

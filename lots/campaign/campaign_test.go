@@ -159,9 +159,9 @@ func TestForcedNormalMatchesTheory(t *testing.T) {
 	}
 }
 
-// The named lot-aware method (the random-effects generalized pivotal
-// bound) keeps its confidence where the automatic procedure is known to
-// fall short: 5 lots of 6 with the between-lot SD equal to the within-lot
+// The named random-effects method (the generalized pivotal bound for
+// normal lots) keeps its confidence where the handbook procedure is known
+// to fall short: 5 lots of 6 with the between-lot SD equal to the within-lot
 // SD (README coverage table). 400 campaigns: allowed 0.95 - 3 SE.
 func TestRandomEffectsMethodCoverage(t *testing.T) {
 	if testing.Short() {

@@ -40,7 +40,7 @@ func AllowablesSection(rep *allowables.Report, campaign *lots.Dataset) (Section,
 	for _, r := range rep.Results {
 		method := r.Method
 		if r.AutoMethod != "" && r.AutoMethod != r.Method {
-			method += " (automatic choice: " + r.AutoMethod + ")"
+			method += " (handbook choice: " + r.AutoMethod + ")"
 		}
 		row := Cells(r.Property+unitText(r.Unit), condText(r.Condition), strconv.Itoa(r.N), strconv.Itoa(r.Lots), method)
 		pr := CampaignResolution(campaign, r)
