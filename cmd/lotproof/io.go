@@ -2,7 +2,6 @@ package main
 
 import (
 	"bufio"
-	"bytes"
 	"fmt"
 	"io"
 	"os"
@@ -95,44 +94,65 @@ func emit(w io.Writer, render func(io.Writer) error) error {
 }
 
 // spillBuffer holds output until it is complete: up to spillAt bytes in
-// memory, the rest in a temporary file (unlinked at once, so it goes away
-// with the process), so that a large result (JSON of a hundred thousand
-// lots) does not have to fit in memory twice. When no temporary file can
-// be made it keeps everything in memory.
+// memory (in chunks, so that nothing is copied as it grows), the rest in a
+// temporary file (unlinked at once, so it goes away with the process), so
+// that a large result (JSON of a hundred thousand lots) does not have to
+// fit in memory twice. When no temporary file can be made it keeps
+// everything in memory.
 type spillBuffer struct {
-	mem  bytes.Buffer
+	mem  [][]byte // chunks of spillChunk bytes (the last one filling)
+	n    int      // bytes in mem
 	f    *os.File
 	fw   *bufio.Writer
 	fail bool // no temporary file could be made
 }
 
-const spillAt = 8 << 20
+const (
+	spillAt    = 8 << 20
+	spillChunk = 256 << 10
+)
 
 func (b *spillBuffer) Write(p []byte) (int, error) {
-	if b.f == nil && (b.fail || b.mem.Len()+len(p) <= spillAt) {
-		return b.mem.Write(p)
-	}
-	if b.f == nil {
-		f, err := os.CreateTemp("", "lotproof-out-*")
-		if err != nil {
+	if b.f == nil && !b.fail && b.n+len(p) > spillAt {
+		if f, err := os.CreateTemp("", "lotproof-out-*"); err != nil {
 			b.fail = true
-			return b.mem.Write(p)
+		} else {
+			os.Remove(f.Name())
+			b.f, b.fw = f, bufio.NewWriterSize(f, 1<<16)
+			for _, c := range b.mem {
+				if _, err := b.fw.Write(c); err != nil {
+					return 0, err
+				}
+			}
+			b.mem, b.n = nil, 0
 		}
-		os.Remove(f.Name())
-		b.f, b.fw = f, bufio.NewWriterSize(f, 1<<16)
-		if _, err := b.fw.Write(b.mem.Bytes()); err != nil {
-			return 0, err
-		}
-		b.mem = bytes.Buffer{}
 	}
-	return b.fw.Write(p)
+	if b.f != nil {
+		return b.fw.Write(p)
+	}
+	w := len(p)
+	for len(p) > 0 {
+		if len(b.mem) == 0 || len(b.mem[len(b.mem)-1]) == cap(b.mem[len(b.mem)-1]) {
+			b.mem = append(b.mem, make([]byte, 0, spillChunk))
+		}
+		last := &b.mem[len(b.mem)-1]
+		k := min(len(p), cap(*last)-len(*last))
+		*last = append(*last, p[:k]...)
+		p = p[k:]
+	}
+	b.n += w
+	return w, nil
 }
 
 // writeTo copies the whole output to w.
 func (b *spillBuffer) writeTo(w io.Writer) error {
 	if b.f == nil {
-		_, err := w.Write(b.mem.Bytes())
-		return err
+		for _, c := range b.mem {
+			if _, err := w.Write(c); err != nil {
+				return err
+			}
+		}
+		return nil
 	}
 	if err := b.fw.Flush(); err != nil {
 		return err
