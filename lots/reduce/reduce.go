@@ -77,6 +77,9 @@ type Result struct {
 	TensileN      int     // working points in the Rm fit
 	FitMethod     string  // how the elastic window was chosen
 
+	lin    window  // the straight window found automatically
+	linErr float64 // its combined relative error
+
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	tooMany                                                       bool     // more than maxGlitches glitches
 	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
@@ -104,7 +107,11 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 //     consecutive points, so that the noise of the working curve falls
 //     with the sampling rate (see workingPoints);
 //   - the modulus E as the least-squares slope over the straight stress
-//     window (ASTM E111, see autoElastic and fitLine), with toe compensation
+//     window (ASTM E111, see autoElastic and fitLine), or, where it is the
+//     more precise or the straight window is not elastic, the tangent at
+//     zero stress of a Ramberg-Osgood curve fitted up to just past the
+//     proof strength (Ramberg and Osgood; Hill; see gradualFit and fitRO),
+//     with toe compensation
 //     (the strain origin moved to the strain intercept of that line, as
 //     in ASTM E111 and the ASTM E8/E8M offset-method figure);
 //   - proof strength by the offset method (ISO 6892-1 clause 12; ASTM
@@ -265,7 +272,13 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	if ok {
 		res.fitLine(x[lo:hi], s[lo:hi])
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
-		res.Fit.Auto = !(opt.ModulusTo > opt.ModulusFrom)
+		auto := !(opt.ModulusTo > opt.ModulusFrom)
+		if auto && res.Fit.Slope > 0 {
+			if l2, h2, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
+				lo, hi = l2, h2
+			}
+		}
+		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
 			res.warn("no linear region found: the fitted slope is not positive")
 			ok = false
