@@ -23,10 +23,16 @@ type roMaterial struct {
 }
 
 func (mt roMaterial) spec(points int, noiseFrac float64, seed uint64) SynthSpec {
+	return mt.sampled(points, noiseFrac, seed, false)
+}
+
+// sampled is spec, with the points evenly in time under the strain rates
+// of ISO 6892-1 method A when rate is set (see Synthesize).
+func (mt roMaterial) sampled(points int, noiseFrac float64, seed uint64, rate bool) SynthSpec {
 	rm := mt.Rp * math.Pow(mt.Ag/0.002, 1/mt.m)
 	return SynthSpec{ID: fmt.Sprintf("%s-%d", mt.name, points), Lot: "L", Diameter: mt.diam, Gauge: mt.gage,
 		E: mt.E, Rp: mt.Rp, Rm: rm, Uniform: mt.Ag, Elongation: mt.A, ReductionOfArea: 0.5,
-		Points: points, Noise: noiseFrac * rm, Seed: seed}
+		Points: points, Noise: noiseFrac * rm, Seed: seed, ConstantRate: rate}
 }
 
 // roMaterials span hardening exponents 5 to 30 and moduli 70 to 210 GPa.
@@ -85,31 +91,31 @@ type limits struct{ E, Rp, Rm, A float64 }
 
 // accLimits are the targets of the issue (clean: E 0.5 %, Rp0.2 0.2 %, Rm
 // 0.1 %, A 0.2 %; noise up to 0.2 % of Rm: E 1 %, Rp0.2 0.5 %, Rm 0.5 %),
-// except where this package does not meet them: the modulus and, through
-// it, the proof strength of the gradually yielding materials (hardening
-// exponent 5 and 6) with noise, and of every material in sparse noisy
-// records (500 points). There the limit is the measured worst error with
-// some room, so that a regression fails the test; the README and the
-// closing note of the issue say so.
+// except where this package does not meet them: the modulus of the
+// gradually yielding materials (hardening exponent 5 and 6) with noise of
+// 0.2 % of Rm in records of 2,000 points or fewer, where the points below
+// the proof strength are too few to pin the tangent at zero stress within
+// 1 % (the fit's own standard error is 0.5 % to 2 % there). There the
+// limit is the measured worst error (1.5 %) with some room, so that a
+// regression fails the test; the README and the closing note of the issue
+// say so.
 func accLimits(c accCase, gradual bool) limits {
 	if c.noise == 0 {
 		return limits{0.5, 0.2, 0.1, 0.2}
 	}
 	l := limits{1, 0.5, 0.5, 0.5}
-	switch {
-	case c.points <= 500 && gradual:
-		l.E, l.Rp = 30, 2
-	case c.points <= 500:
-		l.E, l.Rp = 3, 0.5
-	case gradual:
-		l.E = 2.5
+	if gradual && c.points <= 2000 && c.noise > 0.001 {
+		l.E = 2
 	}
 	return l
 }
 
 // TestAccuracyTable reduces analytic Ramberg-Osgood curves of hardening
 // exponents 5 to 30 with 500 to 1,000,000 points and normal force noise of
-// 0, 0.1 % and 0.2 % of Rm, and checks the largest errors against
+// 0, 0.1 % and 0.2 % of Rm, sampled two ways: evenly in strain, and
+// evenly in time under the strain rates of ISO 6892-1 method A (range 2,
+// 0.00025 per second, to just past the proof strength, range 4, 0.0067
+// per second, after; clause 10.3, from memory), and checks the largest errors against
 // accLimits; nothing may be missing. The properties checked are those of
 // ASTM E111 (modulus, least squares over the straight range), ISO 6892-1
 // clause 12 / ASTM E8/E8M 7.7 (offset proof strength), ISO 6892-1 clause
@@ -121,34 +127,40 @@ func accLimits(c accCase, gradual bool) limits {
 // materials (exponents 5 and 20) unless LOTPROOF_ACCURACY_FULL=1.
 func TestAccuracyTable(t *testing.T) {
 	var b strings.Builder
-	fmt.Fprintf(&b, "%9s %7s %6s %-8s | %7s %7s %7s %7s %7s | %s\n", "points", "noise%", "seeds", "n", "E%", "Rp0.2%", "Rm%", "Ag%", "A%", "missing")
+	fmt.Fprintf(&b, "%-8s %9s %7s %6s %-8s | %7s %7s %7s %7s %7s | %s\n", "sampling", "points", "noise%", "seeds", "n", "E%", "Rp0.2%", "Rm%", "Ag%", "A%", "missing")
 	full := os.Getenv("LOTPROOF_ACCURACY_FULL") != ""
-	for _, c := range accCases {
-		if c.heavy && testing.Short() {
-			continue
-		}
-		for _, gradual := range []bool{true, false} {
-			var row errRow
-			for _, mt := range roMaterials {
-				if (mt.m <= 6) != gradual {
-					continue
-				}
-				if c.heavy && !full && mt.m != 5 && mt.m != 20 {
-					continue
-				}
-				for seed := 1; seed <= c.seeds; seed++ {
-					reduceErrors(t, mt.spec(c.points, c.noise, uint64(seed)), &row)
-				}
+	for _, rate := range []bool{false, true} {
+		for _, c := range accCases {
+			if c.heavy && testing.Short() {
+				continue
 			}
-			grp := "8-30"
-			if gradual {
-				grp = "5-6"
-			}
-			fmt.Fprintf(&b, "%9d %7.2f %6d %-8s | %7.3f %7.3f %7.3f %7.3f %7.3f | %s\n", c.points, 100*c.noise, c.seeds, grp, row.E, row.Rp, row.Rm, row.Ag, row.A, strings.Join(row.missing, " "))
-			l := accLimits(c, gradual)
-			if row.E > l.E || row.Rp > l.Rp || row.Rm > l.Rm || row.A > l.A || len(row.missing) > 0 {
-				t.Errorf("%d points, noise %.2f %%, exponents %s: E %.3f %% (limit %.1f), Rp0.2 %.3f %% (%.1f), Rm %.3f %% (%.1f), A %.3f %% (%.1f), missing %q",
-					c.points, 100*c.noise, grp, row.E, l.E, row.Rp, l.Rp, row.Rm, l.Rm, row.A, l.A, row.missing)
+			for _, gradual := range []bool{true, false} {
+				var row errRow
+				for _, mt := range roMaterials {
+					if (mt.m <= 6) != gradual {
+						continue
+					}
+					if c.heavy && !full && mt.m != 5 && mt.m != 20 {
+						continue
+					}
+					for seed := 1; seed <= c.seeds; seed++ {
+						reduceErrors(t, mt.sampled(c.points, c.noise, uint64(seed), rate), &row)
+					}
+				}
+				grp := "8-30"
+				if gradual {
+					grp = "5-6"
+				}
+				smp := "strain"
+				if rate {
+					smp = "time"
+				}
+				fmt.Fprintf(&b, "%-8s %9d %7.2f %6d %-8s | %7.3f %7.3f %7.3f %7.3f %7.3f | %s\n", smp, c.points, 100*c.noise, c.seeds, grp, row.E, row.Rp, row.Rm, row.Ag, row.A, strings.Join(row.missing, " "))
+				l := accLimits(c, gradual)
+				if row.E > l.E || row.Rp > l.Rp || row.Rm > l.Rm || row.A > l.A || len(row.missing) > 0 {
+					t.Errorf("sampled evenly in %s, %d points, noise %.2f %%, exponents %s: E %.3f %% (limit %.1f), Rp0.2 %.3f %% (%.1f), Rm %.3f %% (%.1f), A %.3f %% (%.1f), missing %q",
+						smp, c.points, 100*c.noise, grp, row.E, l.E, row.Rp, l.Rp, row.Rm, l.Rm, row.A, l.A, row.missing)
+				}
 			}
 		}
 	}
