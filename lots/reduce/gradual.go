@@ -17,6 +17,11 @@ type roCurve struct {
 	lo, hi      int
 }
 
+// huberK is the tuning constant of Huber's weights in noise SDs: 1.345
+// gives 95 % efficiency for normal noise (Huber, Annals of Mathematical
+// Statistics 35, 1964; Holland and Welsch 1977).
+const huberK = 1.345
+
 // Exponent range searched by the Ramberg-Osgood fit: below 2 the curve
 // bends from the start (no metal), above 200 it is a sharp corner.
 const (
@@ -72,7 +77,11 @@ func roSolve(x, s []float64, lo, hi int, sRef, m float64, w []float64) (b [3]flo
 // a given exponent the strain is linear in e0, 1/E and c and is fitted by
 // weighted least squares, each point weighted by the inverse square of
 // the fitted curve's slope d(strain)/d(stress) there, so that the
-// residuals are those of the stress, which carries the noise. The
+// residuals are those of the stress, which carries the noise, and, given
+// the record's noise SD, by Huber's weight (1 within 1.345 noise SDs,
+// falling as 1.345 SDs over the residual beyond: iteratively reweighted
+// least squares, Huber 1964, Holland and Welsch 1977), so that a point
+// off the curve by less than the glitch threshold weighs little. The
 // exponent minimises the residual sum of squares: a log-spaced grid from
 // 2 to 200, then golden-section search (Kiefer 1953; Press et al.,
 // Numerical Recipes, 3rd ed., section 10.2) between the grid neighbours
@@ -82,7 +91,7 @@ func roSolve(x, s []float64, lo, hi int, sRef, m float64, w []float64) (b [3]flo
 // from the covariance of all four parameters (Gauss-Newton: the residual
 // variance times the inverse of J'WJ, J the derivatives of the strain
 // with respect to e0, 1/E, c and m; gonum mat).
-func fitRO(x, s []float64, lo, hi int) (rc roCurve, ok bool) {
+func fitRO(x, s []float64, lo, hi int, noise float64) (rc roCurve, ok bool) {
 	n := hi - lo
 	if n < 8 {
 		return rc, false
@@ -137,16 +146,24 @@ func fitRO(x, s []float64, lo, hi int) (rc roCurve, ok bool) {
 		if !good || !(b[1] > 0) {
 			return rc, false
 		}
-		// Weights: inverse square of d(strain)/d(stress) [per MPa].
-		w = make([]float64, n)
+		// Weights: inverse square of d(strain)/d(stress) [per MPa], times
+		// Huber's weight of the stress residual.
+		nw := make([]float64, n)
 		for i := lo; i < hi; i++ {
 			u := math.Max(s[i]/sRef, 0)
 			d := (b[1] + b[2]*m*math.Pow(u, m-1)) / sRef
 			if !(d > 0) {
 				d = b[1] / sRef
 			}
-			w[i-lo] = 1 / (d * d)
+			nw[i-lo] = 1 / (d * d)
+			if noise > 0 {
+				r := math.Abs(x[i]-(b[0]+b[1]*s[i]/sRef+b[2]*math.Pow(u, m))) / d
+				if r > huberK*noise {
+					nw[i-lo] *= huberK * noise / r
+				}
+			}
 		}
+		w = nw
 	}
 	if !(b[2] >= 0) {
 		return rc, false // stiffening: a toe, not gradual yield
@@ -230,7 +247,7 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 	}
 	start := lin.a
 	lo = lin.lo
-	if c, good := fitRO(x, s, lo, hi); good && adequate(c, lo) {
+	if c, good := fitRO(x, s, lo, hi, res.Noise); good && adequate(c, lo) {
 		rc, ok = c, true
 	}
 	if !ok {
@@ -244,7 +261,7 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 		if l >= lin.lo {
 			break
 		}
-		c, good := fitRO(x, s, l, hi)
+		c, good := fitRO(x, s, l, hi, res.Noise)
 		if good && adequate(c, l) && math.Abs(c.E-rc.E) <= 2*rc.relSE*rc.E {
 			rc, lo, start = c, l, a
 			break
