@@ -415,16 +415,26 @@ func thin(x, s []float64, most int) ([]float64, []float64) {
 
 // afterSteps leaves out every property measured on strains beyond a lone
 // extension step (the extensometer slipped and every later strain is
-// shifted), with a warning naming the properties. fitX are the strains
-// (before toe compensation) from the first point of the elastic fit.
+// shifted) or a lone force step (every later stress is shifted), with a
+// warning naming the properties. After a force step the tensile strength
+// goes too when its maximum lies beyond the step or the step lies where
+// the curve is within twice the step of its highest point (the step may
+// have made or unmade the maximum); after an extension step it stays
+// (the force is right). fitX are the strains (before toe
+// compensation) from the first point of the elastic fit.
 func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	if len(res.steps) == 0 {
 		return
 	}
 	nan := math.NaN()
-	stepX := math.Inf(1)
+	stepX, forceX := math.Inf(1), math.Inf(1)
+	nearTop := false // a force step where the curve is within the step of its top
 	for _, g := range res.steps {
 		stepX = math.Min(stepX, g.at)
+		if g.Series == "force" {
+			forceX = math.Min(forceX, g.at)
+			nearTop = nearTop || g.atStress >= res.TensileRaw-2*math.Abs(g.Size)
+		}
 	}
 	shift := 0.0
 	if fitOK {
@@ -445,10 +455,17 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 		res.FitOK = false
 	}
 	if res.ProofStrain+shift > stepX {
+		// The modulus of a gradually yielding material rests on the curve
+		// up to the proof strength.
+		drop("modulus", &res.Modulus)
 		drop("proof strength", &res.Proof)
 		drop("resilience", &res.Resilience)
 	}
 	if res.TensileStrain+shift > stepX {
+		drop("uniform elongation", &res.Uniform)
+	}
+	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > forceX) {
+		drop("tensile strength", &res.Tensile)
 		drop("uniform elongation", &res.Uniform)
 	}
 	if res.ElongationMethod == "record at fracture less the elastic part" {
@@ -457,7 +474,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	res.ExtensometerElongation = nan
 	drop("toughness", &res.Toughness)
 	if len(gone) > 0 {
-		res.warn("not reported because of the extension step: %s", strings.Join(gone, ", "))
+		res.warn("not reported because of the step: %s", strings.Join(gone, ", "))
 	}
 }
 
