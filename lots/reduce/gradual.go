@@ -179,7 +179,13 @@ func fitRO(x, s []float64, lo, hi int, noise float64) (rc roCurve, ok bool) {
 			lu = math.Log(u)
 		}
 		e := x[i] - (b[0] + b[1]*s[i]/sRef + b[2]*um)
-		wi := w[i-lo]
+		// The stress residual, without Huber's weight, for the fit
+		// quality and the standard error.
+		d := (b[1] + b[2]*m*math.Pow(u, m-1)) / sRef
+		if !(d > 0) {
+			d = b[1] / sRef
+		}
+		wi := 1 / (d * d)
 		sse += wi * e * e
 		sw += 1
 		sws += s[i]
