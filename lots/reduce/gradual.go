@@ -214,13 +214,20 @@ func fitRO(x, s []float64, lo, hi int, noise float64) (rc roCurve, ok bool) {
 // gradualFit tries the Ramberg-Osgood fit (fitRO) from the start of the
 // straight window lin (the toe left out as there) to the point where the
 // plastic strain after the straight line first reaches one and a half
-// times the offset, within the loading branch x[0..iEnd]. The fit is
-// taken instead of the straight line when its stress residuals are no
-// larger than the straight window's bound (twice the noise plus 0.2 % of
-// the stress span) and the relative standard error of its modulus is
-// smaller than the straight window's combined error (standard error of
-// the slope and half its change across the window). It returns the
-// index range used and true when taken.
+// times the offset, within the loading branch x[0..iEnd]; a lower start
+// (a bound of elasticGrid below the window's) is taken when its modulus
+// agrees with the first fit's within two of that fit's standard errors.
+// The fit must leave stress residuals no larger than the straight
+// window's bound (twice the noise plus 0.2 % of the stress span): a curve
+// of another form is left to the straight window. It is then taken
+// instead of the straight line when the relative standard error of its
+// modulus is smaller than the straight window's combined error (standard
+// error of the slope and half its change across the window), or when the
+// two moduli differ by more than three combined standard errors (the
+// straight window of a gradually yielding material can lie in the plastic
+// range, where the slope is low but straight within the noise). The rule
+// is this package's own. It returns the index range used and true when
+// taken.
 func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window, linErr float64, iEnd int, off float64) (lo, hi int, taken bool) {
 	E0, a0 := res.Fit.Slope, res.Fit.Intercept
 	hi = lin.lo
