@@ -186,6 +186,7 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 		return w, false
 	}
 	w = cands[best]
+	res.lin, res.linErr = w, math.Sqrt(score(w))
 	res.FitMethod = fmt.Sprintf("least squares over the straight window with the smallest combined error (standard error of the slope and half the slope change across the window): %.0f %% to %.0f %% of the loading branch's top stress %.4g MPa (slope change across the window %.2f %%, limit %.2f %%)",
 		100*w.a, 100*w.b, top, 100*w.curve, 100*math.Min(linCurveMax, math.Max(linCurve, 3*w.curveSE)))
 	return w, true

@@ -20,6 +20,7 @@ type Glitch struct {
 	Threshold      float64 // the departure that counts as a glitch
 	from, to       int     // raw point indices [from, to)
 	at             float64 // strain before a step
+	atStress       float64 // stress before a force step [MPa]
 }
 
 // glitchSide is the number of neighbours on each side whose straight line
@@ -77,6 +78,7 @@ func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
 // difference).
 func findGlitches(n int, v func(int) float64, thr float64, series string) (spikes []Glitch, steps []Glitch, over bool) {
 	h := glitchSide
+	spikeEnd := 0 // end of the last spike: no step is judged on a line through it
 	for i := h; i+h < n && len(spikes)+len(steps) <= maxGlitches; i++ {
 		mL, bL, cL := sideLine(v, i-h, i)
 		predL := func(k int) float64 { return mL + bL*(float64(k)-cL) }
@@ -104,12 +106,13 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 					kind = "dropout"
 				}
 				spikes = append(spikes, Glitch{Points: L, Series: series, Kind: kind, Size: math.Copysign(minDev, dL), Threshold: thr, from: i, to: i + L})
+				spikeEnd = i + L
 				i += L - 1
 				found = true
 				break
 			}
 		}
-		if found {
+		if found || i-h < spikeEnd {
 			continue
 		}
 		// A step: the line after i, extrapolated back to i-1, misses v(i-1)
@@ -122,6 +125,24 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 			i += h - 1
 		}
 	}
+	// The first and last glitchSide points have fewer neighbours on one
+	// side: see edgeRun.
+	for i := 0; i < n; i++ {
+		if i == h && n-h > i {
+			i = n - h
+		}
+		L, dev := edgeRun(n, v, i, thr, series == "force")
+		if L == 0 {
+			continue
+		}
+		kind := "spike"
+		if dev < 0 {
+			kind = "dropout"
+		}
+		spikes = append(spikes, Glitch{Points: L, Series: series, Kind: kind, Size: dev, Threshold: thr, from: i, to: i + L})
+		i += L - 1
+	}
+	sortGlitches(spikes)
 	if len(spikes)+len(steps) > maxGlitches {
 		return nil, nil, true
 	}
@@ -141,6 +162,183 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 		lone = append(lone, s)
 	}
 	return spikes, lone, false
+}
+
+// strainSlope is the least-squares slope of stress on strain over points
+// a..b-1 and its standard error (ok false with fewer than 3 points or no
+// spread of the strain).
+func strainSlope(stressAt, strainAt func(int) float64, a, b int) (k, se float64, ok bool) {
+	n := float64(b - a)
+	if b-a < 3 {
+		return 0, 0, false
+	}
+	var sx, sy float64
+	for i := a; i < b; i++ {
+		sx += strainAt(i)
+		sy += stressAt(i)
+	}
+	mx, my := sx/n, sy/n
+	var sxx, sxy, syy float64
+	for i := a; i < b; i++ {
+		dx, dy := strainAt(i)-mx, stressAt(i)-my
+		sxx += dx * dx
+		sxy += dx * dy
+		syy += dy * dy
+	}
+	if !(sxx > 0) {
+		return 0, 0, false
+	}
+	k = sxy / sxx
+	return k, math.Sqrt(math.Max(0, syy-k*sxy) / (n - 2) / sxx), true
+}
+
+// edgeLine fits the least-squares line through v(a..b-1) when it holds
+// at least 2 points and returns its value at index k; ok is false when a
+// point of it lies more than tol off the line (the side is not straight,
+// e.g. it straddles the fracture).
+func edgeLine(v func(int) float64, a, b, k int, tol float64) (pred float64, ok bool) {
+	if b-a < 2 {
+		return 0, false
+	}
+	m, sl, c := sideLine(v, a, b)
+	for j := a; j < b; j++ {
+		if math.Abs(v(j)-(m+sl*(float64(j)-c))) > tol {
+			return 0, false
+		}
+	}
+	return m + sl*(float64(k)-c), true
+}
+
+// edgeRun judges a run of 1 to maxSpikeRun points starting at i among
+// the first or last glitchSide points of the series, where one side has
+// fewer than glitchSide neighbours. Each side is the least-squares line
+// through up to glitchSide neighbours (at least 3), or through the 3
+// nearest when the longer line is not straight within half the
+// threshold (the 2 nearest before the point, when they agree within
+// twice the threshold, at the end of the force series, where the points after the
+// fracture may be few); a side that is not straight either way is not used. The
+// run is a spike or dropout when both sides are usable, every point of
+// it departs from both predictions in the same direction by more than the
+// threshold and the two predictions agree with each other to within half
+// that departure, or it departs from both by more than twice the
+// threshold (at the fracture the two sides disagree), and it departs by
+// more than the threshold from a least-squares parabola through the
+// neighbours on both sides as well (the bend of a toe is no glitch). With one side usable only a rise counts (a fall at the
+// end is the fracture, before the first points the loading had not
+// started), and only by more than twice the threshold plus the side's
+// bend (the gap between its line and a least-squares parabola through the
+// same points, at the point judged); at the end of the record a series
+// is judged on one side only when endOneSided is set (the force: after
+// the fracture it stays near zero, while the extension after the
+// fracture means nothing). It returns the run length (0: none)
+// and the smallest departure, signed. The rule is this package's own.
+func edgeRun(n int, v func(int) float64, i int, thr float64, endOneSided bool) (int, float64) {
+	h := glitchSide
+	// side returns the prediction at k of the line through v(a..b-1) (or
+	// its 3 points nearest the run) and the gap between that line and a
+	// parabola through the same points, at k (the bend of the side).
+	side := func(a, b, k int, near bool) (pred, bend float64, ok bool) {
+		var p float64
+		if b-a >= 3 {
+			p, ok = edgeLine(v, a, b, k, thr/2)
+		}
+		for m := 3; !ok && m >= 2; m-- {
+			if b-a < m || (b-a == m && m == 3) || (m == 2 && !(near && endOneSided)) {
+				continue
+			}
+			if near {
+				a = b - m
+			} else {
+				b = a + m
+			}
+			if m == 2 && math.Abs(v(a)-v(a+1)) > 2*thr {
+				continue // two points make a level only when they agree
+			}
+			p, ok = edgeLine(v, a, b, k, thr/2)
+		}
+		if !ok {
+			return 0, 0, false
+		}
+		if b-a >= 4 {
+			xs, ys := make([]float64, 0, b-a), make([]float64, 0, b-a)
+			for j := a; j < b; j++ {
+				xs, ys = append(xs, float64(j)), append(ys, v(j))
+			}
+			xc, w := float64(a+b-1)/2, float64(b-a)
+			if c, good := quadFit(xs, ys, xc, w); good {
+				u := (float64(k) - xc) / w
+				bend = math.Abs(c[0] + c[1]*u + c[2]*u*u - p)
+			}
+		}
+		return p, bend, true
+	}
+	for L := 1; L <= maxSpikeRun && i+L <= n; L++ {
+		ok := true
+		sign := 0.0
+		minDev := math.Inf(1)
+		for k := i; k < i+L && ok; k++ {
+			pl, bl, okL := side(max(0, i-h), i, k, true)
+			pr, br, okR := side(i+L, min(n, i+L+h), k, false)
+			if !okL && !okR {
+				ok = false
+				break
+			}
+			// One side alone: a fall is the fracture (at the end) or the
+			// start of the loading (at the start), a rise must exceed
+			// twice the threshold and the side's bend.
+			if okL != okR {
+				if okL && !endOneSided {
+					ok = false
+					break
+				}
+				p, bend := pl, bl
+				if okR {
+					p, bend = pr, br
+				}
+				d := v(k) - p
+				if d < 0 || d <= 2*thr+bend || (sign != 0 && sign < 0) {
+					ok = false
+					break
+				}
+				sign = 1
+				minDev = math.Min(minDev, d)
+				continue
+			}
+			for _, d := range []float64{v(k) - pl, v(k) - pr} {
+				if sign == 0 {
+					sign = math.Copysign(1, d)
+				}
+				if math.Abs(d) <= thr || math.Copysign(1, d) != sign {
+					ok = false
+				}
+				minDev = math.Min(minDev, math.Abs(d))
+			}
+			if ok && math.Abs(pl-pr) >= 0.5*minDev && minDev <= 2*thr {
+				ok = false
+			}
+			// A bend of the curve (the toe) is not a glitch: the point must
+			// also depart from a parabola through the neighbours on both
+			// sides.
+			if ok {
+				var xs, ys []float64
+				for j := max(0, i-h); j < min(n, i+L+h); j++ {
+					if j < i || j >= i+L {
+						xs, ys = append(xs, float64(j)), append(ys, v(j))
+					}
+				}
+				if c, good := quadFit(xs, ys, float64(i), float64(h+L+1)); good {
+					u := float64(k-i) / float64(h+L+1)
+					if math.Abs(v(k)-(c[0]+c[1]*u+c[2]*u*u)) <= thr {
+						ok = false
+					}
+				}
+			}
+		}
+		if ok {
+			return L, math.Copysign(minDev, sign)
+		}
+	}
+	return 0, 0
 }
 
 // binTarget is the number of working points a dense record is averaged
@@ -166,14 +364,14 @@ func rawNoise(n int, v func(int) float64) float64 {
 
 // glitches finds force and extension glitches in the raw points, leaves
 // spikes, dropouts and paired steps out (res.left) with a located warning
-// each, and records lone extension steps (res.steps), which shift every
-// later strain.
+// each, and records lone extension and force steps (res.steps), which
+// shift every later strain or stress.
 func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) float64, smRaw, xMax float64) {
 	thrS := math.Max(10*res.RawNoise, 0.005*smRaw)
 	thrX := math.Max(10*res.StrainNoise, 1e-5)
-	fs, _, over1 := findGlitches(n, stressAt, thrS, "force")
+	fs, fsteps, over1 := findGlitches(n, stressAt, thrS, "force")
 	xs, xsteps, over2 := findGlitches(n, strainAt, thrX, "extension")
-	if over1 || over2 || len(fs)+len(xs)+len(xsteps) > maxGlitches {
+	if over1 || over2 || len(fs)+len(xs)+len(xsteps)+len(fsteps) > maxGlitches {
 		res.tooMany = true
 		return
 	}
@@ -211,6 +409,35 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 		lone = append(lone, g)
 	}
 	xsteps = lone
+	// A lone force step (the force jumps and stays while the extension
+	// goes on smoothly: the load cell or its amplifier jumped) shifts
+	// every later stress. A fall to below a tenth of the highest force
+	// is the fracture; a jump of the extension at the same point is the
+	// material yielding.
+	var flone []Glitch
+	for _, g := range fsteps {
+		if math.Min(stressAt(g.from), stressAt(g.from-1)) < 0.1*smRaw {
+			continue
+		}
+		if g.from >= glitchSide {
+			m, b, c := sideLine(strainAt, g.from-glitchSide, g.from)
+			if math.Abs(strainAt(g.from)-(m+b*(float64(g.from)-c))) > thrX {
+				continue
+			}
+		}
+		// The stress-strain slope goes on across a step; a yield drop
+		// turns the elastic slope into a plateau.
+		kL, seL, okL := strainSlope(stressAt, strainAt, max(0, g.from-2*glitchSide), g.from)
+		kR, seR, okR := strainSlope(stressAt, strainAt, g.from, min(n, g.from+2*glitchSide))
+		if !okL || !okR || math.Abs(kL-kR) > 0.5*math.Max(math.Abs(kL), math.Abs(kR))+3*math.Hypot(seL, seR) {
+			continue
+		}
+		g.Noise = res.RawNoise
+		g.atStress = stressAt(g.from - 1)
+		flone = append(flone, g)
+	}
+	xsteps = append(xsteps, flone...)
+	sortGlitches(xsteps)
 	sortGlitches(all)
 	// Overlapping runs (a dropout that is also an extension spike) merge.
 	var left []Glitch
@@ -256,6 +483,11 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 			g.Series, g.Kind, where, size, unit, noise, thr, unit)
 	}
 	for _, g := range xsteps {
+		if g.Series == "force" {
+			res.warn("force step at line %d: the force jumps by %+.4g MPa and stays (noise SD %.3g MPa, threshold %.3g MPa) while the extension goes on smoothly: the load cell or its amplifier probably jumped; properties measured beyond it are not reported",
+				g.Line, g.Size, g.Noise, g.Threshold)
+			continue
+		}
 		res.warn("extension step at line %d: the extension jumps by %+.3g %% strain and stays (noise SD %.3g %%, threshold %.3g %%): the extensometer probably slipped; properties measured beyond it are not reported",
 			g.Line, 100*g.Size, 100*g.Noise, 100*g.Threshold)
 	}

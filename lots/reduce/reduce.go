@@ -76,6 +76,10 @@ type Result struct {
 	TensileTo     float64 // strain window of the Rm fit
 	TensileN      int     // working points in the Rm fit
 	FitMethod     string  // how the elastic window was chosen
+	ProofMethod   string  // how the proof strength was found
+
+	lin    window  // the straight window found automatically
+	linErr float64 // its combined relative error
 
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	tooMany                                                       bool     // more than maxGlitches glitches
@@ -104,7 +108,11 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 //     consecutive points, so that the noise of the working curve falls
 //     with the sampling rate (see workingPoints);
 //   - the modulus E as the least-squares slope over the straight stress
-//     window (ASTM E111, see autoElastic and fitLine), with toe compensation
+//     window (ASTM E111, see autoElastic and fitLine), or, where it is the
+//     more precise or the straight window is not elastic, the tangent at
+//     zero stress of a Ramberg-Osgood curve fitted up to just past the
+//     proof strength (Ramberg and Osgood; Hill; see gradualFit and fitRO),
+//     with toe compensation
 //     (the strain origin moved to the strain intercept of that line, as
 //     in ASTM E111 and the ASTM E8/E8M offset-method figure);
 //   - proof strength by the offset method (ISO 6892-1 clause 12; ASTM
@@ -265,7 +273,13 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	if ok {
 		res.fitLine(x[lo:hi], s[lo:hi])
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
-		res.Fit.Auto = !(opt.ModulusTo > opt.ModulusFrom)
+		auto := !(opt.ModulusTo > opt.ModulusFrom)
+		if auto && res.Fit.Slope > 0 {
+			if l2, h2, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
+				lo, hi = l2, h2
+			}
+		}
+		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
 			res.warn("no linear region found: the fitted slope is not positive")
 			ok = false
@@ -401,16 +415,26 @@ func thin(x, s []float64, most int) ([]float64, []float64) {
 
 // afterSteps leaves out every property measured on strains beyond a lone
 // extension step (the extensometer slipped and every later strain is
-// shifted), with a warning naming the properties. fitX are the strains
-// (before toe compensation) from the first point of the elastic fit.
+// shifted) or a lone force step (every later stress is shifted), with a
+// warning naming the properties. After a force step the tensile strength
+// goes too when its maximum lies beyond the step or the step lies where
+// the curve is within twice the step of its highest point (the step may
+// have made or unmade the maximum); after an extension step it stays
+// (the force is right). fitX are the strains (before toe
+// compensation) from the first point of the elastic fit.
 func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	if len(res.steps) == 0 {
 		return
 	}
 	nan := math.NaN()
-	stepX := math.Inf(1)
+	stepX, forceX := math.Inf(1), math.Inf(1)
+	nearTop := false // a force step where the curve is within the step of its top
 	for _, g := range res.steps {
 		stepX = math.Min(stepX, g.at)
+		if g.Series == "force" {
+			forceX = math.Min(forceX, g.at)
+			nearTop = nearTop || g.atStress >= res.TensileRaw-2*math.Abs(g.Size)
+		}
 	}
 	shift := 0.0
 	if fitOK {
@@ -431,10 +455,17 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 		res.FitOK = false
 	}
 	if res.ProofStrain+shift > stepX {
+		// The modulus of a gradually yielding material rests on the curve
+		// up to the proof strength.
+		drop("modulus", &res.Modulus)
 		drop("proof strength", &res.Proof)
 		drop("resilience", &res.Resilience)
 	}
 	if res.TensileStrain+shift > stepX {
+		drop("uniform elongation", &res.Uniform)
+	}
+	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > forceX) {
+		drop("tensile strength", &res.Tensile)
 		drop("uniform elongation", &res.Uniform)
 	}
 	if res.ElongationMethod == "record at fracture less the elastic part" {
@@ -443,7 +474,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	res.ExtensometerElongation = nan
 	drop("toughness", &res.Toughness)
 	if len(gone) > 0 {
-		res.warn("not reported because of the extension step: %s", strings.Join(gone, ", "))
+		res.warn("not reported because of the step: %s", strings.Join(gone, ", "))
 	}
 }
 
@@ -679,8 +710,9 @@ func (res *Result) proof(x, s []float64, E, off float64) {
 			t := prev / (prev - g)
 			res.Proof = s[i-1] + t*(s[i]-s[i-1])
 			res.ProofStrain = x[i-1] + t*(x[i]-x[i-1])
+			res.ProofMethod = "interpolated between the two points around the first crossing of the offset line"
 			if res.Noise > 1e-4*res.Proof {
-				res.smoothProof(x, s, i, E, off)
+				res.smoothProof(x, s, E, off)
 			}
 			return
 		}
@@ -695,45 +727,50 @@ func (res *Result) proof(x, s []float64, E, off float64) {
 
 // smoothProof refines the offset intersection on a noisy curve. The first
 // sign change is found where the noise happens to pull a point below the
-// offset line, which biases the plain interpolation low; instead the
-// offset line is intersected with a least-squares parabola through the 25
-// points on each side of that crossing (a local smoothing chosen by this
-// package; the standards define Rp on the curve without saying how to
-// treat noise). The smoothed value is kept only when the parabola crosses
-// the line inside the window.
-func (res *Result) smoothProof(x, s []float64, i int, E, off float64) {
-	const h = 25
-	l, r := max(0, i-h), min(len(x)-1, i+h-1)
-	if r-l < 10 {
-		return
-	}
-	xc, w := (x[l]+x[r])/2, (x[r]-x[l])/2
-	c, ok := quadFit(x, s, xc, w)
-	if !ok {
-		return
-	}
-	// c0 + c1 u + c2 u^2 = E (xc + u w - off), solved for u in [-1, 1].
-	a, b, cc := c[2], c[1]-E*w, c[0]-E*(xc-off)
-	var u float64
-	if math.Abs(a) < 1e-12*math.Abs(b) {
-		u = -cc / b
-	} else {
-		d := b*b - 4*a*cc
-		if d < 0 {
-			return
+// offset line, which biases the plain interpolation low, the more so the
+// flatter the curve is there. Instead the stress is fitted, by least
+// squares, as a parabola in the plastic strain (strain less stress over
+// the modulus) to every point whose plastic strain lies within half the
+// offset of it (0.1 % to 0.3 % for Rp0.2), and the proof strength is the
+// parabola's value at the offset: the point where the curve meets the
+// offset line, as ISO 6892-1 defines it, from a local least-squares
+// smoothing (Savitzky and Golay, Analytical Chemistry 36, 1964, fit a
+// low-order polynomial by least squares over a window and take its value
+// at the centre; here the window is set in plastic strain). The plastic
+// strain carries the stress noise divided by the modulus, far below the
+// width of the window. The smoothed value is kept when at least 5 points
+// lie on each side of the offset.
+func (res *Result) smoothProof(x, s []float64, E, off float64) {
+	var q quadSums
+	below, above := 0, 0
+	for i := range x {
+		p := x[i] - s[i]/E
+		if p < off/2 || p > 1.5*off {
+			continue
 		}
-		sq := math.Sqrt(d)
-		u1, u2 := (-b+sq)/(2*a), (-b-sq)/(2*a)
-		u = u1
-		if math.Abs(u2) < math.Abs(u1) {
-			u = u2
+		if p < off {
+			below++
+		} else {
+			above++
 		}
+		q.add((p-off)/(off/2), s[i])
 	}
-	if u < -1 || u > 1 {
+	if below < 5 || above < 5 {
 		return
 	}
-	res.ProofStrain = xc + u*w
-	res.Proof = c[0] + c[1]*u + c[2]*u*u
+	S, T := &q.S, &q.T
+	m := [3][]float64{{S[0], S[1], S[2], T[0]}, {S[1], S[2], S[3], T[1]}, {S[2], S[3], S[4], T[2]}}
+	if !gaussJordan3(&m) {
+		return
+	}
+	rp := m[0][3] / m[0][0]
+	if !(rp > 0) {
+		return
+	}
+	res.Proof = rp
+	res.ProofStrain = rp/E + off
+	res.ProofMethod = fmt.Sprintf("value at %.3g %% plastic strain of a least-squares parabola of the stress in the plastic strain through the %d points between %.3g %% and %.3g %% plastic strain (a local smoothing after Savitzky and Golay)",
+		100*off, below+above, 50*off, 150*off)
 }
 
 // yieldPoint finds discontinuous yielding (ISO 6892-1 3.10.2.1 upper

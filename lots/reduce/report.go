@@ -67,6 +67,7 @@ type AuditReport struct {
 	ToeShiftPercent         lots.Float     `json:"toe_shift_percent"`
 	OffsetPercent           float64        `json:"offset_percent"`
 	ProofStrainPercent      lots.Float     `json:"proof_strain_percent"`
+	ProofMethod             string         `json:"proof_method"`
 	TensileStrainPercent    lots.Float     `json:"tensile_strain_percent"`
 	Fractured               bool           `json:"fractured"`
 	FractureStrainPercent   lots.Float     `json:"fracture_strain_percent"`
@@ -158,6 +159,7 @@ func NewReport(rs []*Result, sys units.System) Report {
 		a.ToeShiftPercent = pct(r.ToeShift)
 		a.OffsetPercent = 100 * r.Offset
 		a.ProofStrainPercent, a.TensileStrainPercent = pct(r.ProofStrain), pct(r.TensileStrain)
+		a.ProofMethod = r.ProofMethod
 		a.Fractured, a.FractureStrainPercent = r.Fractured, pct(r.FractureStrain)
 		a.ElongationMethod, a.ElongationRecordPercent = r.ElongationMethod, pct(r.ExtensometerElongation)
 		out.Specimens = append(out.Specimens, sj)

@@ -22,7 +22,11 @@ type SynthSpec struct {
 	Noise                                float64 // SD of normal noise added to the stress [MPa]
 	StrainNoise                          float64 // SD of normal noise added to the strain (extensometer noise)
 	Toe                                  float64 // initial slack as a strain (0: none)
-	Seed                                 uint64
+	// ConstantRate samples at a constant logging rate under the strain
+	// rates of ISO 6892-1 method A instead of evenly in strain (see
+	// Synthesize).
+	ConstantRate bool
+	Seed         uint64
 }
 
 // Synthesize makes a raw record in lotproof's format from an analytic
@@ -35,7 +39,13 @@ type SynthSpec struct {
 // breaks and the force drops to near zero. A toe of slack s0 replaces the
 // curve below stress E s0 by the parabola stress = E strain^2 / (4 s0),
 // tangent to the shifted elastic line. A quarter of the points lie in the
-// elastic and early plastic range. The final gauge length L0 (1 + A) and
+// elastic and early plastic range, up to a strain 0.4 % past the elastic
+// strain at Rp, evenly in strain, the rest evenly in strain beyond. With
+// ConstantRate the points are instead evenly spaced in time, as a frame
+// logs them, with the strain rates ISO 6892-1 method A recommends
+// (clause 10.3, from memory): range 2, 0.00025 per second, up to that
+// same strain (past the proof strength), and range 4, 0.0067 per second,
+// after it. The final gauge length L0 (1 + A) and
 // the final diameter d sqrt(1 - Z) are written in the metadata. The same
 // spec and seed give the same bytes. Noise (stress) and StrainNoise are
 // added as independent normal deviates.
@@ -101,12 +111,26 @@ func Synthesize(sp SynthSpec) ([]byte, error) {
 	n1 := n / 4
 	e1 := math.Min(sp.Rp/sp.E+0.004, eu/2)
 	strain := make([]float64, 0, sp.Points)
-	for i := 0; i < n1; i++ {
-		strain = append(strain, e1*float64(i)/float64(n1))
-	}
-	n2 := n - n1
-	for i := 0; i < n2; i++ {
-		strain = append(strain, e1+(ef-e1)*float64(i+1)/float64(n2))
+	if sp.ConstantRate {
+		const slow, fast = 0.00025, 0.0067 // strain per second
+		t1 := e1 / slow
+		total := t1 + (ef-e1)/fast
+		for i := 0; i < n; i++ {
+			tm := total * float64(i) / float64(n-1)
+			e := tm * slow
+			if tm > t1 {
+				e = math.Min(ef, e1+(tm-t1)*fast)
+			}
+			strain = append(strain, e)
+		}
+	} else {
+		for i := 0; i < n1; i++ {
+			strain = append(strain, e1*float64(i)/float64(n1))
+		}
+		n2 := n - n1
+		for i := 0; i < n2; i++ {
+			strain = append(strain, e1+(ef-e1)*float64(i+1)/float64(n2))
+		}
 	}
 	rng := rand.New(rand.NewPCG(sp.Seed, 0x72656475636521))
 	area := math.Pi * sp.Diameter * sp.Diameter / 4
