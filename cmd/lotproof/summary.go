@@ -43,26 +43,70 @@ func addInputFlags(cmd *cobra.Command, in *inputOptions) {
 
 func runSummary(o summaryOptions, st streams) error {
 	// One lot at a time: the summary of each is kept, its values are not.
+	// The lots are summarised (and, for CSV, laid out) on a second
+	// goroutine while the file is read, in the order they come.
 	var sum []lots.GroupSummary
 	var props []lots.Property
 	var rs render.Resolutions // for tables people read only
+	var csvT *render.Table    // CSV: filled as the lots come
+	var work chan []*lots.Lot
+	var done chan struct{}
+	var batch []*lots.Lot
+	stop := func() {
+		if work != nil {
+			if len(batch) > 0 {
+				work <- batch
+				batch = nil
+			}
+			close(work)
+			<-done
+			work = nil
+		}
+	}
+	defer stop()
+	by0, _ := lots.ParseGroupBy(o.Input.GroupBy)
 	_, by, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
-		sum, props = sum[:0], d.Properties
+		stop() // a second reading starts afresh
+		sum, props, batch = sum[:0], d.Properties, nil
 		if o.Out.Format == render.Text {
 			rs = render.Resolutions{}
 		}
+		if o.Out.Format == render.CSV {
+			csvT = newSummaryTable(string(by0))
+		}
+		work, done = make(chan []*lots.Lot, 8), make(chan struct{})
+		go func(work chan []*lots.Lot, props []lots.Property, rs render.Resolutions, t *render.Table) {
+			defer close(done)
+			for b := range work {
+				for _, l := range b {
+					g := lots.SummarizeLot(props, l, o.Out.System)
+					sum = append(sum, g)
+					if rs != nil {
+						addLotResolutions(rs, props, l, o.Out.System)
+					}
+					if t != nil {
+						addSummaryRows(t, g, nil)
+					}
+				}
+			}
+		}(work, props, rs, csvT)
 	}, func(l *lots.Lot) error {
-		sum = append(sum, lots.SummarizeLot(props, l, o.Out.System))
-		if rs != nil {
-			addLotResolutions(rs, props, l, o.Out.System)
+		batch = append(batch, l)
+		if len(batch) == 16 {
+			work <- batch
+			batch = make([]*lots.Lot, 0, 16)
 		}
 		return nil
 	})
+	stop()
 	if err != nil {
 		return err
 	}
 	if sum == nil {
 		sum = []lots.GroupSummary{}
+	}
+	if o.Out.Format == render.CSV && csvT != nil && by == by0 {
+		return emit(st.Out, func(w io.Writer) error { return writeTables(w, o.Out.Format, csvT) })
 	}
 	return emit(st.Out, func(w io.Writer) error { return writeSummary(w, sum, by, rs, o.Out) })
 }
@@ -78,13 +122,23 @@ func writeSummary(w io.Writer, sum []lots.GroupSummary, by lots.GroupBy, rs rend
 
 // summaryTable lays a summary out as one row per group and property.
 func summaryTable(by string, sum []lots.GroupSummary, rs render.Resolutions) *render.Table {
-	t := render.NewTable("", by, "supplier", "property", "unit", ">n", ">missing", ">mean", ">sd", ">min", ">max")
+	t := newSummaryTable(by)
 	for _, g := range sum {
-		for _, p := range g.Properties {
-			r := rs.Of(g.Material, p.Property)
-			t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
-				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Min)), r.Given(float64(p.Max)))
-		}
+		addSummaryRows(t, g, rs)
 	}
 	return t
+}
+
+// newSummaryTable is the summary table's heading.
+func newSummaryTable(by string) *render.Table {
+	return render.NewTable("", by, "supplier", "property", "unit", ">n", ">missing", ">mean", ">sd", ">min", ">max")
+}
+
+// addSummaryRows adds a group's rows, one per property.
+func addSummaryRows(t *render.Table, g lots.GroupSummary, rs render.Resolutions) {
+	for _, p := range g.Properties {
+		r := rs.Of(g.Material, p.Property)
+		t.Add(g.Key, g.Supplier, p.Property, p.Unit, strconv.Itoa(p.N), strconv.Itoa(p.Missing),
+			r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Min)), r.Given(float64(p.Max)))
+	}
 }
