@@ -275,9 +275,9 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
 		auto := !(opt.ModulusTo > opt.ModulusFrom)
 		if auto && res.Fit.Slope > 0 {
-			if l2, h2, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
-				lo, hi = l2, h2
-			}
+			// Replaces the fit in res when the fitted curve is taken; the
+			// window it used is in the audit, not needed below.
+			res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off)
 		}
 		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
