@@ -173,10 +173,10 @@ func RandomEffectsLowerBounds(groups [][]float64, ps []float64, gamma float64, w
 	sdHat := math.Sqrt(math.Max(0, ssy/float64(a-1)-sse/float64(N-a)/nh) + sse/float64(N-a))
 	for k, p := range ps {
 		v := r[k]
-		selectKth(v, j)
-		selectKth(v[:j], lo)
+		SelectKth(v, j)
+		SelectKth(v[:j], lo)
 		if hi > j {
-			selectKth(v[j+1:], hi-j-1)
+			SelectKth(v[j+1:], hi-j-1)
 		}
 		se := (v[hi] - v[lo]) / (2 * 1.96)
 		b := Bound{Value: v[j], Factor: math.NaN(), Method: "random-effects", N: N, Content: p, Confidence: gamma,
@@ -292,36 +292,4 @@ func simpsonWeight(i, n int) float64 {
 		return 4
 	}
 	return 2
-}
-
-// selectKth rearranges v so that v[k] is the value it would have if v were
-// sorted, with no larger value before it and no smaller after
-// (Hoare's FIND, Communications of the ACM 4(7), 1961, Algorithm 65).
-func selectKth(v []float64, k int) {
-	lo, hi := 0, len(v)-1
-	for lo < hi {
-		pivot := v[lo+(hi-lo)/2]
-		i, j := lo, hi
-		for i <= j {
-			for v[i] < pivot {
-				i++
-			}
-			for v[j] > pivot {
-				j--
-			}
-			if i <= j {
-				v[i], v[j] = v[j], v[i]
-				i++
-				j--
-			}
-		}
-		switch {
-		case k <= j:
-			hi = j
-		case k >= i:
-			lo = i
-		default:
-			return
-		}
-	}
 }

@@ -93,7 +93,7 @@ func TestSelectKth(t *testing.T) {
 		s := append([]float64(nil), v...)
 		sort.Float64s(s)
 		k := rng.IntN(n)
-		selectKth(v, k)
+		SelectKth(v, k)
 		if v[k] != s[k] {
 			t.Fatalf("n %d k %d: %g, sorted %g", n, k, v[k], s[k])
 		}

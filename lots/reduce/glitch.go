@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"lotproof/stats"
 )
 
 // Glitch is a point, or a short run of points, that departs from its
@@ -359,7 +361,7 @@ func rawNoise(n int, v func(int) float64) float64 {
 		d[i-2] = float32(math.Abs(a - 2*b + c))
 		a, b = b, c
 	}
-	return float64(selectK(d, len(d)/2)) / (normQ75 * math.Sqrt(6))
+	return float64(stats.SelectKth(d, len(d)/2)) / (normQ75 * math.Sqrt(6))
 }
 
 // glitches finds force and extension glitches in the raw points, leaves

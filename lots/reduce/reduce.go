@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"lotproof/lots"
+	"lotproof/stats"
 )
 
 // DefaultOffset is the plastic strain of the offset method: 0.2 %
@@ -576,7 +577,7 @@ func (res *Result) monotonic(x, s []float64, ln, lnLast []int, delta float64, re
 	}
 	typ := 0.0
 	if len(steps) > 0 {
-		typ = selectK(steps, len(steps)/2)
+		typ = stats.SelectKth(steps, len(steps)/2)
 	}
 	ox := append(make([]float64, 0, len(x)), x[0])
 	os := append(make([]float64, 0, len(x)), s[0])
@@ -960,50 +961,7 @@ func noiseSD(s []float64) float64 {
 	for i := 1; i < len(s)-1; i++ {
 		d[i-1] = math.Abs(s[i-1] - 2*s[i] + s[i+1])
 	}
-	return selectK(d, len(d)/2) / (normQ75 * math.Sqrt(6))
-}
-
-// selectK returns the k-th smallest value of v (0-based), reordering v:
-// Hoare's selection algorithm FIND (Comm. ACM 4(7), 1961, Algorithm 65)
-// with a median-of-three pivot; expected O(n).
-func selectK[T ~float32 | ~float64](v []T, k int) T {
-	lo, hi := 0, len(v)-1
-	for lo < hi {
-		mid := lo + (hi-lo)/2
-		if v[mid] < v[lo] {
-			v[mid], v[lo] = v[lo], v[mid]
-		}
-		if v[hi] < v[lo] {
-			v[hi], v[lo] = v[lo], v[hi]
-		}
-		if v[hi] < v[mid] {
-			v[hi], v[mid] = v[mid], v[hi]
-		}
-		pivot := v[mid]
-		i, j := lo, hi
-		for i <= j {
-			for v[i] < pivot {
-				i++
-			}
-			for v[j] > pivot {
-				j--
-			}
-			if i <= j {
-				v[i], v[j] = v[j], v[i]
-				i++
-				j--
-			}
-		}
-		switch {
-		case k <= j:
-			hi = j
-		case k >= i:
-			lo = i
-		default:
-			return v[k]
-		}
-	}
-	return v[k]
+	return stats.SelectKth(d, len(d)/2) / (normQ75 * math.Sqrt(6))
 }
 
 // forceScale is the factor from the record's force unit to N (1 when

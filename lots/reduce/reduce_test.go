@@ -5,7 +5,6 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
-	"sort"
 	"strings"
 	"testing"
 
@@ -696,26 +695,6 @@ func TestSynthesizeDeterministic(t *testing.T) {
 	bad.Rm = bad.Rp
 	if _, err := Synthesize(bad); err == nil {
 		t.Error("Rm = Rp accepted")
-	}
-}
-
-// TestSelectK: the selection agrees with sorting (sort.Float64s, the
-// standard library's reference) on random data with ties, for every k.
-func TestSelectK(t *testing.T) {
-	rng := rand.New(rand.NewPCG(3, 4))
-	for _, n := range []int{1, 2, 3, 10, 101, 1000} {
-		v := make([]float64, n)
-		for i := range v {
-			v[i] = float64(rng.IntN(n/2 + 1))
-		}
-		sorted := append([]float64(nil), v...)
-		sort.Float64s(sorted)
-		for k := 0; k < n; k++ {
-			w := append([]float64(nil), v...)
-			if got := selectK(w, k); got != sorted[k] {
-				t.Fatalf("n %d k %d: %g, want %g", n, k, got, sorted[k])
-			}
-		}
 	}
 }
 
