@@ -276,9 +276,12 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
 		auto := !(opt.ModulusTo > opt.ModulusFrom)
 		if auto && res.Fit.Slope > 0 {
-			// Replaces the fit in res when the fitted curve is taken; the
-			// window it used is in the audit, not needed below.
-			res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off)
+			// Replaces the fit in res when the fitted curve is taken; its
+			// window starts where the toe compensation below starts (its
+			// end is in the audit, not needed below).
+			if l2, _, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
+				lo = l2
+			}
 		}
 		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
