@@ -98,7 +98,11 @@ func runAccept(o acceptOptions, st streams) error {
 	c, n := res.Counts, len(res.Lots)
 	// The judgement is only shown: convert it in place (no second copy of
 	// a large result).
-	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res.DisplayInPlace(o.Out.System), rs, o.Table, o.Out) })
+	// The lots table (CSV's default) shows no values in units.
+	if o.Out.Format != render.CSV || !o.Table.wanted(render.CSV, "lots") {
+		res.DisplayInPlace(o.Out.System)
+	}
+	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res, rs, o.Table, o.Out) })
 	if err != nil {
 		return err
 	}

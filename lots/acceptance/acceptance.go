@@ -650,11 +650,25 @@ func (r *Result) Display(sys units.System) *Result {
 // DisplayInPlace converts r itself as Display does, without a copy (for a
 // large result that is only shown), and returns it.
 func (r *Result) DisplayInPlace(sys units.System) *Result {
+	// The units are few: parse each symbol once.
+	type parsed struct {
+		u   units.Unit
+		err error
+	}
+	seen := map[string]parsed{}
+	parse := func(sym string) (units.Unit, error) {
+		p, ok := seen[sym]
+		if !ok {
+			p.u, p.err = units.Parse(sym)
+			seen[sym] = p
+		}
+		return p.u, p.err
+	}
 	for i := range r.Lots {
 		l := &r.Lots[i]
 		for j := range l.Properties {
 			p := &l.Properties[j]
-			u, err := units.Parse(p.Unit)
+			u, err := parse(p.Unit)
 			if err != nil {
 				continue
 			}
@@ -666,7 +680,7 @@ func (r *Result) DisplayInPlace(sys units.System) *Result {
 		}
 		for j := range l.Outliers {
 			o := &l.Outliers[j]
-			u, err := units.Parse(o.Unit)
+			u, err := parse(o.Unit)
 			if err != nil {
 				continue
 			}
