@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -11,6 +12,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"lotproof/lots"
 	"lotproof/lots/allowables"
 	"lotproof/lots/campaign"
 	"lotproof/lots/progress"
@@ -38,6 +40,7 @@ type campaignOptions struct {
 	TargetBasis  string
 	Workers      int
 	Figure       string // SVG file of the design value ratio against plan
+	Report       string // one-file HTML report: the plans, the figure, the notes
 	Out          output
 }
 
@@ -100,6 +103,7 @@ assumes the population you describe.`,
 	f.Float64Var(&o.TargetRatio, "target-ratio", 0, "name the cheapest plan whose median design value reaches this fraction of the true percentile")
 	f.StringVar(&o.TargetBasis, "target-basis", o.TargetBasis, "the basis --target-ratio applies to: a or b")
 	f.StringVar(&o.Figure, "figure", "", "also write a figure (SVG) of the design value ratio against plan, with the 10th-90th percentile band")
+	f.StringVar(&o.Report, "report", "", "also write a one-file HTML report: the plans, that figure and the notes")
 	f.IntVar(&o.Workers, "workers", 0, "parallel workers (default: all cores; the answer does not depend on it)")
 	return cmd
 }
@@ -191,7 +195,7 @@ func runCampaign(o campaignOptions, st streams) error {
 		return usageError{err}
 	}
 	var svg []byte
-	if o.Figure != "" {
+	if o.Figure != "" || o.Report != "" {
 		if svg, err = campaignFigure(res); err != nil {
 			return err
 		}
@@ -212,7 +216,41 @@ func runCampaign(o campaignOptions, st streams) error {
 			return fmt.Errorf("writing the figure: %w", err)
 		}
 	}
+	if o.Report != "" {
+		var b bytes.Buffer
+		if err := campaignDocument(res, svg).WriteHTML(&b); err != nil {
+			return err
+		}
+		if err := os.WriteFile(o.Report, b.Bytes(), 0o644); err != nil {
+			return fmt.Errorf("writing the report: %w", err)
+		}
+	}
 	return nil
+}
+
+// campaignDocument lays the planner's answer out as a one-file HTML
+// report: the table of plans with its notes, and the figure of the design
+// value ratio against plan with the band of the simulated campaigns.
+func campaignDocument(res *campaign.Result, svg []byte) *report.Document {
+	t := campaignText(res)
+	title, intro, _ := strings.Cut(t.Title, "\n")
+	cols := make([]string, len(t.Columns))
+	for i, c := range t.Columns {
+		if i < len(t.Right) && t.Right[i] {
+			c = ">" + c
+		}
+		cols[i] = c
+	}
+	rt := &report.Table{Title: "Candidate plans", Columns: report.Cols(cols...)}
+	for _, r := range t.Rows {
+		rt.Rows = append(rt.Rows, report.Cells(r...))
+	}
+	sec := report.Section{Title: title, Intro: intro, Blocks: []report.Block{rt,
+		&report.Figure{Title: "Design value against plan", SVG: svg,
+			Caption: "Per plan, the median design value as a fraction of the population's true percentile (A- and B-basis), with the band from the 10th to the 90th percentile of the simulated campaigns."},
+		report.List{Title: "Notes", Items: t.Notes}}}
+	return &report.Document{Title: "Campaign plan", Cautions: res.Cautions,
+		Meta: report.Meta{Version: lots.Version, Seed: strconv.FormatUint(res.Seed, 10)}, Sections: []report.Section{sec}}
 }
 
 // campaignFigure draws the A- and B-basis ratio per plan with the band

@@ -4,6 +4,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -82,5 +83,32 @@ func TestCampaignBadInput(t *testing.T) {
 		if code != 2 || out != "" || !strings.Contains(errs, c.want) {
 			t.Errorf("%v: exit %d, stdout %d bytes, stderr %q", c.args, code, len(out), errs)
 		}
+	}
+}
+
+// TestCampaignReport: --report writes one self-contained HTML file with
+// the table of plans (a row per plan, in the order given), the figure of
+// the design value ratio against plan, and the cautions.
+func TestCampaignReport(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "plan.html")
+	code, _, errs := run(t, "", "campaign", "--lots", "3,5", "--specimens", "6", "--cv", "5%", "--runs", "60", "--report", name)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	b, err := os.ReadFile(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := string(b)
+	for _, want := range []string{"Candidate plans", "Design value against plan", "<svg", "licensed engineering judgement", "Coverage: the share of campaigns"} {
+		if !strings.Contains(h, want) {
+			t.Errorf("the report lacks %q", want)
+		}
+	}
+	if i, j := strings.Index(h, `">3</td>`), strings.Index(h, `">5</td>`); i < 0 || j < 0 || i > j {
+		t.Errorf("plan rows missing or out of order (3 lots at %d, 5 lots at %d)", i, j)
+	}
+	if strings.Contains(h, "<script") || strings.Contains(h, `src="http`) || strings.Contains(h, `href="http`) {
+		t.Error("the report is not self-contained")
 	}
 }
