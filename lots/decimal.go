@@ -30,10 +30,8 @@ func quickDecimal(s string) (v float64, ok bool) {
 			}
 			m = 10*m + uint64(c-'0')
 			digits++
-			if m != 0 {
-				if m >= 1e15 {
-					return 0, false
-				}
+			if m >= 1e15 {
+				return 0, false
 			}
 			if point {
 				frac++

@@ -48,8 +48,12 @@ type fracKey struct {
 }
 
 type fracTable struct {
+	z      float64 // z_target, for delta0
 	panels [fracPanels]fracPanel
 }
+
+// fracDelta0 is delta0(t) above, for z = z_target and df degrees of freedom.
+func fracDelta0(t, z, df float64) float64 { return t - z*math.Sqrt(1+t*t/(2*df)) }
 
 type fracPanel struct {
 	once sync.Once
@@ -96,13 +100,11 @@ func (c *Factors) TailFractionBound(n int, q, gamma float64, upper bool) (float6
 	tab := c.fracTable(fracKey{n, target})
 	p := &tab.panels[j]
 	a := -fracUMax + float64(j)*fracPanelWidth
-	z := normalQuantile(target)
-	delta0 := func(t float64) float64 { return t - z*math.Sqrt(1+t*t/(2*df)) }
-	p.once.Do(func() { p.build(a, s0, df, target, delta0) })
+	p.once.Do(func() { p.build(a, s0, df, target, tab.z) })
 	if !p.ok {
 		return TailFractionBound(n, q, gamma, upper)
 	}
-	delta := p.eval(2*(u-a)/fracPanelWidth-1) + delta0(t)
+	delta := p.eval(2*(u-a)/fracPanelWidth-1) + fracDelta0(t, tab.z, df)
 	return normalCDF(-delta / math.Sqrt(float64(n))), nil
 }
 
@@ -114,7 +116,7 @@ func (c *Factors) fracTable(key fracKey) *fracTable {
 	}
 	t := c.frac[key]
 	if t == nil {
-		t = &fracTable{}
+		t = &fracTable{z: normalQuantile(key.target)}
 		c.frac[key] = t
 	}
 	return t
@@ -122,7 +124,7 @@ func (c *Factors) fracTable(key fracKey) *fracTable {
 
 // build solves the remainder at the panel's Chebyshev points on
 // [a, a + fracPanelWidth] in u, forms the coefficients and checks them.
-func (p *fracPanel) build(a, s0, df, target float64, delta0 func(float64) float64) {
+func (p *fracPanel) build(a, s0, df, target, z float64) {
 	tAt := func(x float64) float64 { return s0 * math.Sinh(a+0.5*fracPanelWidth*(x+1)) }
 	var f [fracNodes]float64
 	scale := 1.0
@@ -132,7 +134,7 @@ func (p *fracPanel) build(a, s0, df, target float64, delta0 func(float64) float6
 		if err != nil || math.IsNaN(d) || math.IsInf(d, 0) {
 			return
 		}
-		f[j] = d - delta0(t)
+		f[j] = d - fracDelta0(t, z, df)
 		scale = math.Max(scale, math.Abs(d))
 	}
 	for k := range p.coef {
@@ -148,7 +150,7 @@ func (p *fracPanel) build(a, s0, df, target float64, delta0 func(float64) float6
 	const x = 0.2718 // off every node
 	t := tAt(x)
 	d, err := solveNoncentrality(t, df, target)
-	if err != nil || !(math.Abs(p.eval(x)+delta0(t)-d) <= fracCheckTol*math.Max(1, math.Abs(d))) {
+	if err != nil || !(math.Abs(p.eval(x)+fracDelta0(t, z, df)-d) <= fracCheckTol*math.Max(1, math.Abs(d))) {
 		return
 	}
 	p.ok = true

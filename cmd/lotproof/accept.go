@@ -124,11 +124,11 @@ func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, ta
 	if out.Format == render.JSON {
 		// The lots one at a time: the text of a hundred thousand lots
 		// need not be built whole in memory.
-		head := *shown
-		head.Lots = nil
 		if len(shown.Lots) == 0 {
 			return render.WriteJSON(w, shown)
 		}
+		head := *shown
+		head.Lots = nil
 		return render.WriteJSONList(w, &head, "lots", len(shown.Lots), func(i int) any { return &shown.Lots[i] })
 	}
 	tables, err := table.pick(out.Format, acceptTables(shown, rs, func(name string) bool { return table.wanted(out.Format, name) }))
