@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -87,30 +88,103 @@ func runAccept(o acceptOptions, st streams) error {
 	if err != nil {
 		return err
 	}
-	var rs render.Resolutions // for tables people read only
-	if o.Out.Format == render.Text {
-		rs = render.Resolutions{}
+	var res *acceptance.Result
+	switch o.Out.Format {
+	case render.CSV, render.JSON:
+		// Each lot is written as soon as it is judged and dropped, so
+		// that memory does not grow with the number of lots.
+		res, err = acceptStreamed(o, st, specs)
+	default:
+		res, err = acceptKept(o, st, specs)
 	}
-	res, err := judgeStream(o.Data, o.Input, st, specs, rs, o.Out.System)
 	if err != nil {
 		return err
 	}
-	c, n := res.Counts, len(res.Lots)
-	// The judgement is only shown: convert it in place (no second copy of
-	// a large result).
-	// The lots table (CSV's default) shows no values in units.
-	if o.Out.Format != render.CSV || !o.Table.wanted(render.CSV, "lots") {
-		res.DisplayInPlace(o.Out.System)
-	}
-	err = emit(st.Out, func(w io.Writer) error { return writeShown(w, res, rs, o.Table, o.Out) })
-	if err != nil {
-		return err
-	}
-	if c.Nonconforming+c.Undecided+c.NotJudged > 0 {
+	if c := res.Counts; c.Nonconforming+c.Undecided+c.NotJudged > 0 {
+		n := c.Conforming + c.Nonconforming + c.Undecided + c.NotJudged
 		return verdictError{fmt.Sprintf("%d of %d lots conforming, %d nonconforming, %d undecided, %d not judged",
 			c.Conforming, n, c.Nonconforming, c.Undecided, c.NotJudged)}
 	}
 	return nil
+}
+
+// acceptKept judges every lot, keeps the results and writes them (a table
+// for people: the values' resolutions are known only at the end).
+func acceptKept(o acceptOptions, st streams, specs []*spec.Spec) (*acceptance.Result, error) {
+	var rs render.Resolutions // for tables people read only
+	if o.Out.Format == render.Text {
+		rs = render.Resolutions{}
+	}
+	res, err := judgeStream(o.Data, o.Input, st, specs, rs, o.Out.System, nil)
+	if err != nil {
+		return nil, err
+	}
+	// The judgement is only shown: convert it in place (no second copy of
+	// a large result).
+	res.DisplayInPlace(o.Out.System)
+	return res, emit(st.Out, func(w io.Writer) error { return writeShown(w, res, rs, o.Table, o.Out) })
+}
+
+// acceptStreamed judges the lots and writes each one's CSV rows or JSON as
+// soon as it is judged, into a spill buffer (nothing partial is written
+// when the input turns out bad), and then writes the whole.
+func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptance.Result, error) {
+	by, _ := lots.ParseGroupBy(o.Input.GroupBy)
+	var buf *spillBuffer
+	defer func() { buf.close() }()
+	var lay *acceptLayout
+	var cw *csv.Writer
+	var items *render.JSONItems
+	dis := acceptance.NewDisplay(o.Out.System)
+	table := o.Table.Name
+	if table == "" {
+		table = acceptTableNames[0]
+	}
+	// begin starts over (the input is read again when it turns out not
+	// to be grouped by lot).
+	begin := func() {
+		buf.close()
+		buf = &spillBuffer{}
+		if o.Out.Format == render.JSON {
+			items = render.NewJSONItems(buf)
+			return
+		}
+		lay = newAcceptLayout(string(by), nil, specs, func(name string) bool { return name == table })
+		cw = csv.NewWriter(buf)
+		cw.Write(lay.table(table).Columns)
+	}
+	deliver := func(l *acceptance.LotResult) error {
+		if items != nil {
+			dis.Lot(l)
+			return items.Add(l)
+		}
+		if table != "lots" { // the lots table shows no values in units
+			dis.Lot(l)
+		}
+		lay.add(l)
+		return lay.table(table).WriteCSVRows(cw)
+	}
+	res, err := judgeStreamFrom(o.Data, o.Input, st, specs, nil, o.Out.System, begin, deliver)
+	if err != nil {
+		return nil, err
+	}
+	if buf == nil { // no pass over the input began
+		begin()
+	}
+	if items != nil && items.Len() == 0 {
+		return res, render.WriteJSON(st.Out, res)
+	}
+	if items != nil {
+		if err := items.Flush(); err != nil {
+			return nil, err
+		}
+		return res, render.WriteJSONListItems(st.Out, res, "lots", items.Len(), buf.writeTo)
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return nil, err
+	}
+	return res, buf.writeTo(st.Out)
 }
 
 // writeAccept writes a judgement in the output's format and units; rs are
@@ -141,8 +215,16 @@ func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, ta
 // judgeStream reads the results file one lot at a time and judges the lots
 // in parallel as they come (acceptance.Judging); the errors are those of
 // reading the whole file and then calling acceptance.Judge. The values'
-// resolutions in the units of sys go into rs (when not nil).
-func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System) (*acceptance.Result, error) {
+// resolutions in the units of sys go into rs (when not nil). With deliver,
+// each lot's result goes to it as soon as it is judged (in order) instead
+// of into the result.
+func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System, deliver func(*acceptance.LotResult) error) (*acceptance.Result, error) {
+	return judgeStreamFrom(name, in, st, specs, rs, sys, func() {}, deliver)
+}
+
+// judgeStreamFrom is judgeStream with begin called before every pass over
+// the input (what was delivered before is void then).
+func judgeStreamFrom(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System, begin func(), deliver func(*acceptance.LotResult) error) (*acceptance.Result, error) {
 	var j *acceptance.Judging
 	var props []lots.Property
 	var specErr error
@@ -151,7 +233,11 @@ func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, r
 		if j != nil {
 			j.Stop()
 		}
+		begin()
 		j, specErr = acceptance.Start(d, specs, by)
+		if j != nil && deliver != nil {
+			j.Deliver(deliver)
+		}
 		props = d.Properties
 	}, func(l *lots.Lot) error {
 		if rs != nil {
@@ -184,56 +270,100 @@ func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, r
 var acceptTableNames = []string{"lots", "limits", "outliers"}
 
 func acceptTables(r *acceptance.Result, rs render.Resolutions, want func(name string) bool) []*render.Table {
-	by := r.GroupBy
+	lay := newAcceptLayout(r.GroupBy, rs, nil, want)
+	lay.minN = r.MinSpecimens
+	for i := range r.Lots {
+		lay.add(&r.Lots[i])
+	}
+	return lay.finish(r)
+}
+
+// acceptLayout lays lots out as rows of the lot, limit and outlier tables,
+// one lot at a time; finish adds the notes.
+type acceptLayout struct {
+	lt, pt, ot          *render.Table
+	wantL, wantP, wantO bool
+	rs                  render.Resolutions
+	minN                func(spec string) int
+	retests             []string
+	n                   int
+}
+
+// newAcceptLayout makes the tables (by is the grouping column); only the
+// tables want names get rows (a CSV stream holds one: formatting the
+// others is most of the time spent here). The fewest specimens of a lot's
+// specification come from specs.
+func newAcceptLayout(by string, rs render.Resolutions, specs []*spec.Spec, want func(name string) bool) *acceptLayout {
 	lt := render.NewTable("Lot verdicts", by, "supplier", "material", "spec", ">n", "verdict", "reasons")
 	pt := render.NewTable("Limits", by, "property", "side", "unit", ">limit", ">n", ">mean", ">sd", ">extreme", ">mean bound", ">k", ">tol. bound", ">frac. est", ">frac. upper", "verdict", ">needed n")
 	lt.Name, pt.Name = "lots", "limits"
 	ot := render.NewTable("Values flagged by the maximum normed residual test (alpha 0.05; kept in the figures)", by, "specimen", "property", "unit", ">value", ">MNR", ">critical", ">line")
 	ot.Name = "outliers"
-	var retests []string
-	// Rows only for the tables that will be written (a CSV stream holds
-	// one): formatting the others is most of the time spent here.
-	wantL, wantP, wantO := want(lt.Name), want(pt.Name), want(ot.Name)
-	for _, l := range r.Lots {
-		why, retest := acceptance.DecisiveReasons(l, r.MinSpecimens(l.Spec))
-		if retest != "" && !slices.Contains(retests, retest) {
-			retests = append(retests, retest)
-		}
-		if wantL {
-			lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, why)
-		}
-		for _, p := range l.Properties {
-			if !wantP {
-				break
-			}
-			need := ""
-			switch {
-			case p.NeededN < 0:
-				need = "not reachable"
-			case p.NeededN > acceptance.MaxPlannedSpecimens:
-				need = ">" + strconv.Itoa(acceptance.MaxPlannedSpecimens)
-			case p.NeededN > 0:
-				need = strconv.Itoa(p.NeededN)
-			}
-			r := rs.Of(l.Material, p.Property)
-			pt.Add(l.Lot, p.Property, p.Side, p.Unit, r.Given(float64(p.Limit)), strconv.Itoa(p.N),
-				r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Extreme)),
-				r.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), r.Stat(float64(p.ToleranceBound)),
-				render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
-		}
-		for _, f := range l.Outliers {
-			if !wantO {
-				break
-			}
-			ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, rs.Of(l.Material, f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
-		}
+	minN := map[string]int{}
+	for _, s := range specs {
+		minN[s.Label()] = s.Acceptance.MinSpecimens
 	}
+	return &acceptLayout{lt: lt, pt: pt, ot: ot, wantL: want(lt.Name), wantP: want(pt.Name), wantO: want(ot.Name), rs: rs,
+		minN: func(spec string) int { return minN[spec] }}
+}
+
+// table returns the table called name.
+func (a *acceptLayout) table(name string) *render.Table {
+	switch name {
+	case a.pt.Name:
+		return a.pt
+	case a.ot.Name:
+		return a.ot
+	}
+	return a.lt
+}
+
+// add lays out one lot (in display units).
+func (a *acceptLayout) add(l *acceptance.LotResult) {
+	a.n++
+	why, retest := acceptance.DecisiveReasons(*l, a.minN(l.Spec))
+	if retest != "" && !slices.Contains(a.retests, retest) {
+		a.retests = append(a.retests, retest)
+	}
+	if a.wantL {
+		a.lt.Add(l.Lot, l.Supplier, l.Material, l.Spec, strconv.Itoa(l.N), l.Verdict, why)
+	}
+	for _, p := range l.Properties {
+		if !a.wantP {
+			break
+		}
+		need := ""
+		switch {
+		case p.NeededN < 0:
+			need = "not reachable"
+		case p.NeededN > acceptance.MaxPlannedSpecimens:
+			need = ">" + strconv.Itoa(acceptance.MaxPlannedSpecimens)
+		case p.NeededN > 0:
+			need = strconv.Itoa(p.NeededN)
+		}
+		r := a.rs.Of(l.Material, p.Property)
+		a.pt.Add(l.Lot, p.Property, p.Side, p.Unit, r.Given(float64(p.Limit)), strconv.Itoa(p.N),
+			r.Stat(float64(p.Mean)), r.Spread(float64(p.SD)), r.Given(float64(p.Extreme)),
+			r.Stat(float64(p.MeanBound)), render.Factor(float64(p.K)), r.Stat(float64(p.ToleranceBound)),
+			render.Fraction(float64(p.FractionEstimate)), render.Fraction(float64(p.FractionUpper)), p.Verdict, need)
+	}
+	for _, f := range l.Outliers {
+		if !a.wantO {
+			break
+		}
+		a.ot.Add(l.Lot, f.Specimen, f.Property, f.Unit, a.rs.Of(l.Material, f.Property).Given(float64(f.Value)), render.Factor(f.MNR), render.Factor(f.Critical), strconv.Itoa(f.Line))
+	}
+}
+
+// finish adds the notes of r (its lots laid out) and returns the tables.
+func (a *acceptLayout) finish(r *acceptance.Result) []*render.Table {
+	lt, pt, ot := a.lt, a.pt, a.ot
 	c := r.Counts
-	lt.Note("%d lots: %d conforming, %d nonconforming, %d undecided, %d not judged.", len(r.Lots), c.Conforming, c.Nonconforming, c.Undecided, c.NotJudged)
+	lt.Note("%d lots: %d conforming, %d nonconforming, %d undecided, %d not judged.", a.n, c.Conforming, c.Nonconforming, c.Undecided, c.NotJudged)
 	for _, s := range r.Specs {
 		lt.Note("Specification %s rev %s (%s): content %g, confidence %g, at least %d specimens.", s.ID, s.Revision, s.Material, s.Content, s.Confidence, s.MinN)
 	}
-	for _, rt := range retests {
+	for _, rt := range a.retests {
 		lt.Note("Retest: %s (for a lot that is not conforming).", rt)
 	}
 	lt.Note("Source %s, SHA-256 %s.", r.Source, r.Digest)

@@ -165,7 +165,7 @@ func (b *spillBuffer) writeTo(w io.Writer) error {
 }
 
 func (b *spillBuffer) close() {
-	if b.f != nil {
+	if b != nil && b.f != nil {
 		b.f.Close()
 	}
 }

@@ -153,30 +153,41 @@ func Judge(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Result, error
 }
 
 // Judging judges lots as they are added, on every core (GOMAXPROCS
-// workers), and keeps the results in the order the lots were added, so
-// that the result does not depend on the number of cores. The factors
+// workers), and hands the results over in the order the lots were added,
+// so that the result does not depend on the number of cores. The factors
 // that depend only on the number of specimens (k, the t quantile of the
 // mean bound) come from one stats.Factors cache, computed once per n.
+//
+// By default Finish returns every lot's result. With Deliver, each lot's
+// result goes to a function as soon as it and every lot before it are
+// judged, and is not kept: memory then does not grow with the number of
+// lots (at most a few batches per worker are in flight).
 type Judging struct {
-	d     *lots.Dataset
-	specs []*spec.Spec
-	by    lots.GroupBy
-	f     *stats.Factors
-	jobs  chan []job
-	batch []job // lots added but not yet queued
-	wg    sync.WaitGroup
-	out   []*judged
-	done  bool
+	d       *lots.Dataset
+	specs   []*spec.Spec
+	by      lots.GroupBy
+	f       *stats.Factors
+	jobs    chan *batch
+	cur     *batch   // lots added but not yet queued
+	pending []*batch // queued, in order, not yet handed over
+	limit   int      // most batches in flight before Add waits
+	wg      sync.WaitGroup
+	done    bool
+
+	sink   func(*LotResult) error // nil: keep the results in kept
+	kept   []LotResult
+	counts Counts
+	err    error // the first error, in order of the lots
 }
 
-type judged struct {
-	r   LotResult
-	err error
-}
-
-type job struct {
-	l *lots.Lot
-	o *judged
+// batch is judgeBatch lots handed to a worker at a time (fewer hand-offs
+// between goroutines than one lot at a time); ready is closed when all
+// are judged.
+type batch struct {
+	lots  []*lots.Lot
+	out   []LotResult
+	errs  []error
+	ready chan struct{}
 }
 
 // workers is the number of goroutines judging lots (0: GOMAXPROCS); tests
@@ -215,79 +226,143 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 	if n <= 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan []job, 4*n)}
+	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan *batch, 4*n), limit: 8 * n}
 	for range n {
 		j.wg.Add(1)
 		go func() {
 			defer j.wg.Done()
 			for b := range j.jobs {
-				for _, jb := range b {
-					jb.o.r, jb.o.err = judgeLot(j.d, jb.l, j.specs, j.f)
+				for i, l := range b.lots {
+					b.out[i], b.errs[i] = judgeLot(j.d, l, j.specs, j.f)
+					b.lots[i] = nil // the values are not needed any more
 				}
+				close(b.ready)
 			}
 		}()
 	}
 	return j, nil
 }
 
-// judgeBatch is how many lots go to a worker at a time (fewer hand-offs
-// between goroutines than one lot at a time).
+// judgeBatch is how many lots go to a worker at a time.
 const judgeBatch = 16
 
-// Add queues a lot for judging; the lot belongs to the Judging from then on.
+// Deliver makes every lot's result go to fn, in the order the lots were
+// added, instead of into the Result that Finish returns. fn runs on the
+// goroutine that calls Add or Finish, one lot at a time; the result is
+// fn's only for the call. An error from fn stops the handing over, and
+// Finish returns it. Call Deliver before the first Add.
+func (j *Judging) Deliver(fn func(*LotResult) error) { j.sink = fn }
+
+// Add queues a lot for judging; the lot belongs to the Judging from then
+// on. It hands over the results that are ready, and waits for the oldest
+// when too many lots are in flight.
 func (j *Judging) Add(l *lots.Lot) {
-	o := &judged{}
-	j.out = append(j.out, o)
-	j.batch = append(j.batch, job{l, o})
-	if len(j.batch) == judgeBatch {
-		j.jobs <- j.batch
-		j.batch = make([]job, 0, judgeBatch)
+	if j.cur == nil {
+		j.cur = &batch{lots: make([]*lots.Lot, 0, judgeBatch), ready: make(chan struct{})}
 	}
+	j.cur.lots = append(j.cur.lots, l)
+	if len(j.cur.lots) == judgeBatch {
+		j.queue()
+		j.handOver(false)
+	}
+}
+
+// queue sends the current batch to the workers.
+func (j *Judging) queue() {
+	b := j.cur
+	j.cur = nil
+	if b == nil || len(b.lots) == 0 {
+		return
+	}
+	b.out, b.errs = make([]LotResult, len(b.lots)), make([]error, len(b.lots))
+	j.pending = append(j.pending, b)
+	j.jobs <- b
+}
+
+// handOver passes on the results of the batches at the head of the queue
+// that are judged; with all, or while too many are in flight, it waits
+// for them.
+func (j *Judging) handOver(all bool) {
+	for len(j.pending) > 0 {
+		b := j.pending[0]
+		if all || len(j.pending) > j.limit {
+			<-b.ready
+		} else {
+			select {
+			case <-b.ready:
+			default:
+				return
+			}
+		}
+		j.pending[0] = nil
+		j.pending = j.pending[1:]
+		for i := range b.out {
+			j.take(&b.out[i], b.errs[i])
+		}
+	}
+}
+
+// take counts one lot's result and keeps it or hands it to the sink.
+func (j *Judging) take(r *LotResult, err error) {
+	if j.err != nil {
+		return
+	}
+	if err != nil {
+		j.err = err
+		return
+	}
+	switch r.Verdict {
+	case Conforming:
+		j.counts.Conforming++
+	case Nonconforming:
+		j.counts.Nonconforming++
+	case Undecided:
+		j.counts.Undecided++
+	default:
+		j.counts.NotJudged++
+	}
+	if j.sink != nil {
+		j.err = j.sink(r)
+		return
+	}
+	j.kept = append(j.kept, *r)
 }
 
 // Stop ends the workers and drops the results.
 func (j *Judging) Stop() {
+	j.end()
+	j.pending, j.kept = nil, nil
+}
+
+// end queues the last batch and ends the workers.
+func (j *Judging) end() {
 	if !j.done {
 		j.done = true
-		if len(j.batch) > 0 {
-			j.jobs <- j.batch
-			j.batch = nil
-		}
+		j.queue()
 		close(j.jobs)
 		j.wg.Wait()
 	}
-	j.out = nil
 }
 
 // Finish waits for every lot and returns the result, with the source and
-// digest of d. The error is that of the first lot (in order) that failed.
+// digest of d: the counts, and the lots unless they went to Deliver's
+// function. The error is that of the first lot (in order) that failed, or
+// the first the delivery function returned.
 func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
-	out := j.out
-	j.Stop()
+	if !j.done {
+		j.queue()
+	}
+	j.handOver(true)
+	j.end()
+	if j.err != nil {
+		return nil, j.err
+	}
 	res := &Result{Source: d.Source, Digest: d.Digest, GroupBy: string(j.by), Method: Method, Cautions: []string{Caution},
-		Lots: make([]LotResult, 0, len(out))}
+		Lots: j.kept, Counts: j.counts}
+	j.kept = nil
 	for _, s := range j.specs {
 		res.Specs = append(res.Specs, SpecRef{ID: s.ID, Revision: s.Revision, Material: s.Material, Source: s.Source,
 			Content: s.Acceptance.Content, Confidence: s.Acceptance.Confidence, MinN: s.Acceptance.MinSpecimens})
-	}
-	for _, o := range out {
-		if o.err != nil {
-			return nil, o.err
-		}
-		switch o.r.Verdict {
-		case Conforming:
-			res.Counts.Conforming++
-		case Nonconforming:
-			res.Counts.Nonconforming++
-		case Undecided:
-			res.Counts.Undecided++
-		default:
-			res.Counts.NotJudged++
-		}
-		res.Lots = append(res.Lots, o.r)
-	}
-	if len(res.Lots) == 0 {
-		res.Lots = nil
 	}
 	return res, nil
 }
@@ -650,44 +725,60 @@ func (r *Result) Display(sys units.System) *Result {
 // DisplayInPlace converts r itself as Display does, without a copy (for a
 // large result that is only shown), and returns it.
 func (r *Result) DisplayInPlace(sys units.System) *Result {
-	// The units are few: parse each symbol once.
-	type parsed struct {
-		u   units.Unit
-		err error
-	}
-	seen := map[string]parsed{}
-	parse := func(sym string) (units.Unit, error) {
-		p, ok := seen[sym]
-		if !ok {
-			p.u, p.err = units.Parse(sym)
-			seen[sym] = p
-		}
-		return p.u, p.err
-	}
+	dis := NewDisplay(sys)
 	for i := range r.Lots {
-		l := &r.Lots[i]
-		for j := range l.Properties {
-			p := &l.Properties[j]
-			u, err := parse(p.Unit)
-			if err != nil {
-				continue
-			}
-			du := u.Display(sys)
-			c := func(f lots.Float) lots.Float { return lots.Float(du.FromInternal(u.ToInternal(float64(f)))) }
-			p.Limit, p.Mean, p.Extreme, p.MeanBound, p.ToleranceBound = c(p.Limit), c(p.Mean), c(p.Extreme), c(p.MeanBound), c(p.ToleranceBound)
-			p.SD = lots.Float(du.FromInternal(u.ToInternal(float64(p.SD))))
-			p.Unit = du.Symbol
-		}
-		for j := range l.Outliers {
-			o := &l.Outliers[j]
-			u, err := parse(o.Unit)
-			if err != nil {
-				continue
-			}
-			du := u.Display(sys)
-			o.Value = lots.Float(du.FromInternal(u.ToInternal(float64(o.Value))))
-			o.Unit = du.Symbol
-		}
+		dis.Lot(&r.Lots[i])
 	}
 	return r
+}
+
+// Display converts lot results to the display units of a unit system, as
+// Result.Display does, one lot at a time (for lots that are shown as they
+// are judged). Each unit symbol is parsed once.
+type Display struct {
+	sys  units.System
+	seen map[string]parsedUnit
+}
+
+type parsedUnit struct {
+	u   units.Unit
+	err error
+}
+
+// NewDisplay returns a converter to the display units of sys.
+func NewDisplay(sys units.System) *Display { return &Display{sys: sys, seen: map[string]parsedUnit{}} }
+
+func (d *Display) parse(sym string) (units.Unit, error) {
+	p, ok := d.seen[sym]
+	if !ok {
+		p.u, p.err = units.Parse(sym)
+		d.seen[sym] = p
+	}
+	return p.u, p.err
+}
+
+// Lot converts l in place.
+func (d *Display) Lot(l *LotResult) {
+	for j := range l.Properties {
+		p := &l.Properties[j]
+		u, err := d.parse(p.Unit)
+		if err != nil {
+			continue
+		}
+		du := u.Display(d.sys)
+		c := func(f lots.Float) lots.Float { return lots.Float(du.FromInternal(u.ToInternal(float64(f)))) }
+		p.Limit, p.Mean, p.Extreme, p.MeanBound, p.ToleranceBound = c(p.Limit), c(p.Mean), c(p.Extreme), c(p.MeanBound), c(p.ToleranceBound)
+		p.SD = lots.Float(du.FromInternal(u.ToInternal(float64(p.SD))))
+		p.Unit = du.Symbol
+	}
+	for j := range l.Outliers {
+		o := &l.Outliers[j]
+		u, err := d.parse(o.Unit)
+		if err != nil {
+			continue
+		}
+		du := u.Display(d.sys)
+		o.Value = lots.Float(du.FromInternal(u.ToInternal(float64(o.Value))))
+		o.Unit = du.Symbol
+	}
 }

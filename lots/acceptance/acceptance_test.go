@@ -279,6 +279,70 @@ func TestJudgeParallelSameAsOneWorker(t *testing.T) {
 	}
 }
 
+// Deliver hands every lot over in the order added, the same results Finish
+// keeps without it (100 invented lots, 1 and 4 workers, so that batches
+// finish out of order), with the same counts; an error from the delivery
+// function is what Finish returns, and nothing is handed over after it.
+func TestJudgingDeliverSameAsKept(t *testing.T) {
+	var buf bytes.Buffer
+	if _, err := scale.Write(&buf, scale.Options{Specimens: 1000, Lots: 100, Interleave: 3}); err != nil {
+		t.Fatal(err)
+	}
+	d, err := lots.ReadCSV(&buf, "scale.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := spec.ReadFile("../../testdata/bench/spec-three.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	groups, err := d.Group(lots.ByLot, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	kept, err := Judge(d, []*spec.Spec{s}, lots.ByLot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, _ := json.Marshal(kept.Lots)
+	defer func(w int) { workers = w }(workers)
+	for _, w := range []int{1, 4} {
+		workers = w
+		for _, failAt := range []int{-1, 37} {
+			j, err := Start(d, []*spec.Spec{s}, lots.ByLot)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got []LotResult
+			stop := errors.New("stop")
+			j.Deliver(func(l *LotResult) error {
+				if len(got) == failAt {
+					return stop
+				}
+				got = append(got, *l)
+				return nil
+			})
+			for i, g := range groups {
+				j.Add(d.Lot(g, i))
+			}
+			r, err := j.Finish(d)
+			if failAt >= 0 {
+				if err != stop || len(got) != failAt {
+					t.Errorf("%d workers: delivery error at lot %d: Finish gave %v after %d lots", w, failAt, err, len(got))
+				}
+				continue
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, _ := json.Marshal(got)
+			if !bytes.Equal(b, want) || r.Lots != nil || r.Counts != kept.Counts {
+				t.Errorf("%d workers: delivered lots or counts differ from the kept result (%d lots, counts %+v, want %+v)", w, len(got), r.Counts, kept.Counts)
+			}
+		}
+	}
+}
+
 // TestNeededSpecimensMatchesBisection: the search that starts from the
 // normal approximation gives the same answer as a plain bisection over
 // the whole range (the smallest m with k(m) <= q, k exact and decreasing

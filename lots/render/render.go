@@ -217,14 +217,27 @@ func (t *Table) WriteText(w io.Writer) error {
 func (t *Table) WriteCSV(w io.Writer) error {
 	cw := csv.NewWriter(w)
 	cw.Write(t.Columns)
+	t.writeCSVRows(cw)
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteCSVRows writes the rows added since the last call (as WriteCSV
+// does, without the header) and drops them from the table, for a table
+// whose rows are written as they come.
+func (t *Table) WriteCSVRows(cw *csv.Writer) error {
+	t.writeCSVRows(cw)
+	t.Rows, t.Exact = t.Rows[:0], t.Exact[:0]
+	return cw.Error()
+}
+
+func (t *Table) writeCSVRows(cw *csv.Writer) {
 	for i, r := range t.Rows {
 		if i < len(t.Exact) && t.Exact[i] != nil {
 			r = t.Exact[i]
 		}
 		cw.Write(r)
 	}
-	cw.Flush()
-	return cw.Error()
 }
 
 // WriteJSON writes v as indented JSON with a trailing newline. HTML
@@ -309,21 +322,64 @@ func WriteJSONArray(w io.Writer, n int, item func(i int) any) error {
 // writeJSONItems writes the n elements of a list, each indented by prefix
 // and followed by a comma but the last, one per line.
 func writeJSONItems(bw *bufio.Writer, prefix string, n int, item func(i int) any) error {
-	var ib bytes.Buffer
-	enc := json.NewEncoder(&ib)
-	enc.SetIndent(prefix, "  ")
-	enc.SetEscapeHTML(false)
+	items := newJSONItems(bw, prefix)
 	for i := range n {
-		ib.Reset()
-		if err := enc.Encode(item(i)); err != nil {
+		if err := items.Add(item(i)); err != nil {
 			return err
 		}
-		bw.WriteString(prefix)
-		bw.Write(bytes.TrimSuffix(ib.Bytes(), []byte("\n")))
-		if i < n-1 {
-			bw.WriteString(",")
-		}
-		bw.WriteString("\n")
+	}
+	return items.end()
+}
+
+// JSONItems encodes the elements of a long top-level list one at a time,
+// in the form WriteJSONList gives them, so that a command can write each
+// element as soon as it has it and keep none; WriteJSONListItems then puts
+// them in their place.
+type JSONItems struct {
+	bw     *bufio.Writer
+	prefix string
+	ib     bytes.Buffer
+	enc    *json.Encoder
+	n      int
+}
+
+// NewJSONItems encodes list elements into w (buffered: call Flush).
+func NewJSONItems(w io.Writer) *JSONItems { return newJSONItems(bufio.NewWriterSize(w, 1<<16), "    ") }
+
+func newJSONItems(bw *bufio.Writer, prefix string) *JSONItems {
+	j := &JSONItems{bw: bw, prefix: prefix}
+	j.enc = json.NewEncoder(&j.ib)
+	j.enc.SetIndent(prefix, "  ")
+	j.enc.SetEscapeHTML(false)
+	return j
+}
+
+// Add encodes one element. Elements are separated by a comma and a new
+// line; the last one's line is ended by end.
+func (j *JSONItems) Add(v any) error {
+	j.ib.Reset()
+	if err := j.enc.Encode(v); err != nil {
+		return err
+	}
+	if j.n > 0 {
+		j.bw.WriteString(",\n")
+	}
+	j.bw.WriteString(j.prefix)
+	j.bw.Write(bytes.TrimSuffix(j.ib.Bytes(), []byte("\n")))
+	j.n++
+	return nil
+}
+
+// Len is the number of elements added.
+func (j *JSONItems) Len() int { return j.n }
+
+// Flush writes what is buffered.
+func (j *JSONItems) Flush() error { return j.bw.Flush() }
+
+// end ends the last element's line.
+func (j *JSONItems) end() error {
+	if j.n > 0 {
+		j.bw.WriteString("\n")
 	}
 	return nil
 }
@@ -335,6 +391,22 @@ func writeJSONItems(bw *bufio.Writer, prefix string, n int, item func(i int) any
 // on its own in the same indented form. The bytes are those of WriteJSON
 // on the whole value (TestWriteJSONListSameAsWriteJSON).
 func WriteJSONList(w io.Writer, head any, key string, n int, item func(i int) any) error {
+	return writeJSONList(w, head, key, n, func(bw *bufio.Writer) error { return writeJSONItems(bw, "    ", n, item) })
+}
+
+// WriteJSONListItems is WriteJSONList with the n elements already encoded
+// by a JSONItems (flushed): items writes them to its argument.
+func WriteJSONListItems(w io.Writer, head any, key string, n int, items func(io.Writer) error) error {
+	return writeJSONList(w, head, key, n, func(bw *bufio.Writer) error {
+		if err := items(bw); err != nil {
+			return err
+		}
+		_, err := bw.WriteString("\n")
+		return err
+	})
+}
+
+func writeJSONList(w io.Writer, head any, key string, n int, items func(bw *bufio.Writer) error) error {
 	var hb bytes.Buffer
 	if err := WriteJSON(&hb, head); err != nil {
 		return err
@@ -356,7 +428,7 @@ func WriteJSONList(w io.Writer, head any, key string, n int, item func(i int) an
 		return bw.Flush()
 	}
 	bw.WriteString("[\n")
-	if err := writeJSONItems(bw, "    ", n, item); err != nil {
+	if err := items(bw); err != nil {
 		return err
 	}
 	bw.WriteString("  ]")
