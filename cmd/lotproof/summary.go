@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"io"
 	"strconv"
 
@@ -42,13 +43,18 @@ func addInputFlags(cmd *cobra.Command, in *inputOptions) {
 }
 
 func runSummary(o summaryOptions, st streams) error {
-	// One lot at a time: the summary of each is kept, its values are not.
-	// The lots are summarised (and, for CSV, laid out) on a second
-	// goroutine while the file is read, in the order they come.
+	// One lot at a time: the lots are summarised (and, for CSV and JSON,
+	// written to a spill buffer, so that memory does not grow with the
+	// number of lots) on a second goroutine while the file is read, in the
+	// order they come. A table for people keeps the summaries: the
+	// values' resolutions are known only at the end.
 	var sum []lots.GroupSummary
 	var props []lots.Property
 	var rs render.Resolutions // for tables people read only
-	var csvT *render.Table    // CSV: filled as the lots come
+	var buf *spillBuffer
+	var cw *csv.Writer
+	var items *render.JSONItems
+	var failed error // of the writing goroutine
 	var work chan []*lots.Lot
 	var done chan struct{}
 	var batch []*lots.Lot
@@ -63,16 +69,23 @@ func runSummary(o summaryOptions, st streams) error {
 			work = nil
 		}
 	}
-	defer stop()
-	by0, _ := lots.ParseGroupBy(o.Input.GroupBy)
-	_, by, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
+	defer func() { stop(); buf.close() }()
+	by, _ := lots.ParseGroupBy(o.Input.GroupBy)
+	_, _, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
 		stop() // a second reading starts afresh
-		sum, props, batch = sum[:0], d.Properties, nil
-		if o.Out.Format == render.Text {
+		sum, props, batch, failed = sum[:0], d.Properties, nil, nil
+		buf.close()
+		buf, cw, items = &spillBuffer{}, nil, nil
+		var t *render.Table
+		switch o.Out.Format {
+		case render.Text:
 			rs = render.Resolutions{}
-		}
-		if o.Out.Format == render.CSV {
-			csvT = newSummaryTable(string(by0))
+		case render.CSV:
+			t = newSummaryTable(string(by))
+			cw = csv.NewWriter(buf)
+			cw.Write(t.Columns)
+		case render.JSON:
+			items = render.NewJSONArrayItems(buf)
 		}
 		work, done = make(chan []*lots.Lot, 8), make(chan struct{})
 		go func(work chan []*lots.Lot, props []lots.Property, rs render.Resolutions, t *render.Table) {
@@ -80,16 +93,24 @@ func runSummary(o summaryOptions, st streams) error {
 			for b := range work {
 				for _, l := range b {
 					g := lots.SummarizeLot(props, l, o.Out.System)
-					sum = append(sum, g)
-					if rs != nil {
-						addLotResolutions(rs, props, l, o.Out.System)
-					}
-					if t != nil {
+					switch {
+					case failed != nil:
+					case t != nil:
 						addSummaryRows(t, g, nil)
+						failed = t.WriteCSVRows(cw)
+					case items != nil:
+						v, err := summaryItem(by, &g)
+						if err == nil {
+							err = items.Add(v)
+						}
+						failed = err
+					default:
+						sum = append(sum, g)
+						addLotResolutions(rs, props, l, o.Out.System)
 					}
 				}
 			}
-		}(work, props, rs, csvT)
+		}(work, props, rs, t)
 	}, func(l *lots.Lot) error {
 		batch = append(batch, l)
 		if len(batch) == 16 {
@@ -99,14 +120,28 @@ func runSummary(o summaryOptions, st streams) error {
 		return nil
 	})
 	stop()
+	if err == nil {
+		err = failed
+	}
 	if err != nil {
 		return err
 	}
+	switch {
+	case buf == nil: // no pass over the input began
+	case cw != nil:
+		cw.Flush()
+		if err := cw.Error(); err != nil {
+			return err
+		}
+		return buf.writeTo(st.Out)
+	case items != nil:
+		if err := items.Flush(); err != nil {
+			return err
+		}
+		return render.WriteJSONArrayItems(st.Out, items.Len(), buf.writeTo)
+	}
 	if sum == nil {
 		sum = []lots.GroupSummary{}
-	}
-	if o.Out.Format == render.CSV && csvT != nil && by == by0 {
-		return emit(st.Out, func(w io.Writer) error { return writeTables(w, o.Out.Format, csvT) })
 	}
 	return emit(st.Out, func(w io.Writer) error { return writeSummary(w, sum, by, rs, o.Out) })
 }

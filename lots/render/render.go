@@ -305,6 +305,23 @@ func (t *Table) DropColumn(i int) {
 // WriteJSONArray writes what WriteJSON writes for a list of n elements
 // (item(i) the i-th; n = 0 writes an empty list, []), one element at a
 // time, so that the whole text is never in memory.
+// WriteJSONArrayItems writes what WriteJSONArray writes, with the n
+// elements already encoded by a JSONItems from NewJSONArrayItems (flushed):
+// items writes them to its argument.
+func WriteJSONArrayItems(w io.Writer, n int, items func(io.Writer) error) error {
+	if n == 0 {
+		_, err := io.WriteString(w, "[]\n")
+		return err
+	}
+	bw := bufio.NewWriterSize(w, 1<<16)
+	bw.WriteString("[\n")
+	if err := items(bw); err != nil {
+		return err
+	}
+	bw.WriteString("\n]\n")
+	return bw.Flush()
+}
+
 func WriteJSONArray(w io.Writer, n int, item func(i int) any) error {
 	if n == 0 {
 		_, err := io.WriteString(w, "[]\n")
@@ -343,8 +360,15 @@ type JSONItems struct {
 	n      int
 }
 
-// NewJSONItems encodes list elements into w (buffered: call Flush).
+// NewJSONItems encodes the elements of a list that is a top-level member
+// (WriteJSONListItems) into w, buffered: call Flush.
 func NewJSONItems(w io.Writer) *JSONItems { return newJSONItems(bufio.NewWriterSize(w, 1<<16), "    ") }
+
+// NewJSONArrayItems encodes the elements of a top-level array
+// (WriteJSONArrayItems) into w, buffered: call Flush.
+func NewJSONArrayItems(w io.Writer) *JSONItems {
+	return newJSONItems(bufio.NewWriterSize(w, 1<<16), "  ")
+}
 
 func newJSONItems(bw *bufio.Writer, prefix string) *JSONItems {
 	j := &JSONItems{bw: bw, prefix: prefix}
