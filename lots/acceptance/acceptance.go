@@ -6,6 +6,7 @@ import (
 	"math"
 	"runtime"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -583,7 +584,8 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("with confidence %g more than %.3g of the lot is %s the %s %s (lower confidence bound on that fraction %.3g)", r.Confidence, allowed, beyond, word, show(limit), lo))
 	case tb >= L && n >= r.MinSpecimens:
 		pr.Verdict = Conforming
-		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is not %s the %s %s: at least %g of the lot meets it with confidence %g", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Content, r.Confidence))
+		// (Joined rather than formatted: most limits of most lots end here.)
+		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is not "+beyond+" the "+word+" "+show(limit)+": at least "+strconv.FormatFloat(r.Content, 'g', -1, 64)+" of the lot meets it with confidence "+strconv.FormatFloat(r.Confidence, 'g', -1, 64))
 	case tb >= L:
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("the tolerance bound meets the limit but the lot has %d specimens, fewer than the %d required", n, r.MinSpecimens))
@@ -621,7 +623,8 @@ func orUndecided(v string) string {
 
 // fmtVal shows an internal value in the limit's own unit.
 func fmtVal(u units.Unit, v float64) string {
-	return fmt.Sprintf("%.4g %s", u.FromInternal(v), u.Symbol)
+	// strconv's 'g' with 4 digits is fmt's %.4g, without its cost.
+	return strconv.FormatFloat(u.FromInternal(v), 'g', 4, 64) + " " + u.Symbol
 }
 
 // NeededSpecimens returns the smallest total number of specimens m >= n0
@@ -660,6 +663,15 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 	// in doubling steps until the answer is bracketed, and bisect. The guess
 	// only saves work: the answer is decided by the exact k alone, so it is
 	// the same as a bisection over the whole range.
+	//
+	// The guess is then refined with Natrella's closed-form approximation
+	// of k (Natrella 1963, Experimental Statistics, NBS Handbook 91; NIST/
+	// SEMATECH e-Handbook of Statistical Methods, section 7.2.6.3):
+	// k ~ (z_p + sqrt(z_p^2 - a b))/a, a = 1 - z_gamma^2/(2(m-1)),
+	// b = z_p^2 - z_gamma^2/m, shifted by its error at the first guess
+	// (where the exact k is computed anyway), and solved for m. Near the
+	// answer that error changes slowly, so the refined guess is usually
+	// the answer or next to it, and two or three exact factors settle it.
 	if zg := -math.Sqrt2 * math.Erfcinv(2*gamma); zg > 0 {
 		d := (q - zp) / zg
 		guess := (1 + zp*zp/2) / (d * d)
@@ -668,6 +680,27 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 			good, err := ok(m)
 			if err != nil {
 				return 0, err
+			}
+			if k0, err := normalK(m, p, gamma); err == nil {
+				if kn0 := natrellaK(m, zp, zg); !math.IsNaN(kn0) {
+					shift := k0 - kn0
+					// Smallest m in (lo, hi] with the shifted approximation <= q.
+					a, b := lo, hi
+					for b-a > 1 {
+						mid := (a + b) / 2
+						if kn := natrellaK(mid, zp, zg); !math.IsNaN(kn) && kn+shift <= q {
+							b = mid
+						} else {
+							a = mid
+						}
+					}
+					if b != m && b > lo && b < hi {
+						m = b
+						if good, err = ok(m); err != nil {
+							return 0, err
+						}
+					}
+				}
 			}
 			for step := 1; ; step *= 2 {
 				c := m + step
@@ -707,6 +740,19 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 		}
 	}
 	return hi, nil
+}
+
+// natrellaK is Natrella's approximation of the one-sided normal tolerance
+// factor for m specimens (see neededSpecimens), NaN where it is undefined
+// (a <= 0 or a negative root, for very few specimens).
+func natrellaK(m int, zp, zg float64) float64 {
+	a := 1 - zg*zg/(2*float64(m-1))
+	b := zp*zp - zg*zg/float64(m)
+	r := zp*zp - a*b
+	if !(a > 0) || r < 0 {
+		return math.NaN()
+	}
+	return (zp + math.Sqrt(r)) / a
 }
 
 // Display returns a copy of r with every value converted from the internal

@@ -43,9 +43,11 @@ func DecisiveReasons(l LotResult, minN int) (text, retest string) {
 		}
 	}
 	for _, r := range l.Reasons {
-		if m := retestRule.FindStringSubmatch(r); m != nil {
-			retest = m[1]
-			continue
+		if strings.Contains(r, " allows ") { // (the regular expression only where it can match)
+			if m := retestRule.FindStringSubmatch(r); m != nil {
+				retest = m[1]
+				continue
+			}
 		}
 		if len(out) > 0 && (strings.HasPrefix(r, "nonconforming: ") || strings.HasPrefix(r, "undecided: ")) {
 			continue // the per-limit reasons above say it in full
