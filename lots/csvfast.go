@@ -3,10 +3,12 @@ package lots
 import (
 	"bufio"
 	"bytes"
+	"encoding/binary"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
+	"math/bits"
 	"unsafe"
 )
 
@@ -16,13 +18,16 @@ import (
 // a record with quotes, which may span lines, is handed to encoding/csv so
 // that quoting follows the standard library exactly.
 type recordReader struct {
-	br      *bufio.Reader
-	name    string
-	next    int // number of the next line to read (1-based)
-	line    int // line on which the current record starts
-	fields  []string
-	lines   []int // line of each field
-	cols    []int // 1-based byte column of each field
+	br     *bufio.Reader
+	name   string
+	next   int // number of the next line to read (1-based)
+	line   int // line on which the current record starts
+	fields []string
+	lines  []int // line of each field
+	cols   []int // 1-based byte column of each field
+	// clean: the current record is one line of printable ASCII without a
+	// space (no field needs a text check or trimming).
+	clean   bool
 	pending []byte
 }
 
@@ -113,19 +118,48 @@ func (rr *recordReader) Read() ([]string, error) {
 // split splits an unquoted line on commas. The fields share the reader's
 // buffer (no copy): they are valid until the next Read, and a caller that
 // keeps one copies it (strings.Clone).
+//
+// The line is read eight bytes at a time. Commas are found with the exact
+// zero-byte test of Anderson, "Bit Twiddling Hacks" (Stanford), on the
+// word XOR ','; the same pass notes whether every byte is printable ASCII
+// other than the space (see plainASCII), which tells the caller that no
+// field needs a text check or trimming (clean).
 func (rr *recordReader) split(line []byte, lineNo int) {
+	const ones, highs, lows = 0x0101010101010101, 0x8080808080808080, 0x7f7f7f7f7f7f7f7f
 	s := unsafe.String(unsafe.SliceData(line), len(line))
-	rr.line = lineNo
-	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
+	rr.line, rr.lines = lineNo, rr.lines[:0] // every field on lineNo (see pos)
+	rr.fields, rr.cols = rr.fields[:0], rr.cols[:0]
 	from := 0
-	for i := 0; i <= len(s); i++ {
-		if i == len(s) || s[i] == ',' {
+	var odd uint64 // high bits: a byte that is not printable ASCII, or a space
+	i := 0
+	for ; i+8 <= len(s); i += 8 {
+		v := binary.LittleEndian.Uint64(line[i:])
+		sp, del := v^(' '*ones), v^(0x7f*ones)
+		odd |= v&highs | (v-0x20*ones)&^v&highs | (del-ones)&^del&highs | (sp-ones)&^sp&highs
+		x := v ^ (',' * ones)
+		commas := ^((x&lows + lows) | x | lows) // 0x80 exactly at each comma
+		for commas != 0 {
+			at := i + bits.TrailingZeros64(commas)/8
+			rr.fields = append(rr.fields, s[from:at])
+			rr.cols = append(rr.cols, from+1)
+			from = at + 1
+			commas &= commas - 1
+		}
+	}
+	for ; i < len(s); i++ {
+		c := s[i]
+		if c-0x21 >= 0x5e {
+			odd = highs
+		}
+		if c == ',' {
 			rr.fields = append(rr.fields, s[from:i])
-			rr.lines = append(rr.lines, lineNo)
 			rr.cols = append(rr.cols, from+1)
 			from = i + 1
 		}
 	}
+	rr.fields = append(rr.fields, s[from:])
+	rr.cols = append(rr.cols, from+1)
+	rr.clean = odd == 0
 }
 
 // quoted parses one quoted record with encoding/csv.
@@ -142,7 +176,7 @@ func (rr *recordReader) quoted(chunk []byte, lineNo int) ([]string, error) {
 		}
 		return nil, err
 	}
-	rr.line = lineNo
+	rr.line, rr.clean = lineNo, false
 	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
 	for i, f := range rec {
 		l, c := cr.FieldPos(i)
@@ -159,6 +193,9 @@ func (rr *recordReader) at(i int) string { return rr.place(rr.pos(i)) }
 func (rr *recordReader) pos(i int) (int, int) {
 	if i >= len(rr.cols) {
 		return rr.line, 1
+	}
+	if i >= len(rr.lines) { // an unquoted record: one line
+		return rr.line, rr.cols[i]
 	}
 	return rr.lines[i], rr.cols[i]
 }

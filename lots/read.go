@@ -53,6 +53,7 @@ type table struct {
 	seen     idIndex  // hashes of the specimen ids seen, with their lines
 	ids      *idQueue // when set, seen is filled on another goroutine
 	rows     int
+	clean    bool // the row being parsed is clean (recordReader.split)
 }
 
 func newTable(name string) *table {
@@ -167,10 +168,16 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			"give every row as many fields as the header (an empty field is a missing value)")
 		return false
 	}
-	ok := t.checkText(fields, loc) // control, invalid and direction characters (text.go)
+	// Control, invalid and direction characters (text.go); none, and no
+	// space to trim, in a clean line (see recordReader.split).
+	clean := t.clean
+	ok := clean || t.checkText(fields, loc)
 	get := func(col int) string {
 		if col < 0 {
 			return ""
+		}
+		if clean {
+			return fields[col]
 		}
 		return strings.TrimSpace(fields[col])
 	}
@@ -206,7 +213,10 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	}
 	for i, col := range h.propCols {
 		p := h.Properties[i]
-		raw := strings.TrimSpace(fields[col])
+		raw := fields[col]
+		if !clean {
+			raw = strings.TrimSpace(raw)
+		}
 		if raw == "" {
 			s.Values[i] = math.NaN()
 			continue
@@ -319,6 +329,7 @@ func scanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error, asyncI
 		if len(fields) == 1 && strings.TrimSpace(fields[0]) == "" && h.width > 1 {
 			continue // a blank line
 		}
+		t.clean = rr.clean
 		if !t.parseRow(fields, rr.line, rr, &s) || t.problems.any() {
 			if t.ids != nil && t.ids.dup.Load() {
 				return nil, errDuplicate
