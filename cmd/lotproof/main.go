@@ -3,6 +3,7 @@ package main
 import (
 	"os"
 	"os/signal"
+	"runtime/debug"
 	"syscall"
 	"time"
 
@@ -13,10 +14,22 @@ import (
 
 func main() {
 	cleanupOnSignal()
+	tuneGC()
 	st := streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		OutTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		ErrTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
 	os.Exit(execute(os.Args[1:], st))
+}
+
+// tuneGC lets the heap grow to three times what is live between
+// collections (Go's default is twice) unless GOGC says otherwise. The
+// commands that read large files keep little live (one lot at a time), so
+// this costs a few tens of MiB and saves about a tenth of the CPU time of
+// accept on a year of receipts (the scale benchmarks).
+func tuneGC() {
+	if os.Getenv("GOGC") == "" {
+		debug.SetGCPercent(200)
+	}
 }
 
 // cleanupOnSignal removes the temporary files of a read in progress (an

@@ -384,7 +384,8 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 	}
 	lr.Spec = s.Label()
 	lr.Verdict = Conforming
-	worst := map[string][]string{}
+	lr.Properties = make([]PropertyResult, 0, 2*len(s.Limits))
+	var nonconf, undec []string // limits with those verdicts
 	for _, l := range s.Limits {
 		pi := d.Property(l.Property)
 		vals, idx := g.Values[pi], []int(nil) // read only; no value missing: positions are indices
@@ -412,8 +413,11 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 			if rank[pr.Verdict] > rank[lr.Verdict] {
 				lr.Verdict = pr.Verdict
 			}
-			if pr.Verdict != Conforming {
-				worst[pr.Verdict] = append(worst[pr.Verdict], pr.Property+" ("+pr.Side+")")
+			switch pr.Verdict {
+			case Nonconforming:
+				nonconf = append(nonconf, pr.Property+" ("+pr.Side+")")
+			case Undecided:
+				undec = append(undec, pr.Property+" ("+pr.Side+")")
 			}
 			lr.Properties = append(lr.Properties, pr)
 		}
@@ -438,12 +442,12 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 	case Conforming:
 		lr.Reasons = append(lr.Reasons, fmt.Sprintf("every limit of %s is met with confidence %g for content %g", s.Label(), s.Acceptance.Confidence, s.Acceptance.Content))
 	case Nonconforming:
-		lr.Reasons = append(lr.Reasons, "nonconforming: "+strings.Join(worst[Nonconforming], ", "))
-		if u := worst[Undecided]; len(u) > 0 {
-			lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(u, ", "))
+		lr.Reasons = append(lr.Reasons, "nonconforming: "+strings.Join(nonconf, ", "))
+		if len(undec) > 0 {
+			lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(undec, ", "))
 		}
 	case Undecided:
-		lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(worst[Undecided], ", "))
+		lr.Reasons = append(lr.Reasons, "undecided: "+strings.Join(undec, ", "))
 	}
 	if lr.Verdict != Conforming && s.Acceptance.Retests > 0 {
 		lr.Reasons = append(lr.Reasons, fmt.Sprintf("%s allows %d retest(s) on %d times the specimens (%d specimens)", s.Label(), s.Acceptance.Retests, s.Acceptance.RetestFactor, s.Acceptance.RetestFactor*max(lr.N, s.Acceptance.MinSpecimens)))
