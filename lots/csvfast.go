@@ -25,10 +25,11 @@ type recordReader struct {
 	fields []string
 	lines  []int // line of each field
 	cols   []int // 1-based byte column of each field
-	// clean: the current record is one line of printable ASCII without a
-	// space (no field needs a text check or trimming).
-	clean   bool
-	pending []byte
+	// printable: the current record is one line of printable ASCII (no
+	// field needs a text check); spaced: it may hold a space (a field may
+	// need trimming).
+	printable, spaced bool
+	pending           []byte
 }
 
 // maxQuoted caps how much a quoted record may span, so that a stray quote
@@ -122,20 +123,22 @@ func (rr *recordReader) Read() ([]string, error) {
 // The line is read eight bytes at a time. Commas are found with the exact
 // zero-byte test of Anderson, "Bit Twiddling Hacks" (Stanford), on the
 // word XOR ','; the same pass notes whether every byte is printable ASCII
-// other than the space (see plainASCII), which tells the caller that no
-// field needs a text check or trimming (clean).
+// (see plainASCII), which tells the caller that no field needs a text
+// check (printable), and whether there is a space (spaced), without which
+// no field needs trimming.
 func (rr *recordReader) split(line []byte, lineNo int) {
 	const ones, highs, lows = 0x0101010101010101, 0x8080808080808080, 0x7f7f7f7f7f7f7f7f
 	s := unsafe.String(unsafe.SliceData(line), len(line))
 	rr.line, rr.lines = lineNo, rr.lines[:0] // every field on lineNo (see pos)
 	rr.fields, rr.cols = rr.fields[:0], rr.cols[:0]
 	from := 0
-	var odd uint64 // high bits: a byte that is not printable ASCII, or a space
+	var odd, spc uint64 // high bits: a byte that is not printable ASCII; a space
 	i := 0
 	for ; i+8 <= len(s); i += 8 {
 		v := binary.LittleEndian.Uint64(line[i:])
 		sp, del := v^(' '*ones), v^(0x7f*ones)
-		odd |= v&highs | (v-0x20*ones)&^v&highs | (del-ones)&^del&highs | (sp-ones)&^sp&highs
+		odd |= v&highs | (v-0x20*ones)&^v&highs | (del-ones)&^del&highs
+		spc |= (sp - ones) &^ sp & highs
 		x := v ^ (',' * ones)
 		commas := ^((x&lows + lows) | x | lows) // 0x80 exactly at each comma
 		for commas != 0 {
@@ -148,8 +151,11 @@ func (rr *recordReader) split(line []byte, lineNo int) {
 	}
 	for ; i < len(s); i++ {
 		c := s[i]
-		if c-0x21 >= 0x5e {
+		if c-0x20 >= 0x5f {
 			odd = highs
+		}
+		if c == ' ' {
+			spc = highs
 		}
 		if c == ',' {
 			rr.fields = append(rr.fields, s[from:i])
@@ -159,7 +165,7 @@ func (rr *recordReader) split(line []byte, lineNo int) {
 	}
 	rr.fields = append(rr.fields, s[from:])
 	rr.cols = append(rr.cols, from+1)
-	rr.clean = odd == 0
+	rr.printable, rr.spaced = odd == 0, spc != 0
 }
 
 // quoted parses one quoted record with encoding/csv.
@@ -176,7 +182,7 @@ func (rr *recordReader) quoted(chunk []byte, lineNo int) ([]string, error) {
 		}
 		return nil, err
 	}
-	rr.line, rr.clean = lineNo, false
+	rr.line, rr.printable, rr.spaced = lineNo, false, true
 	rr.fields, rr.lines, rr.cols = rr.fields[:0], rr.lines[:0], rr.cols[:0]
 	for i, f := range rec {
 		l, c := cr.FieldPos(i)

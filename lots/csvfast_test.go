@@ -11,8 +11,9 @@ import (
 
 // The word-at-a-time split of an unquoted line gives the fields and the
 // columns encoding/csv gives (the reference: Go's standard library reader
-// of RFC 4180), and calls a line clean exactly when every byte is
-// printable ASCII other than the space (0x21 to 0x7E); on 20,000 random
+// of RFC 4180), calls a line printable exactly when every byte is
+// printable ASCII (0x20 to 0x7E), and spaced exactly when it holds a
+// space; on 20,000 random
 // lines of commas, spaces, tabs, control characters, bytes above 0x7E,
 // letters and digits, 0 to 70 bytes long (so that commas fall at every
 // place of an eight-byte word).
@@ -55,12 +56,12 @@ func TestRecordReaderSplitMatchesEncodingCSV(t *testing.T) {
 				t.Fatalf("line %d %q field %d at %d:%d, encoding/csv %d:%d", i+1, line, f, gl, gc, wl, wc)
 			}
 		}
-		clean := true
+		printable := true
 		for _, c := range line {
-			clean = clean && c >= 0x21 && c <= 0x7e
+			printable = printable && c >= 0x20 && c <= 0x7e
 		}
-		if rr.clean != clean {
-			t.Fatalf("line %d %q: clean %v, want %v", i+1, line, rr.clean, clean)
+		if spaced := bytes.IndexByte(line, ' ') >= 0; rr.printable != printable || rr.spaced != spaced {
+			t.Fatalf("line %d %q: printable %v, spaced %v; want %v, %v", i+1, line, rr.printable, rr.spaced, printable, spaced)
 		}
 	}
 }

@@ -53,7 +53,10 @@ type table struct {
 	seen     idIndex  // hashes of the specimen ids seen, with their lines
 	ids      *idQueue // when set, seen is filled on another goroutine
 	rows     int
-	clean    bool // the row being parsed is clean (recordReader.split)
+	// The row being parsed is printable ASCII; it holds no space
+	// (recordReader.split). False for a row from elsewhere (checked and
+	// trimmed).
+	printable, spaceless bool
 }
 
 func newTable(name string) *table {
@@ -168,15 +171,16 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 			"give every row as many fields as the header (an empty field is a missing value)")
 		return false
 	}
-	// Control, invalid and direction characters (text.go); none, and no
-	// space to trim, in a clean line (see recordReader.split).
-	clean := t.clean
-	ok := clean || t.checkText(fields, loc)
+	// Control, invalid and direction characters (text.go): none in a
+	// line of printable ASCII; nothing to trim in a line without a space
+	// (see recordReader.split).
+	ok := t.printable || t.checkText(fields, loc)
+	trim := !t.spaceless
 	get := func(col int) string {
 		if col < 0 {
 			return ""
 		}
-		if clean {
+		if !trim {
 			return fields[col]
 		}
 		return strings.TrimSpace(fields[col])
@@ -214,7 +218,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	for i, col := range h.propCols {
 		p := h.Properties[i]
 		raw := fields[col]
-		if !clean {
+		if trim {
 			raw = strings.TrimSpace(raw)
 		}
 		if raw == "" {
@@ -329,7 +333,7 @@ func scanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error, asyncI
 		if len(fields) == 1 && strings.TrimSpace(fields[0]) == "" && h.width > 1 {
 			continue // a blank line
 		}
-		t.clean = rr.clean
+		t.printable, t.spaceless = rr.printable, !rr.spaced
 		if !t.parseRow(fields, rr.line, rr, &s) || t.problems.any() {
 			if t.ids != nil && t.ids.dup.Load() {
 				return nil, errDuplicate
