@@ -175,6 +175,8 @@ type Judging struct {
 	wg      sync.WaitGroup
 	done    bool
 
+	limits limitTexts
+
 	sink   func(*LotResult) error // nil: keep the results in kept
 	kept   []LotResult
 	counts Counts
@@ -227,14 +229,15 @@ func Start(d *lots.Dataset, specs []*spec.Spec, by lots.GroupBy) (*Judging, erro
 	if n <= 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan *batch, 4*n), limit: 8 * n}
+	j := &Judging{d: d, specs: specs, by: by, f: stats.NewFactors(), jobs: make(chan *batch, 4*n), limit: 8 * n,
+		limits: newLimitTexts(specs)}
 	for range n {
 		j.wg.Add(1)
 		go func() {
 			defer j.wg.Done()
 			for b := range j.jobs {
 				for i, l := range b.lots {
-					b.out[i], b.errs[i] = judgeLot(j.d, l, j.specs, j.f)
+					b.out[i], b.errs[i] = judgeLot(j.d, l, j.specs, j.f, j.limits)
 					b.lots[i] = nil // the values are not needed any more
 				}
 				close(b.ready)
@@ -370,7 +373,7 @@ func (j *Judging) Finish(d *lots.Dataset) (*Result, error) {
 
 var rank = map[string]int{Conforming: 0, Undecided: 1, Nonconforming: 2}
 
-func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors) (LotResult, error) {
+func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors, limits limitTexts) (LotResult, error) {
 	lr := LotResult{Lot: g.Key, Supplier: g.Supplier, Material: g.Material, N: g.Len(),
 		Properties: []PropertyResult{}, Reasons: []string{}, Outliers: []Outlier{}, Cautions: []string{Caution}}
 	if g.Mixed {
@@ -386,7 +389,7 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 	lr.Verdict = Conforming
 	lr.Properties = make([]PropertyResult, 0, 2*len(s.Limits))
 	var nonconf, undec []string // limits with those verdicts
-	for _, l := range s.Limits {
+	for li, l := range s.Limits {
 		pi := d.Property(l.Property)
 		vals, idx := g.Values[pi], []int(nil) // read only; no value missing: positions are indices
 		if slices.ContainsFunc(vals, math.IsNaN) {
@@ -402,7 +405,7 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 			if (side == "min" && !l.HasMin()) || (side == "max" && !l.HasMax()) {
 				continue
 			}
-			pr, err := judgeSide(l, side, vals, ids, s.Acceptance, f)
+			pr, err := judgeSide(l, side, limits.of(s, li, side), vals, ids, s.Acceptance, f)
 			if err != nil {
 				return lr, err
 			}
@@ -440,7 +443,7 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 	}
 	switch lr.Verdict {
 	case Conforming:
-		lr.Reasons = append(lr.Reasons, fmt.Sprintf("every limit of %s is met with confidence %g for content %g", s.Label(), s.Acceptance.Confidence, s.Acceptance.Content))
+		lr.Reasons = append(lr.Reasons, "every limit of "+s.Label()+" is met with confidence "+gfmt(s.Acceptance.Confidence)+" for content "+gfmt(s.Acceptance.Content))
 	case Nonconforming:
 		lr.Reasons = append(lr.Reasons, "nonconforming: "+strings.Join(nonconf, ", "))
 		if len(undec) > 0 {
@@ -472,7 +475,7 @@ func unitLabel(u units.Unit) string {
 // judgeSide judges the values of one property against one limit. A maximum
 // is judged as the minimum of the negated values (the methods are
 // symmetric), and the figures are mirrored back.
-func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, r spec.Rule, f *stats.Factors) (PropertyResult, error) {
+func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(int) string, r spec.Rule, f *stats.Factors) (PropertyResult, error) {
 	sign, limit := 1.0, l.Min
 	word, beyond := "minimum", "below"
 	if side == "max" {
@@ -485,6 +488,9 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		FractionEstimate: nan, FractionUpper: nan, FractionLower: nan, Reasons: []string{}}
 	n := len(vals)
 	show := func(v float64) string { return fmtVal(l.Unit, v) }
+	if limitText == "" {
+		limitText = show(limit)
+	}
 	if n == 0 {
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, "no values for this property in the lot")
@@ -506,7 +512,7 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		sum += v
 		ext = math.Min(ext, v)
 		if v < L {
-			fails = append(fails, fmt.Sprintf("%s %s", ids(i), show(sign*v)))
+			fails = append(fails, ids(i)+" "+show(sign*v))
 		}
 	}
 	pr.Extreme = lots.Float(sign * ext)
@@ -515,7 +521,7 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 	pr.Mean = lots.Float(sign * mean)
 	decided := ""
 	if len(fails) > 0 {
-		msg := fmt.Sprintf("%d value(s) %s the %s %s: %s", len(fails), beyond, word, show(limit), strings.Join(fails, ", "))
+		msg := strconv.Itoa(len(fails)) + " value(s) " + beyond + " the " + word + " " + limitText + ": " + strings.Join(fails, ", ")
 		if r.IndividualReject {
 			decided = Nonconforming
 			pr.Reasons = append(pr.Reasons, msg+" (an individual value beyond a limit rejects the lot)")
@@ -585,18 +591,18 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		}
 	case lo > allowed:
 		pr.Verdict = Nonconforming
-		pr.Reasons = append(pr.Reasons, fmt.Sprintf("with confidence %g more than %.3g of the lot is %s the %s %s (lower confidence bound on that fraction %.3g)", r.Confidence, allowed, beyond, word, show(limit), lo))
+		pr.Reasons = append(pr.Reasons, "with confidence "+gfmt(r.Confidence)+" more than "+strconv.FormatFloat(allowed, 'g', 3, 64)+" of the lot is "+beyond+" the "+word+" "+limitText+" (lower confidence bound on that fraction "+strconv.FormatFloat(lo, 'g', 3, 64)+")")
 	case tb >= L && n >= r.MinSpecimens:
 		pr.Verdict = Conforming
 		// (Joined rather than formatted: most limits of most lots end here.)
-		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is not "+beyond+" the "+word+" "+show(limit)+": at least "+strconv.FormatFloat(r.Content, 'g', -1, 64)+" of the lot meets it with confidence "+strconv.FormatFloat(r.Confidence, 'g', -1, 64))
+		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is not "+beyond+" the "+word+" "+limitText+": at least "+gfmt(r.Content)+" of the lot meets it with confidence "+gfmt(r.Confidence))
 	case tb >= L:
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("the tolerance bound meets the limit but the lot has %d specimens, fewer than the %d required", n, r.MinSpecimens))
 		pr.NeededN = r.MinSpecimens
 	default:
 		pr.Verdict = Undecided
-		pr.Reasons = append(pr.Reasons, fmt.Sprintf("%s tolerance bound %s (k = %.4f, n = %d) is %s the %s %s: confidence %g for content %g not reached", boundWord, show(sign*tb), k, n, beyond, word, show(limit), r.Confidence, r.Content))
+		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is "+beyond+" the "+word+" "+limitText+": confidence "+gfmt(r.Confidence)+" for content "+gfmt(r.Content)+" not reached")
 		need, err := neededSpecimens(q, r.Content, r.Confidence, n, f.NormalK)
 		if err != nil {
 			return pr, err
@@ -608,11 +614,11 @@ func judgeSide(l spec.Limit, side string, vals []float64, ids func(int) string, 
 		switch {
 		case need < 0:
 			zp := -math.Sqrt2 * math.Erfcinv(2*r.Content)
-			pr.Reasons = append(pr.Reasons, fmt.Sprintf("not reachable by testing more specimens: the mean is only %.3f SD from the limit, and k never falls below z_p = %.3f", q, zp))
+			pr.Reasons = append(pr.Reasons, fmt.Sprintf("not reachable by testing more specimens: the mean is only %.3f standard deviations from the limit, and the tolerance factor never falls below %.3f, the standard normal quantile of the content", q, zp))
 		case need > MaxPlannedSpecimens:
 			pr.Reasons = append(pr.Reasons, fmt.Sprintf("more than %d specimens would be needed at the observed mean and SD", MaxPlannedSpecimens))
 		default:
-			pr.Reasons = append(pr.Reasons, fmt.Sprintf("at the observed mean and SD, %d specimens in all (%d more) would reach the confidence", need, need-n))
+			pr.Reasons = append(pr.Reasons, "at the observed mean and SD, "+strconv.Itoa(need)+" specimens in all ("+strconv.Itoa(need-n)+" more) would reach the confidence")
 		}
 	}
 	return pr, nil
@@ -624,6 +630,35 @@ func orUndecided(v string) string {
 	}
 	return v
 }
+
+// limitTexts are the limits of each specification as the reasons show
+// them (fmtVal), made once rather than for every lot.
+type limitTexts map[*spec.Spec][][2]string
+
+func newLimitTexts(specs []*spec.Spec) limitTexts {
+	t := limitTexts{}
+	for _, s := range specs {
+		for _, l := range s.Limits {
+			t[s] = append(t[s], [2]string{fmtVal(l.Unit, l.Min), fmtVal(l.Unit, l.Max)})
+		}
+	}
+	return t
+}
+
+// of is the text of limit i (side "min" or "max") of s, or "" when not
+// made.
+func (t limitTexts) of(s *spec.Spec, i int, side string) string {
+	if i >= len(t[s]) {
+		return ""
+	}
+	if side == "max" {
+		return t[s][i][1]
+	}
+	return t[s][i][0]
+}
+
+// gfmt is fmt's %g (the shortest form that reads back).
+func gfmt(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // fmtVal shows an internal value in the limit's own unit.
 func fmtVal(u units.Unit, v float64) string {

@@ -253,7 +253,7 @@ func Plan(o Options, s *spec.Spec, d *lots.Dataset, by lots.GroupBy) (Result, er
 	if res.SmallestN == 0 {
 		if margin <= zp {
 			res.SmallestN = -1
-			res.Reasons = append(res.Reasons, fmt.Sprintf("not reachable: the mean is %.3f SD inside the limit, not more than z_p = %.3f, so the probability does not grow towards 1 with n", margin, zp))
+			res.Reasons = append(res.Reasons, fmt.Sprintf("not reachable: the mean is %.3f standard deviations inside the limit, not more than %.3f (the standard normal quantile of the content), so the probability does not grow towards 1 with more specimens", margin, zp))
 		} else {
 			for n := o.MaxN + 1; n <= SearchLimit; n++ {
 				_, p, err := prob(n)
