@@ -58,6 +58,11 @@ func fracDelta0(t, z, df float64) float64 { return t - z*math.Sqrt(1+t*t/(2*df))
 type fracPanel struct {
 	once sync.Once
 	ok   bool
+	chebSeries
+}
+
+// chebSeries is a Chebyshev series of fracNodes terms on [-1, 1].
+type chebSeries struct {
 	coef [fracNodes]float64
 }
 
@@ -137,13 +142,7 @@ func (p *fracPanel) build(a, s0, df, target, z float64) {
 		f[j] = d - fracDelta0(t, z, df)
 		scale = math.Max(scale, math.Abs(d))
 	}
-	for k := range p.coef {
-		s := 0.0
-		for j := range f {
-			s += f[j] * fracCos[k][j]
-		}
-		p.coef[k] = 2 * s / fracNodes
-	}
+	p.fit(&f)
 	if math.Abs(p.coef[fracNodes-1])+math.Abs(p.coef[fracNodes-2]) > fracCoefTol*scale {
 		return
 	}
@@ -156,8 +155,20 @@ func (p *fracPanel) build(a, s0, df, target, z float64) {
 	p.ok = true
 }
 
+// fit sets the coefficients of the polynomial through the values f at
+// the Chebyshev points fracCos[1] (the discrete cosine transform).
+func (p *chebSeries) fit(f *[fracNodes]float64) {
+	for k := range p.coef {
+		s := 0.0
+		for j := range f {
+			s += f[j] * fracCos[k][j]
+		}
+		p.coef[k] = 2 * s / fracNodes
+	}
+}
+
 // eval sums the Chebyshev series at x in [-1, 1] by Clenshaw's recurrence.
-func (p *fracPanel) eval(x float64) float64 {
+func (p *chebSeries) eval(x float64) float64 {
 	var b1, b2 float64
 	for k := fracNodes - 1; k >= 1; k-- {
 		b1, b2 = 2*x*b1-b2+p.coef[k], b1

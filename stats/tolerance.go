@@ -136,17 +136,19 @@ const (
 
 // NormalKTable returns NormalK(n, p, gamma) for every n in ns (each n >= 2),
 // computed faster for tables and to the same accuracy: for n up to 100 it
-// calls NormalK; above, it solves the same equation (the gamma quantile of
-// the noncentral t, NormalK's formula) by Newton steps on the CDF and
-// density from the focused trapezoidal quadrature (ntfocus.go; each CDF is
-// accepted only when its built-in error check passes, otherwise NormalK is
-// used), starting from a quadratic extrapolation of the factors of the
-// preceding sizes, so that most sizes need a single CDF evaluation of about
-// 60 integrand values. Values agree with NormalK to about 1e-13 relative
-// (TestNormalKTableMatchesNormalK) and with the mpmath and scipy references
-// to the same tolerance as NormalK. Work is spread over
-// runtime.GOMAXPROCS(0) goroutines in fixed pieces of consecutive entries;
-// the result is the same for any number of goroutines.
+// calls NormalK. Above, a decade of sizes with at least kPanelMinSizes
+// entries is interpolated in 1/sqrt(n) through exact factors at Chebyshev
+// points, with two checks (normalkpanel.go); other sizes solve the same
+// equation (the gamma quantile of the noncentral t, NormalK's formula) by
+// Newton steps on the CDF and density from the focused trapezoidal
+// quadrature (ntfocus.go; each CDF is accepted only when its built-in
+// error check passes, otherwise NormalK is used), starting from a
+// quadratic extrapolation of the factors of the preceding sizes. Values
+// agree with NormalK to about 1e-14 relative
+// (TestNormalKTableMatchesNormalK) and with the mpmath and scipy
+// references to the same tolerance as NormalK. The per-size work is spread
+// over runtime.GOMAXPROCS(0) goroutines in fixed pieces of consecutive
+// entries; the result is the same for any number of goroutines.
 func NormalKTable(ns []int, p, gamma float64) ([]float64, error) {
 	if err := checkLevels(p, gamma); err != nil {
 		return nil, err
@@ -156,6 +158,49 @@ func NormalKTable(ns []int, p, gamma float64) ([]float64, error) {
 			return nil, fmt.Errorf("%w: normal tolerance factor needs n >= 2, got %d", ErrTooFew, n)
 		}
 	}
+	out := make([]float64, len(ns))
+	// Decades of sizes with many entries: interpolated (normalkpanel.go).
+	count := map[int]int{}
+	for _, n := range ns {
+		if n >= kPanelBase {
+			count[kPanelOf(n)]++
+		}
+	}
+	panels := map[int]*kPanel{}
+	for j, c := range count {
+		if c >= kPanelMinSizes {
+			if kp, ok := buildKPanel(j, p, gamma); ok {
+				panels[j] = &kp
+			}
+		}
+	}
+	rest := make([]int, 0, len(ns)) // indices left to the per-size route
+	for i, n := range ns {
+		if kp := panels[kPanelOf(max(n, kPanelBase))]; n >= kPanelBase && kp != nil {
+			out[i] = kp.at(n)
+		} else {
+			rest = append(rest, i)
+		}
+	}
+	if len(rest) < len(ns) {
+		sub := make([]int, len(rest))
+		for i, r := range rest {
+			sub[i] = ns[r]
+		}
+		ks, err := normalKTableEach(sub, p, gamma)
+		if err != nil {
+			return nil, err
+		}
+		for i, r := range rest {
+			out[r] = ks[i]
+		}
+		return out, nil
+	}
+	return normalKTableEach(ns, p, gamma)
+}
+
+// normalKTableEach is NormalKTable by the per-size route alone.
+func normalKTableEach(ns []int, p, gamma float64) ([]float64, error) {
 	out := make([]float64, len(ns))
 	nChunks := (len(ns) + normalKTableChunk - 1) / normalKTableChunk
 	errs := make([]error, nChunks)
