@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/signal"
 	"runtime/debug"
+	"runtime/pprof"
 	"syscall"
 	"time"
 
@@ -18,7 +19,28 @@ func main() {
 	st := streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		OutTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		ErrTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
-	os.Exit(execute(os.Args[1:], st))
+	stop := profileCPU(os.Getenv("LOTPROOF_CPUPROFILE"))
+	code := execute(os.Args[1:], st)
+	stop()
+	os.Exit(code)
+}
+
+// profileCPU writes a CPU profile of the command to the file named (for
+// developers: go tool pprof); stop ends it. Nothing when name is empty or
+// the file cannot be made.
+func profileCPU(name string) (stop func()) {
+	if name == "" {
+		return func() {}
+	}
+	f, err := os.Create(name)
+	if err != nil {
+		return func() {}
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return func() {}
+	}
+	return func() { pprof.StopCPUProfile(); f.Close() }
 }
 
 // tuneGC lets the heap grow to three times what is live between
