@@ -310,11 +310,10 @@ func ComputeFrom(data []store.LotValues, verdicts map[string][]store.Verdict, li
 			k = seriesKey{v.Material, v.Material, v.Property}
 		}
 		l := lotOf{v: v, period: p, sd: math.NaN()}
-		if s, err := stats.Describe(v.Values); err == nil {
-			l.mean = s.Mean
-			if s.N >= 2 {
-				l.sd = s.SD
-			}
+		// Mean and SD only (stats.MeanSD: Describe's values and errors,
+		// without its sorted copy for the median).
+		if m, sd, err := stats.MeanSD(v.Values); err == nil {
+			l.mean, l.sd = m, sd
 		} else {
 			continue
 		}
@@ -440,11 +439,8 @@ func computeSeries(res *Result, k seriesKey, ls []lotOf, min float64, o Options)
 			}
 		}
 		row.Specimens = len(vals)
-		if s, err := stats.Describe(vals); err == nil {
-			row.Mean = lots.Float(s.Mean)
-			if s.N >= 2 {
-				row.SD = lots.Float(s.SD)
-			}
+		if m, sd, err := stats.MeanSD(vals); err == nil {
+			row.Mean, row.SD = lots.Float(m), lots.Float(sd)
 		}
 		if !math.IsNaN(min) && len(vals) >= 2 {
 			if c, err := stats.PerformanceLower(vals, min, o.Confidence); err == nil {
