@@ -154,7 +154,8 @@ func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lo
 // samplesPostgres groups the measurements by the lot they carry (schema
 // version 4) and property in PostgreSQL, without joining the specimens:
 // per group the values as concatenated IEEE 754 binary64 in specimen-id
-// order, bytewise (COLLATE "C", as SQLite's BINARY and Go compare). The
+// order, bytewise (COLLATE "C", as SQLite's BINARY and Go compare), from
+// a sorted subquery. The
 // earliest test date of each lot comes from a second, small query over
 // the specimens (specimens without measurements count, as in lotMeta).
 func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
@@ -194,8 +195,21 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*
 	if err := dates.Close(); err != nil {
 		return err
 	}
-	rows, err := tx.QueryContext(ctx, `SELECT lot, property, COUNT(*), string_agg(float8send(value), ''::bytea ORDER BY specimen COLLATE "C")
-		FROM measurements`+where+` GROUP BY lot, property`, args...)
+	// The values come in specimen-id order from a sorted subquery (the
+	// covering index measurements_lot gives that order without a sort)
+	// rather than an ORDER BY inside string_agg, which sorts each of the
+	// groups again (PostgreSQL before 16): half the server time. The
+	// order is kept through the aggregation when the outer query does
+	// nothing but group the sorted rows (PostgreSQL manual, "Aggregate
+	// Functions", on sorted subqueries) and no parallel plan combines
+	// partial aggregates, which is ruled out here.
+	// TestLotSamplesMatchesLotData checks the order against LotData.
+	if _, err := tx.ExecContext(ctx, `SET LOCAL max_parallel_workers_per_gather = 0`); err != nil {
+		return err
+	}
+	rows, err := tx.QueryContext(ctx, `SELECT lot, property, COUNT(*), string_agg(float8send(value), ''::bytea)
+		FROM (SELECT lot, property, value FROM measurements`+where+` ORDER BY lot, property, specimen COLLATE "C") sorted
+		GROUP BY lot, property`, args...)
 	if err != nil {
 		return err
 	}
