@@ -65,3 +65,26 @@ func TestRecordReaderSplitMatchesEncodingCSV(t *testing.T) {
 		}
 	}
 }
+
+// Spaces around a field are not part of it (common practice for
+// hand-edited CSV): a file with padded fields, in lines that are printable
+// ASCII, reads as the same file without the padding, while spaces inside
+// a name are kept.
+func TestReadCSVTrimsPaddedFields(t *testing.T) {
+	plain := "specimen,lot,supplier,material,tensile [MPa]\nS1,L1,Mill A,Bar GX-7,1034.5\nS2,L1,Mill A,Bar GX-7,1040\n"
+	padded := "specimen , lot,supplier ,  material  ,tensile [MPa]\n S1,L1 , Mill A,Bar GX-7 ,1034.5 \nS2  ,  L1,Mill A  ,Bar GX-7,  1040\n"
+	want, err := ReadCSV(strings.NewReader(plain), "f.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := ReadCSV(strings.NewReader(padded), "f.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range want.Specimens {
+		w, g := want.Specimens[i], got.Specimens[i]
+		if g.ID != w.ID || g.Lot != w.Lot || g.Supplier != w.Supplier || g.Material != w.Material || !slices.Equal(g.Values, w.Values) {
+			t.Errorf("row %d: padded %+v, plain %+v", i+1, g, w)
+		}
+	}
+}

@@ -175,15 +175,11 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	// line of printable ASCII; nothing to trim in a line without a space
 	// (see recordReader.split).
 	ok := t.printable || t.checkText(fields, loc)
-	trim := !t.spaceless
 	get := func(col int) string {
 		if col < 0 {
 			return ""
 		}
-		if !trim {
-			return fields[col]
-		}
-		return strings.TrimSpace(fields[col])
+		return t.trim(fields[col])
 	}
 	s.ID = get(h.idCol)
 	s.Lot = get(h.lotCol)
@@ -217,10 +213,7 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	}
 	for i, col := range h.propCols {
 		p := h.Properties[i]
-		raw := fields[col]
-		if trim {
-			raw = strings.TrimSpace(raw)
-		}
+		raw := t.trim(fields[col])
 		if raw == "" {
 			s.Values[i] = math.NaN()
 			continue
@@ -253,6 +246,20 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 		s.Values[i] = v
 	}
 	return ok
+}
+
+// trim is strings.TrimSpace for a field of the row being parsed: nothing
+// to do in a row without a space; in a row of printable ASCII the only
+// white space is the space, so a field that neither starts nor ends with
+// one is left as it is.
+func (t *table) trim(f string) string {
+	switch {
+	case t.spaceless:
+		return f
+	case t.printable && (f == "" || (f[0] != ' ' && f[len(f)-1] != ' ')):
+		return f
+	}
+	return strings.TrimSpace(f)
 }
 
 // finishIDs completes the duplicate-id check (repeats across spilled runs
