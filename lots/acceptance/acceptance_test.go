@@ -242,9 +242,10 @@ func TestJudgeZeroSpreadBelowMinimum(t *testing.T) {
 	}
 }
 
-// Judging on several workers gives the same result, lot for lot and in the
-// same order, as on one; on 100 invented lots with three limits each.
-func TestJudgeParallelSameAsOneWorker(t *testing.T) {
+// scaleLots is 100 invented lots of 10 specimens (interleaved) and the
+// three-minimum specification of the scale benchmarks.
+func scaleLots(t *testing.T) (*lots.Dataset, *spec.Spec) {
+	t.Helper()
 	var buf bytes.Buffer
 	if _, err := scale.Write(&buf, scale.Options{Specimens: 1000, Lots: 100, Interleave: 3}); err != nil {
 		t.Fatal(err)
@@ -257,6 +258,13 @@ func TestJudgeParallelSameAsOneWorker(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return d, s
+}
+
+// Judging on several workers gives the same result, lot for lot and in the
+// same order, as on one; on 100 invented lots with three limits each.
+func TestJudgeParallelSameAsOneWorker(t *testing.T) {
+	d, s := scaleLots(t)
 	defer func(w int) { workers = w }(workers)
 	var outs [][]byte
 	for _, w := range []int{1, 4} {
@@ -284,18 +292,7 @@ func TestJudgeParallelSameAsOneWorker(t *testing.T) {
 // finish out of order), with the same counts; an error from the delivery
 // function is what Finish returns, and nothing is handed over after it.
 func TestJudgingDeliverSameAsKept(t *testing.T) {
-	var buf bytes.Buffer
-	if _, err := scale.Write(&buf, scale.Options{Specimens: 1000, Lots: 100, Interleave: 3}); err != nil {
-		t.Fatal(err)
-	}
-	d, err := lots.ReadCSV(&buf, "scale.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := spec.ReadFile("../../testdata/bench/spec-three.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
+	d, s := scaleLots(t)
 	groups, err := d.Group(lots.ByLot, nil)
 	if err != nil {
 		t.Fatal(err)
