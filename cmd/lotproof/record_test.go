@@ -49,7 +49,7 @@ func TestRecordThenAgainThenConflict(t *testing.T) {
 		t.Fatal(err)
 	}
 	if r["specimens_new"] != 4.0 || r["lots_new"] != 2.0 || r["already_recorded"] != false || r["user"] != "tester" ||
-		r["imported_at"] != "2026-03-04T05:06:07Z" || r["schema_version"] != 4.0 || len(r["sha256"].(string)) != 64 || r["digest"] != nil {
+		r["imported_at"] != "2026-03-04T05:06:07Z" || r["schema_version"] != float64(store.Latest()) || len(r["sha256"].(string)) != 64 || r["digest"] != nil {
 		t.Fatalf("first record: %s", out.String())
 	}
 	// Again: nothing changes, and it says so.

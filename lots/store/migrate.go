@@ -16,6 +16,7 @@ type migration struct {
 	about   string
 	sql     []string
 	pg      []string // then, on PostgreSQL only (features SQLite lacks)
+	lite    []string // then, on SQLite only
 }
 
 // Types used so that one statement suits both backends: TEXT, BIGINT and
@@ -56,7 +57,7 @@ var migrations = []migration{
 			value DOUBLE PRECISION NOT NULL,
 			PRIMARY KEY (specimen, property)
 		)`,
-	}, nil},
+	}, nil, nil},
 	{2, "verdicts and specification limits per import; lot index on specimens", []string{
 		`CREATE TABLE verdicts (
 			import_digest TEXT NOT NULL REFERENCES imports(digest),
@@ -77,10 +78,10 @@ var migrations = []migration{
 		)`,
 		`CREATE INDEX specimens_lot ON specimens (lot)`,
 		`ALTER TABLE imports ADD COLUMN tool_version TEXT NOT NULL DEFAULT ''`,
-	}, nil},
+	}, nil, nil},
 	{3, "the unit each property was entered in, for display (moduli in GPa stay in GPa)", []string{
 		`ALTER TABLE properties ADD COLUMN entered_unit TEXT NOT NULL DEFAULT ''`,
-	}, nil},
+	}, nil, nil},
 	// A specimen's lot never changes once recorded (a different lot is a
 	// conflict), so the copy on its measurements stays right; it lets the
 	// per-lot values be grouped without joining a million specimens.
@@ -94,6 +95,16 @@ var migrations = []migration{
 		`UPDATE measurements SET lot = (SELECT s.lot FROM specimens s WHERE s.specimen = measurements.specimen)`,
 	}, []string{
 		`CREATE INDEX measurements_lot ON measurements (lot, property, specimen COLLATE "C") INCLUDE (value)`,
+	}, nil},
+	// SQLite's LotSamples read every measurement through the specimens'
+	// lot index and two row lookups each; with these covering indexes it
+	// reads the values, grouped by lot, and the test dates from the
+	// indexes alone (about half the time of a trend; the database grows by
+	// about 40 %). PostgreSQL has its own index since version 4.
+	{5, "SQLite: the per-lot values and test dates read from covering indexes", nil, nil, []string{
+		`CREATE INDEX measurements_lot_values ON measurements (lot, property, specimen, value)`,
+		`CREATE INDEX specimens_lot_tested ON specimens (lot, tested)`,
+		`DROP INDEX specimens_lot`,
 	}},
 }
 
@@ -144,6 +155,8 @@ func (s *Store) migrate(ctx context.Context, target int) error {
 			stmts := m.sql
 			if s.backend == Postgres {
 				stmts = append(slices.Clip(stmts), m.pg...)
+			} else {
+				stmts = append(slices.Clip(stmts), m.lite...)
 			}
 			for _, stmt := range stmts {
 				if _, err := tx.ExecContext(ctx, stmt); err != nil {

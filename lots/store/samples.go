@@ -114,35 +114,46 @@ func (s *Store) propertyUnits(ctx context.Context) (map[string]string, error) {
 	return units, rows.Err()
 }
 
-// samplesSQLite groups by lot with the aggregate lotValuesFunc. The join
-// runs from the lot index of specimens to the measurements' primary key,
-// so SQLite neither sorts nor builds a temporary table. The left join
-// keeps specimens without measurements, whose test dates count towards
-// their lot's as in lotMeta.
+// samplesSQLite reads the earliest test date of every lot (specimens
+// without measurements count, as in lotMeta) and then the values grouped
+// by the lot each measurement carries (schema version 4), both from
+// covering indexes (version 5): per lot, the lotValues aggregate packs the
+// values per property in specimen-id order.
 func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
-	on := ``
+	dates, err := s.db.QueryContext(ctx, `SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`)
+	if err != nil {
+		return err
+	}
+	for dates.Next() {
+		var lot string
+		var tested sql.NullString
+		if err := dates.Scan(&lot, &tested); err != nil {
+			dates.Close()
+			return err
+		}
+		if m, ok := meta[lot]; ok {
+			m.earlier(tested.String)
+		}
+	}
+	if err := dates.Close(); err != nil {
+		return err
+	}
+	where := ``
 	var args []any
 	if f.Property != "" {
-		on = ` AND m.property = ?`
+		where = ` WHERE property = ?`
 		args = append(args, f.Property)
 	}
-	query := `SELECT s.lot, MIN(NULLIF(s.tested, '')), ` + lotValuesFunc + `(s.specimen, m.property, m.value)
-		FROM specimens s LEFT JOIN measurements m ON m.specimen = s.specimen` + on + `
-		GROUP BY s.lot`
-	rows, err := s.db.QueryContext(ctx, query, args...)
+	rows, err := s.db.QueryContext(ctx, `SELECT lot, `+lotValuesFunc+`(specimen, property, value) FROM measurements`+where+` GROUP BY lot`, args...)
 	if err != nil {
 		return err
 	}
 	defer rows.Close()
 	for rows.Next() {
 		var lot string
-		var tested sql.NullString
 		var blob []byte
-		if err := rows.Scan(&lot, &tested, &blob); err != nil {
+		if err := rows.Scan(&lot, &blob); err != nil {
 			return err
-		}
-		if m, ok := meta[lot]; ok {
-			m.earlier(tested.String)
 		}
 		if err := decodeLotValues(blob, func(prop string, vals []float64) error { return add(lot, prop, vals) }); err != nil {
 			return fmt.Errorf("store: lot %q: %w", lot, err)

@@ -6,8 +6,10 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"path/filepath"
 	"reflect"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -198,5 +200,36 @@ func TestLotSamplesAfterAdditions(t *testing.T) {
 			}
 			sameSamples(t, "proof added later", want, got)
 		})
+	}
+}
+
+// On SQLite the per-lot values and the test dates are read from the
+// covering indexes of schema version 5 (no row lookups, no sort): the
+// query plans say so.
+func TestLotSamplesSQLitePlans(t *testing.T) {
+	ctx := context.Background()
+	s := open(t, filepath.Join(t.TempDir(), "plans.db"))
+	for q, want := range map[string]string{
+		`SELECT lot, ` + lotValuesFunc + `(specimen, property, value) FROM measurements GROUP BY lot`:                      "USING COVERING INDEX measurements_lot_values",
+		`SELECT lot, ` + lotValuesFunc + `(specimen, property, value) FROM measurements WHERE property = 'x' GROUP BY lot`: "USING COVERING INDEX measurements_lot_values",
+		`SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`:                                                  "USING COVERING INDEX specimens_lot_tested",
+	} {
+		rows, err := s.db.QueryContext(ctx, `EXPLAIN QUERY PLAN `+q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var plan []string
+		for rows.Next() {
+			var id, parent, unused int
+			var detail string
+			if err := rows.Scan(&id, &parent, &unused, &detail); err != nil {
+				t.Fatal(err)
+			}
+			plan = append(plan, detail)
+		}
+		rows.Close()
+		if got := strings.Join(plan, "; "); !strings.Contains(got, want) || strings.Contains(got, "TEMP B-TREE") {
+			t.Errorf("%s\nplan: %s\nwant %s without a temporary B-tree", q, got, want)
+		}
 	}
 }
