@@ -114,28 +114,36 @@ func (s *Store) propertyUnits(ctx context.Context) (map[string]string, error) {
 	return units, rows.Err()
 }
 
-// samplesSQLite reads the earliest test date of every lot (specimens
-// without measurements count, as in lotMeta) and then the values grouped
-// by the lot each measurement carries (schema version 4), both from
-// covering indexes (version 5): per lot, the lotValues aggregate packs the
-// values per property in specimen-id order.
-func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
-	dates, err := s.db.QueryContext(ctx, `SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`)
+// lotDates sets the earliest non-empty test date of every lot in meta,
+// over all its specimens (with or without measurements).
+func lotDates(ctx context.Context, db interface {
+	QueryContext(ctx context.Context, query string, args ...any) (*sql.Rows, error)
+}, meta map[string]*lotInfo) error {
+	dates, err := db.QueryContext(ctx, `SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`)
 	if err != nil {
 		return err
 	}
+	defer dates.Close()
 	for dates.Next() {
 		var lot string
 		var tested sql.NullString
 		if err := dates.Scan(&lot, &tested); err != nil {
-			dates.Close()
 			return err
 		}
 		if m, ok := meta[lot]; ok {
 			m.earlier(tested.String)
 		}
 	}
-	if err := dates.Close(); err != nil {
+	return dates.Close()
+}
+
+// samplesSQLite reads the earliest test date of every lot (specimens
+// without measurements count, as in lotMeta) and then the values grouped
+// by the lot each measurement carries (schema version 4), both from
+// covering indexes (version 5): per lot, the lotValues aggregate packs the
+// values per property in specimen-id order.
+func (s *Store) samplesSQLite(ctx context.Context, f Filter, meta map[string]*lotInfo, add func(lot, prop string, vals []float64) error) error {
+	if err := lotDates(ctx, s.db, meta); err != nil {
 		return err
 	}
 	where := ``
@@ -188,22 +196,7 @@ func (s *Store) samplesPostgres(ctx context.Context, f Filter, meta map[string]*
 	if _, err := tx.ExecContext(ctx, `SET LOCAL work_mem = '`+pgWorkMem+`'`); err != nil {
 		return err
 	}
-	dates, err := tx.QueryContext(ctx, `SELECT lot, MIN(NULLIF(tested, '')) FROM specimens GROUP BY lot`)
-	if err != nil {
-		return err
-	}
-	for dates.Next() {
-		var lot string
-		var tested sql.NullString
-		if err := dates.Scan(&lot, &tested); err != nil {
-			dates.Close()
-			return err
-		}
-		if m, ok := meta[lot]; ok {
-			m.earlier(tested.String)
-		}
-	}
-	if err := dates.Close(); err != nil {
+	if err := lotDates(ctx, tx, meta); err != nil {
 		return err
 	}
 	// The values come in specimen-id order from a sorted subquery (the
