@@ -129,6 +129,7 @@ func acceptKept(o acceptOptions, st streams, specs []*spec.Spec) (*acceptance.Re
 // soon as it is judged, into a spill buffer (nothing partial is written
 // when the input turns out bad), and then writes the whole.
 func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptance.Result, error) {
+	defer streamingGC()()
 	by, _ := lots.ParseGroupBy(o.Input.GroupBy)
 	var buf *spillBuffer
 	defer func() { buf.close() }()

@@ -15,7 +15,6 @@ import (
 
 func main() {
 	cleanupOnSignal()
-	tuneGC()
 	st := streams{In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		OutTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		ErrTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
@@ -43,15 +42,19 @@ func profileCPU(name string) (stop func()) {
 	return func() { pprof.StopCPUProfile(); f.Close() }
 }
 
-// tuneGC lets the heap grow to three times what is live between
-// collections (Go's default is twice) unless GOGC says otherwise. The
-// commands that read large files keep little live (one lot at a time), so
-// this costs a few tens of MiB and saves about a tenth of the CPU time of
-// accept on a year of receipts (the scale benchmarks).
-func tuneGC() {
-	if os.Getenv("GOGC") == "" {
-		debug.SetGCPercent(200)
+// streamingGC lets the heap grow to three times what is live between
+// collections (Go's default is twice), unless GOGC says otherwise, for a
+// command that reads a large file one lot at a time and so keeps little
+// live: it costs a few tens of MiB and saves about a tenth of the CPU time
+// of accept on a year of receipts (the scale benchmarks). Commands that
+// hold a whole dataset keep the default. The returned function restores
+// the setting.
+func streamingGC() (restore func()) {
+	if os.Getenv("GOGC") != "" {
+		return func() {}
 	}
+	prev := debug.SetGCPercent(200)
+	return func() { debug.SetGCPercent(prev) }
 }
 
 // cleanupOnSignal removes the temporary files of a read in progress (an

@@ -57,11 +57,9 @@ func envInt(name string, def int) int {
 	return def
 }
 
-// measure runs fn b.N times, with the garbage collector set as the command
-// sets it, and reports the metrics.
+// measure runs fn b.N times and reports the metrics.
 func measure(b *testing.B, specimens int, fn func() error) {
 	b.Helper()
-	tuneGC() // as the command does
 	runtime.GC()
 	debug.FreeOSMemory()
 	if !scale.ResetPeakRSS() {

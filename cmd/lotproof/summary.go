@@ -70,6 +70,9 @@ func runSummary(o summaryOptions, st streams) error {
 		}
 	}
 	defer func() { stop(); buf.close() }()
+	if o.Out.Format != render.Text {
+		defer streamingGC()()
+	}
 	by, _ := lots.ParseGroupBy(o.Input.GroupBy)
 	_, _, err := scanLots(o.Data, o.Input, st, func(d *lots.Dataset) {
 		stop() // a second reading starts afresh
