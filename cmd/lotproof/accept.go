@@ -151,6 +151,7 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 			return
 		}
 		lay = newAcceptLayout(string(by), nil, specs, func(name string) bool { return name == table })
+		lay.table(table).CSVOnly = true
 		cw = csv.NewWriter(buf)
 		cw.Write(lay.table(table).Columns)
 	}

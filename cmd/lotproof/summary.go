@@ -85,6 +85,7 @@ func runSummary(o summaryOptions, st streams) error {
 			rs = render.Resolutions{}
 		case render.CSV:
 			t = newSummaryTable(string(by))
+			t.CSVOnly = true
 			cw = csv.NewWriter(buf)
 			cw.Write(t.Columns)
 		case render.JSON:

@@ -50,6 +50,9 @@ type Table struct {
 	Rows    [][]string
 	Exact   [][]string // per row: nil, or the machine form of every cell
 	Notes   []string
+	// CSVOnly: the rows are only written as CSV (WriteCSV, WriteCSVRows),
+	// so Add leaves the text of number cells for people empty.
+	CSVOnly bool
 }
 
 // NewTable makes a table; a column name starting with ">" is right-aligned
@@ -127,7 +130,9 @@ func (t *Table) Add(cells ...any) {
 		case int:
 			row[i] = strconv.Itoa(v)
 		case Number:
-			row[i] = v.Text()
+			if !t.CSVOnly {
+				row[i] = v.Text()
+			}
 			if exact == nil {
 				exact = make([]string, len(row))
 			}
