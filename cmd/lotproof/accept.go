@@ -115,7 +115,7 @@ func acceptKept(o acceptOptions, st streams, specs []*spec.Spec) (*acceptance.Re
 	if o.Out.Format == render.Text {
 		rs = render.Resolutions{}
 	}
-	res, err := judgeStream(o.Data, o.Input, st, specs, rs, o.Out.System, nil)
+	res, err := judgeStream(o.Data, o.Input, st, specs, rs, o.Out.System, func() {}, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -166,7 +166,7 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 		lay.add(l)
 		return lay.table(table).WriteCSVRows(cw)
 	}
-	res, err := judgeStreamFrom(o.Data, o.Input, st, specs, nil, o.Out.System, begin, deliver)
+	res, err := judgeStream(o.Data, o.Input, st, specs, nil, o.Out.System, begin, deliver)
 	if err != nil {
 		return nil, err
 	}
@@ -217,16 +217,11 @@ func writeShown(w io.Writer, shown *acceptance.Result, rs render.Resolutions, ta
 // judgeStream reads the results file one lot at a time and judges the lots
 // in parallel as they come (acceptance.Judging); the errors are those of
 // reading the whole file and then calling acceptance.Judge. The values'
-// resolutions in the units of sys go into rs (when not nil). With deliver,
-// each lot's result goes to it as soon as it is judged (in order) instead
-// of into the result.
-func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System, deliver func(*acceptance.LotResult) error) (*acceptance.Result, error) {
-	return judgeStreamFrom(name, in, st, specs, rs, sys, func() {}, deliver)
-}
-
-// judgeStreamFrom is judgeStream with begin called before every pass over
-// the input (what was delivered before is void then).
-func judgeStreamFrom(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System, begin func(), deliver func(*acceptance.LotResult) error) (*acceptance.Result, error) {
+// resolutions in the units of sys go into rs (when not nil). begin is
+// called before every pass over the input (what was delivered before is
+// void then). With deliver, each lot's result goes to it as soon as it is
+// judged (in order) instead of into the result.
+func judgeStream(name string, in inputOptions, st streams, specs []*spec.Spec, rs render.Resolutions, sys units.System, begin func(), deliver func(*acceptance.LotResult) error) (*acceptance.Result, error) {
 	var j *acceptance.Judging
 	var props []lots.Property
 	var specErr error
