@@ -25,6 +25,7 @@ import (
 // the levels in use), so it stays small; make a new Factors to drop it.
 type Factors struct {
 	mu   sync.Mutex
+	kp   map[factorKey]*kPanelEntry // per (panel, p, gamma): NormalKNear's interpolants
 	k    map[factorKey]*factorEntry
 	t    map[factorKey]*factorEntry
 	frac map[fracKey]*fracTable
@@ -70,6 +71,44 @@ func (c *Factors) NormalK(n int, p, gamma float64) (float64, error) {
 	e := c.get(&c.k, factorKey{n, p, gamma})
 	e.once.Do(func() { e.v, e.err = NormalK(n, p, gamma) })
 	return e.v, e.err
+}
+
+type kPanelEntry struct {
+	once sync.Once
+	ok   bool
+	kp   kPanel
+}
+
+// NormalKNear returns the one-sided normal tolerance factor for (n, p,
+// gamma) from the interpolant over n's decade of sizes (normalkpanel.go)
+// for n above 100, which agrees with NormalK to about 1e-14 relative
+// (at most kPanelCheckTol, checked when the panel is built), and from
+// NormalK below (cached) or where an interpolant fails its checks. It is
+// for searches that compare many factors with a margin (the specimens an
+// undecided lot would need): each decade costs 16 exact factors once,
+// every further size a polynomial evaluation instead of a noncentral t
+// quantile.
+func (c *Factors) NormalKNear(n int, p, gamma float64) (float64, error) {
+	if n < kPanelBase || checkLevels(p, gamma) != nil {
+		return c.NormalK(n, p, gamma)
+	}
+	j := kPanelOf(n)
+	key := factorKey{j, p, gamma}
+	c.mu.Lock()
+	if c.kp == nil {
+		c.kp = map[factorKey]*kPanelEntry{}
+	}
+	e := c.kp[key]
+	if e == nil {
+		e = &kPanelEntry{}
+		c.kp[key] = e
+	}
+	c.mu.Unlock()
+	e.once.Do(func() { e.kp, e.ok = buildKPanel(j, p, gamma) })
+	if !e.ok {
+		return c.NormalK(n, p, gamma)
+	}
+	return e.kp.at(n), nil
 }
 
 // MeanT returns t_(gamma, n-1), the gamma quantile of Student's t with n-1

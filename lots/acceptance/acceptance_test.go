@@ -354,11 +354,12 @@ func TestNeededSpecimensMatchesBisection(t *testing.T) {
 		zp := -math.Sqrt2 * math.Erfcinv(2*p)
 		q := zp + 0.01 + (6-zp)*r.Float64()*r.Float64()
 		n0 := 2 + r.IntN(59)
-		got, err := neededSpecimens(q, p, g, n0, f.NormalK)
+		got, err := neededSpecimens(q, p, g, n0, f.NormalKNear) // as judgeSide searches
 		if err != nil {
 			t.Fatal(err)
 		}
-		// Reference: bisection between n0 (or 2) and MaxPlannedSpecimens.
+		// Reference: bisection between n0 (or 2) and MaxPlannedSpecimens,
+		// with the exact factor.
 		lo, hi := max(n0, 2), MaxPlannedSpecimens
 		want := 0
 		if k, _ := f.NormalK(lo, p, g); k <= q {
