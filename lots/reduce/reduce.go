@@ -259,15 +259,8 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	// 5. Loading branch: up to the first fall of the stress by more than
 	// delta below its running maximum (yield drop, necking, fracture).
 	iEnd := iMax
-	run := 0
-	for i := 1; i <= iMax; i++ {
-		if s[i] > s[run] {
-			run = i
-		}
-		if s[i] < s[run]-delta {
-			iEnd = run
-			break
-		}
+	if p := firstFall(s[:iMax+1], delta); p >= 0 {
+		iEnd = p
 	}
 	// 6. Elastic fit.
 	lo, hi, ok := res.elasticRange(x, s, iEnd, opt)
@@ -789,17 +782,7 @@ func (res *Result) smoothProof(x, s []float64, E, off float64) {
 // fall; the initial transient is the first dip below the median of the
 // yielding stresses, which is left out of the minimum.
 func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
-	run := 0
-	p := -1
-	for i := 1; i < len(s); i++ {
-		if s[i] > s[run] {
-			run = i
-		}
-		if s[i] < s[run]-delta {
-			p = run
-			break
-		}
-	}
+	p := firstFall(s, delta)
 	if p < 0 || x[p]-s[p]/E > 0.01 || x[len(x)-1]-x[p] < 0.01 {
 		return
 	}
@@ -842,6 +825,42 @@ func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
 	res.UpperYield = s[p]
 	res.LowerYield = rel
 	res.note("discontinuous yielding: upper yield at strain %.3g %%, yielding up to strain %.3g %%", 100*x[p], 100*x[q-1])
+}
+
+// fallSide is the number of points on each side of the centred moving
+// average that firstFall looks at.
+const fallSide = 2
+
+// firstFall returns the index of the highest point before the first fall
+// of the stress by more than delta below its running maximum, or -1 when
+// it never falls so far. The fall is judged on the centred moving average
+// of 2 fallSide + 1 points (fewer at the ends), so that two noise
+// extremes, a high point and a later low one, do not make a fall on a
+// flat stretch of a noisy curve; a yield drop or necking, which lasts,
+// does. The point returned is the highest raw point within fallSide
+// points of the moving average's running maximum.
+func firstFall(s []float64, delta float64) int {
+	n := len(s)
+	avg := func(i int) float64 {
+		a, b := max(0, i-fallSide), min(n, i+fallSide+1)
+		sum := 0.0
+		for j := a; j < b; j++ {
+			sum += s[j]
+		}
+		return sum / float64(b-a)
+	}
+	run, top := 0, avg(0)
+	for i := 1; i < n; i++ {
+		v := avg(i)
+		if v > top {
+			run, top = i, v
+		}
+		if v < top-delta {
+			a, b := max(0, run-fallSide), min(n, run+fallSide+1)
+			return a + argmax(s[a:b])
+		}
+	}
+	return -1
 }
 
 // quadFit fits stress = c0 + c1 u + c2 u^2, u = (strain - xc)/w, by least
