@@ -111,8 +111,9 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 //   - the modulus E as the least-squares slope over the straight stress
 //     window (ASTM E111, see autoElastic and fitLine), or, where it is the
 //     more precise or the straight window is not elastic, the tangent at
-//     zero stress of a Ramberg-Osgood curve fitted up to just past the
-//     proof strength (Ramberg and Osgood; Hill; see gradualFit and fitRO),
+//     zero stress of a Ramberg-Osgood curve fitted in stress from just past
+//     the proof strength to as far up the loading branch as it holds
+//     (Ramberg and Osgood; Hill; see gradualFit, fitRO and refineRO),
 //     with toe compensation
 //     (the strain origin moved to the strain intercept of that line, as
 //     in ASTM E111 and the ASTM E8/E8M offset-method figure);
