@@ -22,6 +22,11 @@ type roCurve struct {
 // Statistics 35, 1964; Holland and Welsch 1977).
 const huberK = 1.345
 
+// bisquareK is the tuning constant of Tukey's biweight in noise SDs:
+// 4.685 gives 95 % efficiency for normal noise (Beaton and Tukey,
+// Technometrics 16, 1974; Holland and Welsch 1977).
+const bisquareK = 4.685
+
 // Exponent range searched by the Ramberg-Osgood fit: below 2 the curve
 // bends from the start (no metal), above 200 it is a sharp corner.
 const (
@@ -446,6 +451,12 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 	// r, J: residuals and derivative rows at p; rt, Jt at a trial point.
 	r, rt := make([]float64, n), make([]float64, n)
 	J, Jt := make([]float64, 4*n), make([]float64, 4*n)
+	// ua, ut: the curve's stress (in sRef) at each point's strain, at p
+	// and at the trial point; Newton's method starts from ua.
+	ua, ut := make([]float64, n), make([]float64, n)
+	for k, i := range idx {
+		ua[k] = s[i] / sRef
+	}
 	w := make([]float64, n)
 	for k := range w {
 		w[k] = 1
@@ -458,12 +469,12 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 		b := [3]float64{q[0], q[1], q[2]}
 		sse := 0.0
 		for k, i := range idx {
-			u, d := roInverse(b, q[3], x[i], s[i]/sRef)
+			u, d := roInverse(b, q[3], x[i], ua[k])
 			if !(d > 0) || math.IsNaN(u) {
 				return math.Inf(1), false
 			}
 			e := s[i] - sRef*u
-			rt[k] = e
+			rt[k], ut[k] = e, u
 			sse += w[k] * e * e
 			um, lu := 0.0, 0.0
 			if u > 0 {
@@ -478,12 +489,21 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 	}
 	// huber sets Huber's weights from the residuals r and returns the
 	// weighted sum of squares.
+	bisq := false
 	huber := func() float64 {
 		sse := 0.0
 		for k := range w {
 			w[k] = 1
-			if noise > 0 && math.Abs(r[k]) > huberK*noise {
-				w[k] = huberK * noise / math.Abs(r[k])
+			switch a := math.Abs(r[k]); {
+			case noise <= 0:
+			case bisq:
+				u := a / (bisquareK * noise)
+				w[k] = 0
+				if u < 1 {
+					w[k] = (1 - u*u) * (1 - u*u)
+				}
+			case a > huberK*noise:
+				w[k] = huberK * noise / a
 			}
 			sse += w[k] * r[k] * r[k]
 		}
@@ -492,7 +512,7 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 	if _, ok := eval(p); !ok {
 		return rc, false
 	}
-	r, rt, J, Jt = rt, r, Jt, J
+	r, rt, J, Jt, ua, ut = rt, r, Jt, J, ut, ua
 	sse := huber()
 	// normal accumulates J'WJ and J'Wr at p.
 	normal := func() (a [4][4]float64, g [4]float64) {
@@ -538,15 +558,25 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 				lambda *= 10
 				continue
 			}
-			conv = sse-v <= 1e-10*sse
+			conv = sse-v <= 1e-8*sse
+			for i := 0; i < 4; i++ {
+				if math.Abs(dlt.AtVec(i)) > 1e-7*(math.Abs(p[i])+p[1]) {
+					break
+				}
+				conv = conv || i == 3
+			}
 			p = q
-			r, rt, J, Jt = rt, r, Jt, J
+			r, rt, J, Jt, ua, ut = rt, r, Jt, J, ut, ua
 			lambda = math.Max(lambda/10, 1e-9)
 			improved = true
 			sse = huber()
 		}
 		if !improved || conv {
-			break
+			if bisq || noise <= 0 {
+				break
+			}
+			bisq = true
+			sse = huber()
 		}
 	}
 	// Covariance at the solution.
