@@ -278,19 +278,24 @@ func TestTooManyGlitches(t *testing.T) {
 
 // TestPlantedGlitchesEdgesAndSteps: one glitch planted among the first
 // and the last five points of analytic Ramberg-Osgood records (exponents
-// 5 and 20; clean and with 0.2 % of Rm noise; 2,000 and 20,000 points;
-// sampled evenly in strain and evenly in time), and a force step that
-// stays (the load cell jumps by 3 % of the highest force, up or down) at
-// the elastic range, the proof strength and the maximum force. Each
-// either moves E (ASTM E111), Rp0.2 (ISO 6892-1 clause 12), Rm (clause
-// 19) and A (clause 20) by less than 0.5 %, or is named by its line in a
-// warning with the moved property left empty; the large ones (a force
-// spike to one and a half times the highest force, an extension spike of
-// 0.2 % strain at the start, every force step) must be named. ISO clause
-// numbers from memory.
+// 5 and 20; clean and with 0.2 % of Rm noise; 500, 2,000 and 20,000
+// points; sampled evenly in strain and evenly in time), and a force step
+// that stays (the load cell jumps by 3 % of the highest force, up or
+// down) at the second to fifth point, the elastic range, the proof
+// strength and the maximum force. Each either moves E (ASTM E111), Rp0.2
+// (ISO 6892-1 clause 12), Rm (clause 19) and A (clause 20) by less than
+// 0.5 %, or is named by its line in a warning with the moved property
+// left empty; the large ones (a force spike to one and a half times the
+// highest force, an extension spike of 0.2 % strain at the start, every
+// force step) must be named. Two exceptions, both measured: A may move by
+// two strain steps of the record at fracture when the glitch sits on the
+// last points before it (no rule can tell that from a fracture a point
+// or two earlier; on 500 points a step is 0.27 % to 0.5 % of A), and the
+// modulus of the gradually yielding, noisy 500-point records by 0.6 %
+// (see below). ISO clause numbers from memory.
 func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 	for _, mt := range []roMaterial{roMaterials[0], roMaterials[4]} {
-		for _, pts := range []int{2000, 20000} {
+		for _, pts := range []int{500, 2000, 20000} {
 			for _, nz := range []float64{0, 0.002} {
 				for _, rate := range []bool{false, true} {
 					sp := mt.sampled(pts, nz, 7, rate)
@@ -332,6 +337,18 @@ func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 						"proof":   indexAbove(x, sp.Rp/sp.E+0.0015),
 						"maximum": indexAbove(x, sp.Rm/sp.E+sp.Uniform*0.9),
 					}
+					// A force step among the first points: every later
+					// stress is off.
+					for _, k := range []int{1, 2, 3, 4} {
+						for _, sign := range []float64{1, -1} {
+							k, sign := k, sign
+							cases = append(cases, planted{fmt.Sprintf("force step %+.0f %% at point %d", 3*sign, k), k, func(f, x []float64) {
+								for i := k; i < n; i++ {
+									f[i] += sign * 0.03 * fmax
+								}
+							}, "force step"})
+						}
+					}
 					for _, where := range []string{"elastic", "proof", "maximum"} {
 						k := at[where]
 						for _, sign := range []float64{1, -1} {
@@ -356,13 +373,20 @@ func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 							continue
 						}
 						glitchOutcome(t, name, r, ref, line, c.mustFlag, func(what string) float64 {
-							if what == "E" && mt.m <= 6 && nz > 0 && pts <= 2000 {
-								// A miss: the first points set to zero (below the
-								// glitch threshold there, and like the slack at the
-								// start of a test) move the modulus of a gradually
-								// yielding, noisy record of 2,000 points by up to
-								// 1.0 % (measured), about its own standard error.
-								return 0.015
+							if what == "E" && mt.m <= 6 && nz > 0 && pts <= 500 {
+								// A miss: on a gradually yielding, noisy record of
+								// 500 points, about 25 points below half the proof
+								// strength pin the modulus (its standard error is
+								// 0.65 %); a three-point dropout at the fifth point,
+								// found, named and left out, takes three of them and
+								// moves it by 0.54 % (measured).
+								return 0.006
+							}
+							if what == "A" && c.k >= n-5 {
+								// A glitch on the last points before the fracture
+								// cannot be told from a fracture a point or two
+								// earlier: the record's strain step there.
+								return math.Max(0.005, 2*(x[n-4]-x[n-6])/sp.Elongation)
 							}
 							return 0.005
 						})

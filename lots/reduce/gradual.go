@@ -311,11 +311,19 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 	if c, good := refineRO(x, s, span(lo, hi, hi, 1), res.Noise, rc); good && adequate(c, lo) {
 		rc = c
 	}
+	// The extension stops before the first step (force or extension),
+	// beyond which the curve is shifted.
+	last := iEnd
+	for _, g := range res.steps {
+		for last >= hi && x[last] >= g.at {
+			last--
+		}
+	}
 	n, end, reach := hi-lo, 150*off, ""
 	for _, pe := range roReach {
-		h := iEnd + 1
+		h := last + 1
 		if pe <= 1 {
-			for h = hi; h <= iEnd && x[h]-rc.e0-s[h]/rc.E < pe; h++ {
+			for h = hi; h <= last && x[h]-rc.e0-s[h]/rc.E < pe; h++ {
 			}
 		}
 		if h <= hi+roReachMin {
@@ -346,12 +354,16 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 	}
 	res.Fit = Fit{Slope: rc.E, Intercept: -rc.E * rc.e0, R2: rc.r2, ResidualSD: rc.resid, N: n, From: from, To: to,
 		FirstLine: lnFirst[lo], LastLine: lnLast[hi-1]}
-	why := "it is more precise than"
-	if !agree {
-		why = "its modulus departs by more than three combined standard errors from that of"
+	res.fitSpan = hi - lo
+	why := fmt.Sprintf("it is more precise than the straight window from %.0f %% to %.0f %% of the top stress (modulus %.4g GPa, combined error %.3g %%)", 100*lin.a, 100*lin.b, E0/1000, 100*linErr)
+	switch {
+	case math.IsInf(linErr, 1):
+		why = fmt.Sprintf("no window of the loading branch is straight (the lowest, from %.0f %% to %.0f %% of the top stress, has a slope change of %.2f %% across it)", 100*lin.a, 100*lin.b, 100*lin.curve)
+	case !agree:
+		why = fmt.Sprintf("its modulus departs by more than three combined standard errors from that of the straight window from %.0f %% to %.0f %% of the top stress (modulus %.4g GPa, combined error %.3g %%)", 100*lin.a, 100*lin.b, E0/1000, 100*linErr)
 	}
-	res.FitMethod = fmt.Sprintf("tangent at zero stress of a Ramberg-Osgood curve (the strain as the sum of a strain offset, the stress over the modulus and a multiple of a power of the stress; Ramberg and Osgood, NACA TN 902; Hill, NACA TN 927; the tangent modulus of ASTM E111) fitted by least squares in stress, the strain taken as exact (Levenberg-Marquardt), to %d points from %.4g to %.4g MPa (from %.0f %% of the loading branch's top stress %.4g MPa to a plastic strain of %.3g %%%s): power %.3g, residual SD %.3g MPa, R² %.6f, standard error of the modulus %.3g %%; taken because %s the straight window from %.0f %% to %.0f %% of the top stress (modulus %.4g GPa, combined error %.3g %%)",
-		n, from, to, 100*start, top, end, reach, rc.m, rc.resid, rc.r2, 100*rc.relSE, why, 100*lin.a, 100*lin.b, E0/1000, 100*linErr)
+	res.FitMethod = fmt.Sprintf("tangent at zero stress of a Ramberg-Osgood curve (the strain as the sum of a strain offset, the stress over the modulus and a multiple of a power of the stress; Ramberg and Osgood, NACA TN 902; Hill, NACA TN 927; the tangent modulus of ASTM E111) fitted by least squares in stress, the strain taken as exact (Levenberg-Marquardt), to %d points from %.4g to %.4g MPa (from %.0f %% of the loading branch's top stress %.4g MPa to a plastic strain of %.3g %%%s): power %.3g, residual SD %.3g MPa, R² %.6f, standard error of the modulus %.3g %%; taken because %s",
+		n, from, to, 100*start, top, end, reach, rc.m, rc.resid, rc.r2, 100*rc.relSE, why)
 	return lo, hi, true
 }
 

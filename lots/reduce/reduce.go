@@ -79,8 +79,11 @@ type Result struct {
 	FitMethod     string  // how the elastic window was chosen
 	ProofMethod   string  // how the proof strength was found
 
-	lin    window  // the straight window found automatically
-	linErr float64 // its combined relative error
+	lin      window  // the straight window found automatically
+	linErr   float64 // its combined relative error
+	seed     window  // the lowest window, when none is straight
+	fitSpan  int     // working points from the first to the last of the elastic fit
+	noLinear string  // the warning when none is straight
 
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	tooMany                                                       bool     // more than maxGlitches glitches
@@ -265,9 +268,17 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	}
 	// 6. Elastic fit.
 	lo, hi, ok := res.elasticRange(x, s, iEnd, opt)
+	// No straight window: the lowest window starts the Ramberg-Osgood
+	// fit, which must then be taken.
+	seedOnly := !ok && res.noLinear != "" && res.seed.hi > 0
+	if seedOnly {
+		lo, hi, ok = res.seed.lo, res.seed.hi, true
+		res.lin, res.linErr = res.seed, math.Inf(1)
+	}
 	if ok {
 		res.fitLine(x[lo:hi], s[lo:hi])
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
+		res.fitSpan = hi - lo
 		auto := !(opt.ModulusTo > opt.ModulusFrom)
 		if auto && res.Fit.Slope > 0 {
 			// Replaces the fit in res when the fitted curve is taken; its
@@ -275,7 +286,13 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 			// end is in the audit, not needed below).
 			if l2, _, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
 				lo = l2
+				seedOnly = false
 			}
+		}
+		if seedOnly {
+			res.warn("%s", res.noLinear)
+			res.FitMethod = ""
+			ok = false
 		}
 		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
@@ -445,7 +462,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 			gone = append(gone, name)
 		}
 	}
-	if fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > stepX {
+	if fitOK && res.fitSpan > 0 && len(fitX) >= res.fitSpan && fitX[res.fitSpan-1] > stepX {
 		drop("modulus", &res.Modulus)
 		drop("proof strength", &res.Proof)
 		drop("uniform elongation", &res.Uniform)
@@ -462,7 +479,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	if res.TensileStrain+shift > stepX {
 		drop("uniform elongation", &res.Uniform)
 	}
-	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > forceX) {
+	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.fitSpan > 0 && len(fitX) >= res.fitSpan && fitX[res.fitSpan-1] > forceX) {
 		drop("tensile strength", &res.Tensile)
 		drop("uniform elongation", &res.Uniform)
 	}
