@@ -43,6 +43,10 @@ const (
 // listed in the audit).
 const maxGlitches = 1000
 
+// minSerrations is the fewest force falls (and no force rise) that make
+// serrated flow rather than glitches.
+const minSerrations = 3
+
 // sideLine fits a least-squares straight line to v(k), k in [a, b), with
 // the index as abscissa and returns its value at index t.
 func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
@@ -530,6 +534,38 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 		g.Noise = res.RawNoise
 		g.atStress = stressAt(g.from - 1)
 		flone = append(flone, g)
+	}
+	// Three or more force falls past the first points and no rise are
+	// serrated flow (the Portevin-Le Chatelier effect, discontinuous
+	// yielding in bands: the force falls abruptly and climbs back, again
+	// and again): the material's own response, kept as recorded.
+	var falls []Glitch
+	rise := false
+	for _, g := range flone {
+		if g.from >= glitchSide {
+			if g.Size < 0 {
+				falls = append(falls, g)
+			} else {
+				rise = true
+			}
+		}
+	}
+	if len(falls) >= minSerrations && !rise {
+		lo, hi := math.Inf(1), 0.0
+		for _, g := range falls {
+			lo, hi = math.Min(lo, -g.Size), math.Max(hi, -g.Size)
+		}
+		_, _, l1 := rec.Point(falls[0].from)
+		_, _, l2 := rec.Point(falls[len(falls)-1].from)
+		res.note("serrated flow: %d abrupt force falls of %.3g to %.3g MPa between lines %d and %d, each followed by a climb back and none by a jump up: taken as the material's own response (the Portevin-Le Chatelier effect), not as glitches; the curve is used as recorded",
+			len(falls), lo, hi, l1, l2)
+		var keep []Glitch
+		for _, g := range flone {
+			if g.from < glitchSide {
+				keep = append(keep, g)
+			}
+		}
+		flone = keep
 	}
 	xsteps = append(xsteps, flone...)
 	sortGlitches(xsteps)
