@@ -78,97 +78,141 @@ type accCase struct {
 	points int
 	noise  float64 // fraction of Rm
 	seeds  int
-	heavy  bool
 }
 
+// accCases are the point counts and noise levels of the accuracy grid.
+// The cases of 200,000 points and more are heavy (see accHeavy).
 var accCases = []accCase{
-	{500, 0, 1, false}, {2000, 0, 1, false}, {20000, 0, 1, false}, {200000, 0, 1, true}, {1000000, 0, 1, true},
-	{500, 0.001, 5, false}, {2000, 0.001, 5, false}, {20000, 0.001, 3, false}, {200000, 0.001, 1, true}, {1000000, 0.001, 1, true},
-	{500, 0.002, 5, false}, {2000, 0.002, 5, false}, {20000, 0.002, 3, false}, {200000, 0.002, 1, true}, {1000000, 0.002, 1, true},
+	{500, 0, 1}, {2000, 0, 1}, {20000, 0, 1}, {200000, 0, 1}, {1000000, 0, 1},
+	{500, 0.001, 5}, {2000, 0.001, 5}, {20000, 0.001, 3}, {200000, 0.001, 1}, {1000000, 0.001, 1},
+	{500, 0.002, 5}, {2000, 0.002, 5}, {20000, 0.002, 3}, {200000, 0.002, 1}, {1000000, 0.002, 1},
+}
+
+// accHeavy says whether a heavy case runs: with -short none; by default
+// the 1,000,000-point records sampled evenly in time (as a frame logs)
+// clean and with noise of 0.2 % of Rm, and the 200,000-point records
+// sampled evenly in strain with that noise, for every material (18
+// records); with LOTPROOF_ACCURACY_FULL=1 all of them (72 records).
+func accHeavy(c accCase, rate bool) bool {
+	switch {
+	case c.points < 200000:
+		return true
+	case testing.Short():
+		return false
+	case os.Getenv("LOTPROOF_ACCURACY_FULL") != "":
+		return true
+	case c.points == 1000000:
+		return rate && c.noise != 0.001
+	}
+	return !rate && c.noise == 0.002
 }
 
 // limits are the largest errors [%] a case may show.
 type limits struct{ E, Rp, Rm, A float64 }
 
-// accLimits are the targets of the issue (clean: E 0.5 %, Rp0.2 0.2 %, Rm
-// 0.1 %, A 0.2 %; noise up to 0.2 % of Rm: E 1 %, Rp0.2 0.5 %, Rm 0.5 %),
-// except where this package does not meet them: the gradually yielding
-// materials (hardening exponent 5 and 6) with noise of 0.2 % of Rm in
-// records of 2,000 points or fewer, where the points below the proof
-// strength are too few to pin the tangent at zero stress within 1 % (the
-// fit's own standard error of the modulus is 0.7 % to 1.3 % there, and
-// the proof strength follows the modulus through the offset line). There
-// the limits are the measured worst errors (E 1.7 %, Rp0.2 0.53 %) with
-// some room, so that a regression fails the test; the README and the
-// closing note of the issue say so.
-func accLimits(c accCase, gradual bool) limits {
-	if c.noise == 0 {
+// accLimits are the targets of the issue: on clean curves E within 0.5 %,
+// Rp0.2 within 0.2 %, Rm within 0.1 % and A within 0.2 %; with force noise
+// up to 0.2 % of Rm, E within 1 %, Rp0.2 and Rm within 0.5 % (A: 0.5 %,
+// this package's own limit; the issue names none).
+func accLimits(noise float64) limits {
+	if noise == 0 {
 		return limits{0.5, 0.2, 0.1, 0.2}
 	}
-	l := limits{1, 0.5, 0.5, 0.5}
-	if gradual && c.points <= 2000 && c.noise > 0.001 {
-		l.E, l.Rp = 2, 0.65
-	}
-	return l
+	return limits{1, 0.5, 0.5, 0.5}
 }
 
-// TestAccuracyTable reduces analytic Ramberg-Osgood curves of hardening
-// exponents 5 to 30 with 500 to 1,000,000 points and normal force noise of
-// 0, 0.1 % and 0.2 % of Rm, sampled two ways: evenly in strain, and
-// evenly in time under the strain rates of ISO 6892-1 method A (range 2,
-// 0.00025 per second, to just past the proof strength, range 4, 0.0067
-// per second, after; clause 10.3, from memory), and checks the largest errors against
-// accLimits; nothing may be missing. The properties checked are those of
-// ASTM E111 (modulus, least squares over the straight range), ISO 6892-1
-// clause 12 / ASTM E8/E8M 7.7 (offset proof strength), ISO 6892-1 clause
-// 19 (Rm from the maximum force), clause 16 (Ag, plastic extension at
-// maximum force; no target, shown in % of Ag) and clause 20 (A, here from
-// the record at fracture less the elastic part); clause numbers from
-// memory. With LOTPROOF_ACCURACY_TABLE=1 the table is printed. The cases
-// of 200,000 points and more are left out with -short, and run for two
-// materials (exponents 5 and 20) unless LOTPROOF_ACCURACY_FULL=1.
+// accRow is one line of the accuracy table.
+type accRow struct {
+	sampling string
+	mt       roMaterial
+	c        accCase
+	errRow
+}
+
+// TestAccuracyTable reduces analytic Ramberg-Osgood curves (roMaterials:
+// hardening exponents 5, 6, 8, 15, 20 and 30) with 500 to 1,000,000
+// points and normal force noise of 0, 0.1 % and 0.2 % of Rm, sampled two
+// ways: evenly in strain, and evenly in time under the strain rates of
+// ISO 6892-1 method A (range 2, 0.00025 per second, to just past the
+// proof strength, range 4, 0.0067 per second, after; clause 10.3, from
+// memory), and checks the largest error of every case against the
+// targets (accLimits); nothing may be missing. The checks and the rules
+// they stand for: E, the modulus, against ASTM E111 (least squares over
+// the elastic range, or the tangent modulus of a fitted curve); Rp0.2
+// against ISO 6892-1 clause 12 and ASTM E8/E8M 7.7 (offset proof
+// strength); Rm against ISO 6892-1 clause 19 (from the maximum force); A
+// against clause 20 (elongation after fracture, here from the record at
+// fracture less the elastic part); Ag (clause 16, plastic extension at
+// maximum force) is shown, with no target. Clause numbers from memory.
+// The heavy cases are chosen by accHeavy. With LOTPROOF_ACCURACY_TABLE=1
+// the table is written to accuracy.md (run it with
+// LOTPROOF_ACCURACY_FULL=1 for the whole grid).
 func TestAccuracyTable(t *testing.T) {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%-8s %9s %7s %6s %-8s | %7s %7s %7s %7s %7s | %s\n", "sampling", "points", "noise%", "seeds", "n", "E%", "Rp0.2%", "Rm%", "Ag%", "A%", "missing")
-	full := os.Getenv("LOTPROOF_ACCURACY_FULL") != ""
+	var rows []accRow
 	for _, rate := range []bool{false, true} {
-		for _, c := range accCases {
-			if c.heavy && testing.Short() {
-				continue
-			}
-			for _, gradual := range []bool{true, false} {
-				var row errRow
-				for _, mt := range roMaterials {
-					if (mt.m <= 6) != gradual {
-						continue
-					}
-					if c.heavy && !full && mt.m != 5 && mt.m != 20 {
-						continue
-					}
-					for seed := 1; seed <= c.seeds; seed++ {
-						reduceErrors(t, mt.sampled(c.points, c.noise, uint64(seed), rate), &row)
-					}
+		smp := "strain"
+		if rate {
+			smp = "time"
+		}
+		for _, mt := range roMaterials {
+			for _, c := range accCases {
+				if !accHeavy(c, rate) {
+					continue
 				}
-				grp := "8-30"
-				if gradual {
-					grp = "5-6"
+				row := accRow{sampling: smp, mt: mt, c: c}
+				for seed := 1; seed <= c.seeds; seed++ {
+					reduceErrors(t, mt.sampled(c.points, c.noise, uint64(seed), rate), &row.errRow)
 				}
-				smp := "strain"
-				if rate {
-					smp = "time"
+				rows = append(rows, row)
+				l := accLimits(c.noise)
+				where := fmt.Sprintf("%s, exponent %g, %d points, noise %.1f %% of Rm", smp, mt.m, c.points, 100*c.noise)
+				if len(row.missing) > 0 {
+					t.Errorf("%s: missing %q", where, row.missing)
 				}
-				fmt.Fprintf(&b, "%-8s %9d %7.2f %6d %-8s | %7.3f %7.3f %7.3f %7.3f %7.3f | %s\n", smp, c.points, 100*c.noise, c.seeds, grp, row.E, row.Rp, row.Rm, row.Ag, row.A, strings.Join(row.missing, " "))
-				l := accLimits(c, gradual)
-				if row.E > l.E || row.Rp > l.Rp || row.Rm > l.Rm || row.A > l.A || len(row.missing) > 0 {
-					t.Errorf("sampled evenly in %s, %d points, noise %.2f %%, exponents %s: E %.3f %% (limit %.1f), Rp0.2 %.3f %% (%.1f), Rm %.3f %% (%.1f), A %.3f %% (%.1f), missing %q",
-						smp, c.points, 100*c.noise, grp, row.E, l.E, row.Rp, l.Rp, row.Rm, l.Rm, row.A, l.A, row.missing)
+				if row.E > l.E {
+					t.Errorf("%s: modulus off by %.3f %% (ASTM E111; target %.1f %%)", where, row.E, l.E)
+				}
+				if row.Rp > l.Rp {
+					t.Errorf("%s: Rp0.2 off by %.3f %% (ISO 6892-1 clause 12, ASTM E8/E8M 7.7; target %.1f %%)", where, row.Rp, l.Rp)
+				}
+				if row.Rm > l.Rm {
+					t.Errorf("%s: Rm off by %.3f %% (ISO 6892-1 clause 19; target %.1f %%)", where, row.Rm, l.Rm)
+				}
+				if row.A > l.A {
+					t.Errorf("%s: A off by %.3f %% (ISO 6892-1 clause 20; target %.1f %%)", where, row.A, l.A)
 				}
 			}
 		}
 	}
 	if os.Getenv("LOTPROOF_ACCURACY_TABLE") != "" {
-		t.Logf("largest absolute errors (hardening exponents 5-6: %s; 8-30: the rest):\n%s", "austenitic, annealed aluminium", b.String())
+		if err := os.WriteFile("accuracy.md", accuracyMarkdown(rows), 0o644); err != nil {
+			t.Fatal(err)
+		}
 	}
+}
+
+// accuracyMarkdown is the table of TestAccuracyTable as the markdown of
+// accuracy.md.
+func accuracyMarkdown(rows []accRow) []byte {
+	var b strings.Builder
+	b.WriteString(`# Accuracy of reduce on analytic Ramberg-Osgood records
+
+Written by ` + "`LOTPROOF_ACCURACY_TABLE=1 LOTPROOF_ACCURACY_FULL=1 go test ./lots/reduce -run TestAccuracyTable`" + ` (about three CPU-minutes); do not edit by hand.
+
+Each row is the largest absolute error, in % of the value the record was made with, over the seeds of one case: analytic curves strain = stress/E + 0.002 (stress/Rp0.2)^n up to Rm, a neck to fracture (` + "`Synthesize`" + `), with normal noise added to the force (its SD in % of Rm), sampled evenly in strain or evenly in time under the ISO 6892-1 method A strain rates. E: modulus (ASTM E111); Rp0.2: 0.2 % offset proof strength (ISO 6892-1, ASTM E8/E8M); Rm: tensile strength (ISO 6892-1); Ag: plastic extension at maximum force (no target); A: elongation after fracture from the record. Targets: clean E 0.5 %, Rp0.2 0.2 %, Rm 0.1 %, A 0.2 %; with noise up to 0.2 % of Rm E 1 %, Rp0.2 and Rm 0.5 % (A 0.5 %). Nothing was missing in any case unless the last column says so.
+
+| material | E [GPa] | Rp0.2 [MPa] | exponent n |
+|---|---:|---:|---:|
+`)
+	for _, mt := range roMaterials {
+		fmt.Fprintf(&b, "| %s | %.0f | %.0f | %g |\n", mt.name, mt.E/1000, mt.Rp, mt.m)
+	}
+	b.WriteString("\n| sampling | n | points | noise % of Rm | seeds | E % | Rp0.2 % | Rm % | Ag % | A % | missing |\n|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---|\n")
+	for _, r := range rows {
+		fmt.Fprintf(&b, "| %s | %g | %d | %.1f | %d | %.3f | %.3f | %.3f | %.3f | %.3f | %s |\n",
+			r.sampling, r.mt.m, r.c.points, 100*r.c.noise, r.c.seeds, r.E, r.Rp, r.Rm, r.Ag, r.A, strings.Join(r.missing, " "))
+	}
+	return []byte(b.String())
 }
 
 // TestDenseWithExtensometerNoise: a record of 200,000 points with force
@@ -224,6 +268,71 @@ func TestGradualOtherForm(t *testing.T) {
 			relNear(t, fmt.Sprintf("modulus, noise %g MPa, %d points", nz, npts), r.Modulus, E+H, tol)
 			if strings.Contains(r.FitMethod, "Ramberg-Osgood") {
 				t.Errorf("noise %g, %d points: method %q", nz, npts, r.FitMethod)
+			}
+		}
+	}
+}
+
+// TestTwoStageCurve: a gradually yielding curve whose power changes at
+// the proof strength, as stainless steels do (the two-stage form of
+// Rasmussen, Journal of Constructional Steel Research 59, 2003, from
+// memory: below Rp0.2 strain = stress/E + 0.002 (stress/Rp0.2)^n; above
+// it strain = (stress - Rp0.2)/E2 + eu' ((stress - Rp0.2)/(Rm - Rp0.2))^m
+// + Rp0.2/E + 0.002, with E2 = E/(1 + 0.002 n E/Rp0.2) the tangent at
+// Rp0.2, m = 1 + 3.5 Rp0.2/Rm and eu' = eu - Rp0.2/E - 0.002 - (Rm -
+// Rp0.2)/E2), on 2,000 points (E 200 GPa, Rp0.2 280 MPa, Rm 640 MPa,
+// n 6, eu 0.5: values in the range of austenitic stainless steel, common
+// practice). One Ramberg-Osgood power does not hold beyond Rp0.2, so the
+// modulus fit must not run over the whole loading branch. Clean: E within
+// 0.5 % (ASTM E111) and Rp0.2 within 0.2 % (ISO 6892-1 clause 12, from
+// memory); with force noise of 0.2 % of Rm, Rp0.2 within 0.5 % and E
+// within 1.5 %, a miss of the 1 % target (see below).
+func TestTwoStageCurve(t *testing.T) {
+	const E, rp, rm, n, eu = 200000.0, 280.0, 640.0, 6.0, 0.5
+	e2 := E / (1 + 0.002*n*E/rp)
+	m := 1 + 3.5*rp/rm
+	eu2 := eu - rp/E - 0.002 - (rm-rp)/e2
+	strainAt := func(sg float64) float64 {
+		if sg <= rp {
+			return sg/E + 0.002*math.Pow(sg/rp, n)
+		}
+		return (sg-rp)/e2 + eu2*math.Pow((sg-rp)/(rm-rp), m) + rp/E + 0.002
+	}
+	for _, nz := range []float64{0, 0.002} {
+		for seed := uint64(1); seed <= 5; seed++ {
+			rng := rand.New(rand.NewPCG(seed, 3))
+			var x, s []float64
+			const pts = 2000
+			for i := 0; i < pts; i++ {
+				// A quarter of the points up to 1 % strain, the rest beyond.
+				e := 0.01 * float64(i) / (pts / 4)
+				if i >= pts/4 {
+					e = 0.01 + (eu-0.01)*float64(i-pts/4)/(pts-pts/4)
+				}
+				lo, hi := 0.0, rm
+				for it := 0; it < 100; it++ {
+					if mid := (lo + hi) / 2; strainAt(mid) < e {
+						lo = mid
+					} else {
+						hi = mid
+					}
+				}
+				x, s = append(x, e), append(s, (lo+hi)/2+nz*rm*rng.NormFloat64())
+			}
+			x, s = append(x, eu+0.01), append(s, 1)
+			r := reduceBytes(t, record("TS", x, s))
+			tolE, tolR := 0.005, 0.002
+			if nz > 0 {
+				// A miss: the fit up to 0.3 % plastic strain leaves the
+				// modulus about 0.5 % low on average here, up to 1.27 %
+				// over 20 seeds (1.42 % before the fit in stress).
+				tolE, tolR = 0.015, 0.005
+			}
+			name := fmt.Sprintf("noise %.1f %% seed %d", 100*nz, seed)
+			relNear(t, name+": modulus", r.Modulus, E, tolE)
+			relNear(t, name+": proof", r.Proof, rp, tolR)
+			if nz == 0 && seed > 1 {
+				break
 			}
 		}
 	}

@@ -114,6 +114,9 @@ func fitWindow(x, s []float64, lo, hi int) (w window, ok bool) {
 // yields sharply a wide one. ASTM E111 asks for the least-squares line
 // over the range where stress is proportional to strain and for a check
 // of its straightness; this search and its limits are this package's own.
+// When no window is straight, the lowest window of at least 5 points
+// (the first of the search) is kept in res.seed for the Ramberg-Osgood
+// fit (see gradualFit) and the warning in res.noLinear.
 func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 	n := iEnd + 1
 	top := s[0]
@@ -142,6 +145,9 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 			cw, good := fitWindow(x, s, l, h)
 			if !good {
 				continue
+			}
+			if res.seed.hi == 0 {
+				res.seed, res.seed.a, res.seed.b = cw, a, b
 			}
 			lim := math.Min(linCurveMax, math.Max(linCurve, 3*cw.curveSE))
 			span := s[h-1] - s[l]
@@ -182,7 +188,7 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 		}
 	}
 	if best < 0 {
-		res.warn("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight (the slope changes by more than %.1f %% across every window of at least 5 points, or the points scatter about the line by more than twice the noise); give --modulus-range to fix it by hand", n, top, 100*linCurve)
+		res.noLinear = fmt.Sprintf("no linear region found: no part of the loading branch (%d points up to %.4g MPa) is straight (the slope changes by more than %.1f %% across every window of at least 5 points, or the points scatter about the line by more than twice the noise); give --modulus-range to fix it by hand", n, top, 100*linCurve)
 		return w, false
 	}
 	w = cands[best]

@@ -43,6 +43,10 @@ const (
 // listed in the audit).
 const maxGlitches = 1000
 
+// minSerrations is the fewest force falls (and no force rise) that make
+// serrated flow rather than glitches.
+const minSerrations = 3
+
 // sideLine fits a least-squares straight line to v(k), k in [a, b), with
 // the index as abscissa and returns its value at index t.
 func sideLine(v func(int) float64, a, b int) (mean, slope, centre float64) {
@@ -127,21 +131,46 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 			i += h - 1
 		}
 	}
+	// A force step among the first glitchSide points: see startStep (a
+	// shift of every strain from the first points on is taken out by the
+	// toe compensation).
+	first := 0
+	if series == "force" {
+		if i, d := startStep(n, v, thr); i > 0 {
+			steps = append([]Glitch{{Points: 1, Series: series, Kind: "step", Size: d, Threshold: thr, from: i, to: i + 1}}, steps...)
+			first = i
+		}
+	}
 	// The first and last glitchSide points have fewer neighbours on one
-	// side: see edgeRun.
-	for i := 0; i < n; i++ {
-		if i == h && n-h > i {
-			i = n - h
-		}
-		L, dev := edgeRun(n, v, i, thr, series == "force")
-		if L == 0 {
-			continue
-		}
+	// side: see edgeRun. Among the first ones, runs judged on both sides
+	// come first (the points before such a run lie on the trend, so no
+	// run is looked for among them); then runs judged on one side.
+	add := func(i, L int, dev float64) {
 		kind := "spike"
 		if dev < 0 {
 			kind = "dropout"
 		}
 		spikes = append(spikes, Glitch{Points: L, Series: series, Kind: kind, Size: dev, Threshold: thr, from: i, to: i + L})
+	}
+	for i := first; i < min(h, n); i++ {
+		if L, dev := edgeRun(n, v, i, thr, series == "force", true); L > 0 {
+			add(i, L, dev)
+			i += L - 1
+			first = i + 1
+		}
+	}
+	for i := first; i < n; i++ {
+		if i == h && n-h > i {
+			i = n - h
+		}
+		L, dev := edgeRun(n, v, i, thr, series == "force", false)
+		if L == 0 {
+			continue
+		}
+		if i < h && len(spikes) > 0 && i < spikes[len(spikes)-1].to {
+			continue
+		}
+		add(i, L, dev)
 		i += L - 1
 	}
 	sortGlitches(spikes)
@@ -164,6 +193,47 @@ func findGlitches(n int, v func(int) float64, thr float64, series string) (spike
 		lone = append(lone, s)
 	}
 	return spikes, lone, false
+}
+
+// startStep finds a step among the first glitchSide points of the
+// series: the least-squares line through the glitchSide points from i
+// on (1 <= i < glitchSide) is straight within half the threshold, the
+// points before i depart from it, extrapolated back, by more than the
+// threshold on average and each by more than half of it, in the same
+// direction, by amounts that agree within half the threshold (the points
+// before run parallel to the line after: a jump, not the bend of a toe),
+// and the first point lies within the threshold of zero and nearer zero
+// than the line's value there (the record starts from zero force and the
+// jump moved the rest off it: a first point far from zero with the line
+// after it through zero is a spike, see edgeRun; a record that starts at
+// a preload, or a curve that bends from its first point on, is not
+// judged here). It returns i and the jump v(i) less the level before it
+// (0, 0 when none; the first i that qualifies). The rule is this
+// package's own.
+func startStep(n int, v func(int) float64, thr float64) (int, float64) {
+	h := glitchSide
+	for i := 1; i < h && i+h <= n; i++ {
+		m, b, c := sideLine(v, i, i+h)
+		pred := func(k int) float64 { return m + b*(float64(k)-c) }
+		straight := true
+		for k := i; k < i+h && straight; k++ {
+			straight = math.Abs(v(k)-pred(k)) <= thr/2
+		}
+		if !straight {
+			continue
+		}
+		lo, hi, sum := math.Inf(1), math.Inf(-1), 0.0
+		for k := 0; k < i; k++ {
+			d := v(k) - pred(k)
+			lo, hi, sum = math.Min(lo, d), math.Max(hi, d), sum+d
+		}
+		mean := sum / float64(i)
+		same := math.Abs(mean) > thr && (lo > thr/2 || hi < -thr/2) && hi-lo <= thr/2
+		if same && math.Abs(v(0)) <= thr && math.Abs(v(0)) < math.Abs(pred(0)) {
+			return i, -mean
+		}
+	}
+	return 0, 0
 }
 
 // strainSlope is the least-squares slope of stress on strain over points
@@ -229,12 +299,17 @@ func edgeLine(v func(int) float64, a, b, k int, tol float64) (pred float64, ok b
 // end is the fracture, before the first points the loading had not
 // started), and only by more than twice the threshold plus the side's
 // bend (the gap between its line and a least-squares parabola through the
-// same points, at the point judged); at the end of the record a series
+// same points, at the point judged; at the end of the record the side
+// after, the fracture's tail, is never used alone); at the end of the
+// record a series
 // is judged on one side only when endOneSided is set (the force: after
 // the fracture it stays near zero, while the extension after the
-// fracture means nothing). It returns the run length (0: none)
+// fracture means nothing) and twoSided is not set. Among the first
+// points, one or two points before the run that lie within half the
+// threshold plus the side's bend of the line after it, extrapolated back,
+// make that line the trend on both sides. It returns the run length (0: none)
 // and the smallest departure, signed. The rule is this package's own.
-func edgeRun(n int, v func(int) float64, i int, thr float64, endOneSided bool) (int, float64) {
+func edgeRun(n int, v func(int) float64, i int, thr float64, endOneSided, twoSided bool) (int, float64) {
 	h := glitchSide
 	// side returns the prediction at k of the line through v(a..b-1) (or
 	// its 3 points nearest the run) and the gap between that line and a
@@ -281,6 +356,19 @@ func edgeRun(n int, v func(int) float64, i int, thr float64, endOneSided bool) (
 		for k := i; k < i+L && ok; k++ {
 			pl, bl, okL := side(max(0, i-h), i, k, true)
 			pr, br, okR := side(i+L, min(n, i+L+h), k, false)
+			// Among the first points, one or two points before the run
+			// that lie on the line after it, extrapolated back, confirm
+			// that line as the trend on both sides.
+			if !okL && okR && i > 0 && i < 3 {
+				on := true
+				for j := 0; j < i && on; j++ {
+					p, bend, good := side(i+L, min(n, i+L+h), j, false)
+					on = good && math.Abs(v(j)-p) <= thr/2+bend
+				}
+				if on {
+					pl, bl, okL = pr, br, true
+				}
+			}
 			if !okL && !okR {
 				ok = false
 				break
@@ -288,8 +376,14 @@ func edgeRun(n int, v func(int) float64, i int, thr float64, endOneSided bool) (
 			// One side alone: a fall is the fracture (at the end) or the
 			// start of the loading (at the start), a rise must exceed
 			// twice the threshold and the side's bend.
+			if okL != okR && twoSided {
+				ok = false
+				break
+			}
 			if okL != okR {
-				if okL && !endOneSided {
+				// At the end, the points after are the fracture's tail:
+				// they judge nothing alone.
+				if (okL && !endOneSided) || (okR && i >= n-h) {
 					ok = false
 					break
 				}
@@ -418,7 +512,8 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 	// material yielding.
 	var flone []Glitch
 	for _, g := range fsteps {
-		if math.Min(stressAt(g.from), stressAt(g.from-1)) < 0.1*smRaw {
+		start := g.from < glitchSide
+		if !start && math.Min(stressAt(g.from), stressAt(g.from-1)) < 0.1*smRaw {
 			continue
 		}
 		if g.from >= glitchSide {
@@ -429,14 +524,48 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 		}
 		// The stress-strain slope goes on across a step; a yield drop
 		// turns the elastic slope into a plateau.
+		// (Among the first points there may be too few before the step to
+		// judge the slope.)
 		kL, seL, okL := strainSlope(stressAt, strainAt, max(0, g.from-2*glitchSide), g.from)
 		kR, seR, okR := strainSlope(stressAt, strainAt, g.from, min(n, g.from+2*glitchSide))
-		if !okL || !okR || math.Abs(kL-kR) > 0.5*math.Max(math.Abs(kL), math.Abs(kR))+3*math.Hypot(seL, seR) {
+		if !(start && g.from < 3) && (!okL || !okR || math.Abs(kL-kR) > 0.5*math.Max(math.Abs(kL), math.Abs(kR))+3*math.Hypot(seL, seR)) {
 			continue
 		}
 		g.Noise = res.RawNoise
 		g.atStress = stressAt(g.from - 1)
 		flone = append(flone, g)
+	}
+	// Three or more force falls past the first points and no rise are
+	// serrated flow (the Portevin-Le Chatelier effect, discontinuous
+	// yielding in bands: the force falls abruptly and climbs back, again
+	// and again): the material's own response, kept as recorded.
+	var falls []Glitch
+	rise := false
+	for _, g := range flone {
+		if g.from >= glitchSide {
+			if g.Size < 0 {
+				falls = append(falls, g)
+			} else {
+				rise = true
+			}
+		}
+	}
+	if len(falls) >= minSerrations && !rise {
+		lo, hi := math.Inf(1), 0.0
+		for _, g := range falls {
+			lo, hi = math.Min(lo, -g.Size), math.Max(hi, -g.Size)
+		}
+		_, _, l1 := rec.Point(falls[0].from)
+		_, _, l2 := rec.Point(falls[len(falls)-1].from)
+		res.note("serrated flow: %d abrupt force falls of %.3g to %.3g MPa between lines %d and %d, each followed by a climb back and none by a jump up: taken as the material's own response (the Portevin-Le Chatelier effect), not as glitches; the curve is used as recorded",
+			len(falls), lo, hi, l1, l2)
+		var keep []Glitch
+		for _, g := range flone {
+			if g.from < glitchSide {
+				keep = append(keep, g)
+			}
+		}
+		flone = keep
 	}
 	xsteps = append(xsteps, flone...)
 	sortGlitches(xsteps)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -278,19 +279,24 @@ func TestTooManyGlitches(t *testing.T) {
 
 // TestPlantedGlitchesEdgesAndSteps: one glitch planted among the first
 // and the last five points of analytic Ramberg-Osgood records (exponents
-// 5 and 20; clean and with 0.2 % of Rm noise; 2,000 and 20,000 points;
-// sampled evenly in strain and evenly in time), and a force step that
-// stays (the load cell jumps by 3 % of the highest force, up or down) at
-// the elastic range, the proof strength and the maximum force. Each
-// either moves E (ASTM E111), Rp0.2 (ISO 6892-1 clause 12), Rm (clause
-// 19) and A (clause 20) by less than 0.5 %, or is named by its line in a
-// warning with the moved property left empty; the large ones (a force
-// spike to one and a half times the highest force, an extension spike of
-// 0.2 % strain at the start, every force step) must be named. ISO clause
-// numbers from memory.
+// 5 and 20; clean and with 0.2 % of Rm noise; 500, 2,000 and 20,000
+// points; sampled evenly in strain and evenly in time), and a force step
+// that stays (the load cell jumps by 3 % of the highest force, up or
+// down) at the second to fifth point, the elastic range, the proof
+// strength and the maximum force. Each either moves E (ASTM E111), Rp0.2
+// (ISO 6892-1 clause 12), Rm (clause 19) and A (clause 20) by less than
+// 0.5 %, or is named by its line in a warning with the moved property
+// left empty; the large ones (a force spike to one and a half times the
+// highest force, an extension spike of 0.2 % strain at the start, every
+// force step) must be named. Two exceptions, both measured: A may move by
+// two strain steps of the record at fracture when the glitch sits on the
+// last points before it (no rule can tell that from a fracture a point
+// or two earlier; on 500 points a step is 0.27 % to 0.5 % of A), and the
+// modulus of the gradually yielding, noisy 500-point records by 0.6 %
+// (see below). ISO clause numbers from memory.
 func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 	for _, mt := range []roMaterial{roMaterials[0], roMaterials[4]} {
-		for _, pts := range []int{2000, 20000} {
+		for _, pts := range []int{500, 2000, 20000} {
 			for _, nz := range []float64{0, 0.002} {
 				for _, rate := range []bool{false, true} {
 					sp := mt.sampled(pts, nz, 7, rate)
@@ -332,6 +338,18 @@ func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 						"proof":   indexAbove(x, sp.Rp/sp.E+0.0015),
 						"maximum": indexAbove(x, sp.Rm/sp.E+sp.Uniform*0.9),
 					}
+					// A force step among the first points: every later
+					// stress is off.
+					for _, k := range []int{1, 2, 3, 4} {
+						for _, sign := range []float64{1, -1} {
+							k, sign := k, sign
+							cases = append(cases, planted{fmt.Sprintf("force step %+.0f %% at point %d", 3*sign, k), k, func(f, x []float64) {
+								for i := k; i < n; i++ {
+									f[i] += sign * 0.03 * fmax
+								}
+							}, "force step"})
+						}
+					}
 					for _, where := range []string{"elastic", "proof", "maximum"} {
 						k := at[where]
 						for _, sign := range []float64{1, -1} {
@@ -356,13 +374,20 @@ func TestPlantedGlitchesEdgesAndSteps(t *testing.T) {
 							continue
 						}
 						glitchOutcome(t, name, r, ref, line, c.mustFlag, func(what string) float64 {
-							if what == "E" && mt.m <= 6 && nz > 0 && pts <= 2000 {
-								// A miss: the first points set to zero (below the
-								// glitch threshold there, and like the slack at the
-								// start of a test) move the modulus of a gradually
-								// yielding, noisy record of 2,000 points by up to
-								// 1.0 % (measured), about its own standard error.
-								return 0.015
+							if what == "E" && mt.m <= 6 && nz > 0 && pts <= 500 {
+								// A miss: on a gradually yielding, noisy record of
+								// 500 points, about 25 points below half the proof
+								// strength pin the modulus (its standard error is
+								// 0.65 %); a three-point dropout at the fifth point,
+								// found, named and left out, takes three of them and
+								// moves it by 0.54 % (measured).
+								return 0.006
+							}
+							if what == "A" && c.k >= n-5 {
+								// A glitch on the last points before the fracture
+								// cannot be told from a fracture a point or two
+								// earlier: the record's strain step there.
+								return math.Max(0.005, 2*(x[n-4]-x[n-6])/sp.Elongation)
 							}
 							return 0.005
 						})
@@ -393,5 +418,91 @@ func glitchOutcome(t *testing.T, name string, r, ref *Result, line int, must str
 			continue
 		}
 		relNear(t, name+" "+p.what, p.got, p.want, tol(p.what))
+	}
+}
+
+// serrated is an analytic Ramberg-Osgood curve (modulus E, proof
+// strength rp, hardening exponent m, plastic strain ag at its maximum)
+// sampled evenly in strain with pts points up to the maximum, with a
+// sawtooth of amplitude amp [MPa] and period 0.2 % plastic strain added
+// from 2 % plastic strain on (the stress climbs by amp across a period
+// and falls back abruptly, as in Portevin-Le Chatelier serrations of
+// type A), normal noise of SD noise [MPa], then a neck (the stress falls
+// by a fifth over 5 % strain) and the fracture. It returns the points and
+// the smooth curve's maximum.
+func serrated(E, rp, m, ag, amp float64, pts int, noise float64, seed uint64) (x, s []float64, rm float64) {
+	rng := rand.New(rand.NewPCG(seed, 9))
+	rm = rp * math.Pow(ag/0.002, 1/m)
+	ro := func(sig float64) float64 { return sig/E + 0.002*math.Pow(sig/rp, m) }
+	stress := func(e float64) float64 {
+		lo, hi := 0.0, rm
+		for it := 0; it < 100; it++ {
+			if mid := (lo + hi) / 2; ro(mid) < e {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return (lo + hi) / 2
+	}
+	const start, period = 0.02, 0.002
+	eu := ro(rm)
+	for i := 0; i < pts; i++ {
+		e := eu * float64(i) / float64(pts-1)
+		sg := stress(e)
+		if ep := e - sg/E; ep > start {
+			sg += amp * (math.Mod(ep-start, period)/period - 0.5)
+		}
+		x, s = append(x, e), append(s, sg+noise*rng.NormFloat64())
+	}
+	k := pts / 10
+	for i := 1; i <= k; i++ {
+		u := float64(i) / float64(k)
+		x, s = append(x, eu+0.05*u), append(s, rm*(1-0.2*u*u))
+	}
+	x, s = append(x, eu+0.0505), append(s, 1)
+	return x, s, rm
+}
+
+// TestSerratedFlow: serrated flow (the Portevin-Le Chatelier effect of
+// aluminium-magnesium alloys and of steels in the blue-brittle range: the
+// force falls abruptly and climbs back, again and again) is the
+// material's response, not a glitch. On an analytic curve (E 70 GPa,
+// Rp0.2 150 MPa, exponent 8) with serrations of 2, 5 and 10 MPa (0.7 % to
+// 3.7 % of Rm) from 2 % plastic strain on, clean and with noise of 0.6 MPa
+// (0.2 % of Rm), 3,000 points: no glitch and no warning; a note names the
+// serrations where they exceed the glitch threshold (always on the clean
+// curves); no upper yield strength (ISO 6892-1 3.10.2.1: the serrations
+// come long after yielding began); E within 0.5 % clean and 1 % noisy
+// (ASTM E111), Rp0.2 within 0.5 % (ISO 6892-1 clause 12); Rm (clause 19,
+// from the maximum force) between the smooth curve's maximum less and
+// plus half the amplitude (the sawtooth's teeth reach half the amplitude
+// above the smooth curve; hand-derived), 0.1 % of room. Clause numbers
+// from memory.
+func TestSerratedFlow(t *testing.T) {
+	for _, amp := range []float64{2, 5, 10} {
+		for _, nz := range []float64{0, 0.6} {
+			x, s, rm := serrated(70000, 150, 8, 0.2, amp, 3000, nz, 1)
+			r := reduceBytes(t, record("PLC", x, s))
+			name := fmt.Sprintf("serrations of %g MPa, noise %g MPa", amp, nz)
+			if len(r.Glitches) > 0 || len(r.Warnings) > 0 {
+				t.Errorf("%s: glitches %+v warnings %q", name, r.Glitches, r.Warnings)
+			}
+			if nz == 0 && !hasNote(r, "serrated flow") {
+				t.Errorf("%s: notes %q", name, r.Notes)
+			}
+			if !math.IsNaN(r.UpperYield) {
+				t.Errorf("%s: upper yield %g", name, r.UpperYield)
+			}
+			tolE := 0.005
+			if nz > 0 {
+				tolE = 0.01
+			}
+			relNear(t, name+": modulus", r.Modulus, 70000, tolE)
+			relNear(t, name+": proof", r.Proof, 150, 0.005)
+			if !(r.Tensile >= (rm-amp/2)*0.999 && r.Tensile <= (rm+amp/2)*1.001) {
+				t.Errorf("%s: tensile %.4g, want %.4g to %.4g", name, r.Tensile, rm-amp/2, rm+amp/2)
+			}
+		}
 	}
 }

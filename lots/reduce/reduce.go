@@ -79,8 +79,11 @@ type Result struct {
 	FitMethod     string  // how the elastic window was chosen
 	ProofMethod   string  // how the proof strength was found
 
-	lin    window  // the straight window found automatically
-	linErr float64 // its combined relative error
+	lin      window  // the straight window found automatically
+	linErr   float64 // its combined relative error
+	seed     window  // the lowest window, when none is straight
+	fitSpan  int     // working points from the first to the last of the elastic fit
+	noLinear string  // the warning when none is straight
 
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	tooMany                                                       bool     // more than maxGlitches glitches
@@ -111,8 +114,9 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 //   - the modulus E as the least-squares slope over the straight stress
 //     window (ASTM E111, see autoElastic and fitLine), or, where it is the
 //     more precise or the straight window is not elastic, the tangent at
-//     zero stress of a Ramberg-Osgood curve fitted up to just past the
-//     proof strength (Ramberg and Osgood; Hill; see gradualFit and fitRO),
+//     zero stress of a Ramberg-Osgood curve fitted in stress from just past
+//     the proof strength to as far up the loading branch as it holds
+//     (Ramberg and Osgood; Hill; see gradualFit, fitRO and refineRO),
 //     with toe compensation
 //     (the strain origin moved to the strain intercept of that line, as
 //     in ASTM E111 and the ASTM E8/E8M offset-method figure);
@@ -259,21 +263,22 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	// 5. Loading branch: up to the first fall of the stress by more than
 	// delta below its running maximum (yield drop, necking, fracture).
 	iEnd := iMax
-	run := 0
-	for i := 1; i <= iMax; i++ {
-		if s[i] > s[run] {
-			run = i
-		}
-		if s[i] < s[run]-delta {
-			iEnd = run
-			break
-		}
+	if p := firstFall(s[:iMax+1], delta); p >= 0 {
+		iEnd = p
 	}
 	// 6. Elastic fit.
 	lo, hi, ok := res.elasticRange(x, s, iEnd, opt)
+	// No straight window: the lowest window starts the Ramberg-Osgood
+	// fit, which must then be taken.
+	seedOnly := !ok && res.noLinear != "" && res.seed.hi > 0
+	if seedOnly {
+		lo, hi, ok = res.seed.lo, res.seed.hi, true
+		res.lin, res.linErr = res.seed, math.Inf(1)
+	}
 	if ok {
 		res.fitLine(x[lo:hi], s[lo:hi])
 		res.Fit.FirstLine, res.Fit.LastLine = ln[lo], lnLast[hi-1]
+		res.fitSpan = hi - lo
 		auto := !(opt.ModulusTo > opt.ModulusFrom)
 		if auto && res.Fit.Slope > 0 {
 			// Replaces the fit in res when the fitted curve is taken; its
@@ -281,7 +286,13 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 			// end is in the audit, not needed below).
 			if l2, _, took := res.gradualFit(x, s, ln, lnLast, res.lin, res.linErr, iEnd, off); took {
 				lo = l2
+				seedOnly = false
 			}
+		}
+		if seedOnly {
+			res.warn("%s", res.noLinear)
+			res.FitMethod = ""
+			ok = false
 		}
 		res.Fit.Auto = auto
 		if res.Fit.Slope <= 0 {
@@ -451,7 +462,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 			gone = append(gone, name)
 		}
 	}
-	if fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > stepX {
+	if fitOK && res.fitSpan > 0 && len(fitX) >= res.fitSpan && fitX[res.fitSpan-1] > stepX {
 		drop("modulus", &res.Modulus)
 		drop("proof strength", &res.Proof)
 		drop("uniform elongation", &res.Uniform)
@@ -468,7 +479,7 @@ func (res *Result) afterSteps(fitX []float64, fitOK bool) {
 	if res.TensileStrain+shift > stepX {
 		drop("uniform elongation", &res.Uniform)
 	}
-	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.Fit.N > 0 && len(fitX) >= res.Fit.N && fitX[res.Fit.N-1] > forceX) {
+	if res.TensileStrain+shift > forceX || nearTop || (fitOK && res.fitSpan > 0 && len(fitX) >= res.fitSpan && fitX[res.fitSpan-1] > forceX) {
 		drop("tensile strength", &res.Tensile)
 		drop("uniform elongation", &res.Uniform)
 	}
@@ -789,17 +800,7 @@ func (res *Result) smoothProof(x, s []float64, E, off float64) {
 // fall; the initial transient is the first dip below the median of the
 // yielding stresses, which is left out of the minimum.
 func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
-	run := 0
-	p := -1
-	for i := 1; i < len(s); i++ {
-		if s[i] > s[run] {
-			run = i
-		}
-		if s[i] < s[run]-delta {
-			p = run
-			break
-		}
-	}
+	p := firstFall(s, delta)
 	if p < 0 || x[p]-s[p]/E > 0.01 || x[len(x)-1]-x[p] < 0.01 {
 		return
 	}
@@ -842,6 +843,42 @@ func (res *Result) yieldPoint(x, s []float64, E, delta float64) {
 	res.UpperYield = s[p]
 	res.LowerYield = rel
 	res.note("discontinuous yielding: upper yield at strain %.3g %%, yielding up to strain %.3g %%", 100*x[p], 100*x[q-1])
+}
+
+// fallSide is the number of points on each side of the centred moving
+// average that firstFall looks at.
+const fallSide = 2
+
+// firstFall returns the index of the highest point before the first fall
+// of the stress by more than delta below its running maximum, or -1 when
+// it never falls so far. The fall is judged on the centred moving average
+// of 2 fallSide + 1 points (fewer at the ends), so that two noise
+// extremes, a high point and a later low one, do not make a fall on a
+// flat stretch of a noisy curve; a yield drop or necking, which lasts,
+// does. The point returned is the highest raw point within fallSide
+// points of the moving average's running maximum.
+func firstFall(s []float64, delta float64) int {
+	n := len(s)
+	avg := func(i int) float64 {
+		a, b := max(0, i-fallSide), min(n, i+fallSide+1)
+		sum := 0.0
+		for j := a; j < b; j++ {
+			sum += s[j]
+		}
+		return sum / float64(b-a)
+	}
+	run, top := 0, avg(0)
+	for i := 1; i < n; i++ {
+		v := avg(i)
+		if v > top {
+			run, top = i, v
+		}
+		if v < top-delta {
+			a, b := max(0, run-fallSide), min(n, run+fallSide+1)
+			return a + argmax(s[a:b])
+		}
+	}
+	return -1
 }
 
 // quadFit fits stress = c0 + c1 u + c2 u^2, u = (strain - xc)/w, by least

@@ -81,30 +81,41 @@ func Synthesize(sp SynthSpec) ([]byte, error) {
 	neck := func(ep float64) float64 { return sp.Rm - k*(ep-ag)*(ep-ag) }
 	eu := sp.Rm/sp.E + ag
 	ef := neck(a)/sp.E + a
-	// stress at total strain e (true curve, no toe).
+	// stress at total strain e (true curve, no toe): the root of the
+	// increasing function g by Newton's method kept inside a bracket that
+	// each step narrows (a step that leaves it bisects; e.g. Press et al.,
+	// Numerical Recipes, 3rd ed., section 9.4, rtsafe), to the last bits.
+	root := func(g, dg func(float64) float64, lo, hi float64) float64 {
+		v := (lo + hi) / 2
+		for it := 0; it < 200; it++ {
+			f := g(v)
+			if f == 0 {
+				return v
+			}
+			if f < 0 {
+				lo = v
+			} else {
+				hi = v
+			}
+			nv := v - f/dg(v)
+			if !(nv > lo && nv < hi) {
+				nv = (lo + hi) / 2
+			}
+			if nv == v || hi-lo <= 4e-16*math.Abs(hi) {
+				return nv
+			}
+			v = nv
+		}
+		return v
+	}
 	stress := func(e float64) float64 {
 		if e <= eu {
-			lo, hi := 0.0, sp.Rm
-			for it := 0; it < 100; it++ {
-				mid := (lo + hi) / 2
-				if ro(mid) < e {
-					lo = mid
-				} else {
-					hi = mid
-				}
-			}
-			return (lo + hi) / 2
+			return root(func(v float64) float64 { return ro(v) - e },
+				func(v float64) float64 { return 1/sp.E + 0.002*m/sp.Rp*math.Pow(v/sp.Rp, m-1) }, 0, sp.Rm)
 		}
-		lo, hi := ag, a
-		for it := 0; it < 100; it++ {
-			mid := (lo + hi) / 2
-			if mid+neck(mid)/sp.E < e {
-				lo = mid
-			} else {
-				hi = mid
-			}
-		}
-		return neck((lo + hi) / 2)
+		ep := root(func(v float64) float64 { return v + neck(v)/sp.E - e },
+			func(v float64) float64 { return 1 - 2*k*(v-ag)/sp.E }, ag, a)
+		return neck(ep)
 	}
 	const after = 3
 	n := sp.Points - after
