@@ -85,6 +85,9 @@ func (x *idIndex) seen(h uint64, line, col int) int {
 	return 0
 }
 
+// fibonacci is 2^64/phi, odd (so multiplying by it maps hashes one to one).
+const fibonacci = 0x9E3779B97F4A7C15
+
 // find returns the slot holding h, or the empty slot where it goes. The
 // first slot probed is the top bits of h times 2^64/phi (Fibonacci hashing,
 // Knuth, TAOCP vol. 3, 6.4): the low bits of FNV hashes of ids that differ
@@ -92,7 +95,7 @@ func (x *idIndex) seen(h uint64, line, col int) int {
 // from them made long runs.
 func (x *idIndex) find(h uint64) (int, bool) {
 	mask := uint64(len(x.slots) - 1)
-	for i := (h * 0x9E3779B97F4A7C15) >> x.shift; ; i = (i + 1) & mask {
+	for i := (h * fibonacci) >> x.shift; ; i = (i + 1) & mask {
 		switch x.slots[i].hash {
 		case 0:
 			return int(i), false
@@ -133,8 +136,17 @@ func (x *idIndex) grow() {
 	}
 }
 
-// spill writes the in-memory entries to a temporary run sorted by hash,
-// 16 bytes each: hash, line, column (little-endian).
+// spill writes the in-memory entries to a temporary run sorted by key,
+// 16 bytes each: key (the hash times 2^64/phi, a one-to-one map of the
+// hash, see find), line, column (little-endian).
+//
+// The table is already in key order but for its clusters: an entry's home
+// slot is the top bits of its key, and linear probing moves it forward
+// only within the run of full slots (cluster) that holds its home, never
+// across an empty slot. So walking the table once and sorting each
+// cluster by key gives the whole run in key order, without sorting a
+// million entries; only the cluster that wraps around the end of the
+// table is split between the start and the end of the run.
 func (x *idIndex) spill() error {
 	f, err := os.CreateTemp("", "lotproof-ids-*")
 	if err != nil {
@@ -142,22 +154,67 @@ func (x *idIndex) spill() error {
 	}
 	os.Remove(f.Name()) // unlinked: the space is freed when the file is closed
 	x.runs = append(x.runs, f)
-	// Compact the table in place (the caller clears it next): no second
-	// copy of tens of megabytes.
-	used := x.slots[:0]
-	for _, e := range x.slots {
-		if e.hash != 0 {
-			used = append(used, e)
-		}
-	}
-	slices.SortFunc(used, func(a, b idSlot) int { return cmp.Compare(a.hash, b.hash) })
 	w := bufio.NewWriterSize(f, 1<<16)
 	var b [16]byte
-	for _, r := range used {
-		binary.LittleEndian.PutUint64(b[0:], r.hash)
-		binary.LittleEndian.PutUint32(b[8:], r.line)
-		binary.LittleEndian.PutUint32(b[12:], r.col)
+	put := func(e idSlot) {
+		binary.LittleEndian.PutUint64(b[0:], e.hash*fibonacci)
+		binary.LittleEndian.PutUint32(b[8:], e.line)
+		binary.LittleEndian.PutUint32(b[12:], e.col)
 		w.Write(b[:])
+	}
+	key := func(e idSlot) uint64 { return e.hash * fibonacci }
+	byKey := func(a, b idSlot) int { return cmp.Compare(key(a), key(b)) }
+	var cluster []idSlot
+	// clusters writes the clusters of slots [from, to), each sorted.
+	clusters := func(from, to int) {
+		flush := func() {
+			slices.SortFunc(cluster, byKey)
+			for _, e := range cluster {
+				put(e)
+			}
+			cluster = cluster[:0]
+		}
+		for _, e := range x.slots[from:to] {
+			if e.hash == 0 {
+				flush()
+				continue
+			}
+			cluster = append(cluster, e)
+		}
+		flush()
+	}
+	n := len(x.slots)
+	first := slices.IndexFunc(x.slots, func(e idSlot) bool { return e.hash == 0 })
+	switch {
+	case first < 0: // a full table (not below a load of 3/4): sort it all
+		all := slices.Clone(x.slots)
+		slices.SortFunc(all, byKey)
+		for _, e := range all {
+			put(e)
+		}
+	case x.slots[n-1].hash == 0: // no cluster wraps past the end
+		clusters(0, n)
+	default:
+		// The cluster at the end wraps around to slots [0, first): its
+		// entries whose home is below first come before everything, the
+		// others (homes at the end) after everything.
+		tail := n - 1
+		for x.slots[tail-1].hash != 0 {
+			tail--
+		}
+		wrap := append(slices.Clone(x.slots[tail:]), x.slots[:first]...)
+		slices.SortFunc(wrap, byKey)
+		low := 0
+		for low < len(wrap) && key(wrap[low])>>x.shift < uint64(first) {
+			low++
+		}
+		for _, e := range wrap[:low] {
+			put(e)
+		}
+		clusters(first, tail)
+		for _, e := range wrap[low:] {
+			put(e)
+		}
 	}
 	if err := w.Flush(); err != nil {
 		return err
