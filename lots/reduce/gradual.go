@@ -352,7 +352,7 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 	for i := lo; i < hi; i++ {
 		from, to = math.Min(from, s[i]), math.Max(to, s[i])
 	}
-	res.Fit = Fit{Slope: rc.E, Intercept: -rc.E * rc.e0, R2: rc.r2, ResidualSD: rc.resid, N: n, From: from, To: to,
+	res.Fit = Fit{Slope: rc.E, Intercept: -rc.E * rc.e0, R2: rc.r2, ResidualSD: rc.resid, SlopeRelSE: rc.relSE, N: n, From: from, To: to,
 		FirstLine: lnFirst[lo], LastLine: lnLast[hi-1]}
 	res.fitSpan = hi - lo
 	why := fmt.Sprintf("it is more precise than the straight window from %.0f %% to %.0f %% of the top stress (modulus %.4g GPa, combined error %.3g %%)", 100*lin.a, 100*lin.b, E0/1000, 100*linErr)

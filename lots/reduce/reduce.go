@@ -35,6 +35,12 @@ type Fit struct {
 	Intercept  float64 // [MPa]
 	R2         float64 // coefficient of determination
 	ResidualSD float64 // sqrt(SSE/(n-2)) [MPa]
+	// SlopeRelSE is the relative standard error of the slope (the
+	// modulus): for a straight line sqrt((1/R^2 - 1)/(n - 2)), the
+	// coefficient of variation of the slope of ASTM E111 section 9 (the
+	// least-squares standard error of the slope over the slope); for the
+	// Ramberg-Osgood fit, from its covariance (gradual.go).
+	SlopeRelSE float64
 	N          int     // points used
 	From, To   float64 // stress range of the points used [MPa]
 	FirstLine  int     // file line of the first point used
@@ -708,7 +714,11 @@ func (res *Result) fitLine(x, s []float64) {
 		sse += e * e
 		lo, hi = math.Min(lo, s[i]), math.Max(hi, s[i])
 	}
-	res.Fit = Fit{Slope: beta, Intercept: alpha, R2: r2, ResidualSD: math.Sqrt(sse / float64(len(x)-2)), N: len(x), From: lo, To: hi}
+	res.Fit = Fit{Slope: beta, Intercept: alpha, R2: r2, ResidualSD: math.Sqrt(sse / float64(len(x)-2)), N: len(x), From: lo, To: hi,
+		SlopeRelSE: math.NaN()}
+	if len(x) > 2 && r2 > 0 {
+		res.Fit.SlopeRelSE = math.Sqrt(math.Max(0, 1/r2-1) / float64(len(x)-2))
+	}
 }
 
 // proof finds the offset proof strength Rp (ISO 6892-1 clause 12 and

@@ -811,3 +811,36 @@ func TestNoYieldDropFromNoise(t *testing.T) {
 		}
 	}
 }
+
+// The relative standard error of the modulus from a straight elastic fit
+// is the least-squares standard error of the slope over the slope,
+// sqrt(SSE/(n-2)) / sqrt(sum (x - mean x)^2) / slope (the usual formula of
+// simple linear regression, e.g. NIST/SEMATECH e-Handbook of Statistical
+// Methods, section 4.4.4; from memory), computed here directly: the
+// coefficient of variation of the slope that ASTM E111 section 9 gives from
+// R^2 is the same number.
+func TestLineFitSlopeStandardError(t *testing.T) {
+	r := rand.New(rand.NewPCG(21, 22))
+	var x, s []float64
+	for i := range 40 {
+		e := 0.0001 * float64(i)
+		x = append(x, e)
+		s = append(s, 200000*e+3+0.8*r.NormFloat64())
+	}
+	var res Result
+	res.fitLine(x, s)
+	mx := 0.0
+	for _, v := range x {
+		mx += v / float64(len(x))
+	}
+	sxx, sse := 0.0, 0.0
+	for i := range x {
+		sxx += (x[i] - mx) * (x[i] - mx)
+		e := s[i] - (res.Fit.Intercept + res.Fit.Slope*x[i])
+		sse += e * e
+	}
+	want := math.Sqrt(sse/float64(len(x)-2)) / math.Sqrt(sxx) / res.Fit.Slope
+	if got := res.Fit.SlopeRelSE; !(math.Abs(got-want) <= 1e-9*want) || want <= 0 {
+		t.Errorf("relative standard error of the slope %.12g, direct formula %.12g", got, want)
+	}
+}

@@ -16,13 +16,16 @@ type FitReport struct {
 	Intercept  lots.Float `json:"intercept"`
 	R2         lots.Float `json:"r2"`
 	ResidualSD lots.Float `json:"residual_sd"`
-	PointsUsed int        `json:"points_used"`
-	StressFrom lots.Float `json:"stress_from"`
-	StressTo   lots.Float `json:"stress_to"`
-	FirstLine  int        `json:"first_line"`
-	LastLine   int        `json:"last_line"`
-	Automatic  bool       `json:"automatic"`
-	Method     string     `json:"method"`
+	// SlopeSEPercent is the standard error of the slope (the modulus) in
+	// % of it.
+	SlopeSEPercent lots.Float `json:"slope_se_percent"`
+	PointsUsed     int        `json:"points_used"`
+	StressFrom     lots.Float `json:"stress_from"`
+	StressTo       lots.Float `json:"stress_to"`
+	FirstLine      int        `json:"first_line"`
+	LastLine       int        `json:"last_line"`
+	Automatic      bool       `json:"automatic"`
+	Method         string     `json:"method"`
 	// The stress range as percentages of the proof strength.
 	FromPercentProof lots.Float `json:"from_percent_of_proof"`
 	ToPercentProof   lots.Float `json:"to_percent_of_proof"`
@@ -151,7 +154,8 @@ func NewReport(rs []*Result, sys units.System) Report {
 			a.ElasticFit = &FitReport{
 				Slope: lots.Float(mod.FromInternal(r.Fit.Slope)), Intercept: lots.Float(stress.FromInternal(r.Fit.Intercept)),
 				R2: lots.Float(r.Fit.R2), ResidualSD: lots.Float(stress.FromInternal(r.Fit.ResidualSD)), PointsUsed: r.Fit.N,
-				StressFrom: lots.Float(stress.FromInternal(r.Fit.From)), StressTo: lots.Float(stress.FromInternal(r.Fit.To)),
+				SlopeSEPercent: lots.Float(100 * r.Fit.SlopeRelSE),
+				StressFrom:     lots.Float(stress.FromInternal(r.Fit.From)), StressTo: lots.Float(stress.FromInternal(r.Fit.To)),
 				FirstLine: r.Fit.FirstLine, LastLine: r.Fit.LastLine, Automatic: r.Fit.Auto, Method: r.FitMethod,
 				FromPercentProof: lots.Float(r.Fit.FromPercentProof), ToPercentProof: lots.Float(r.Fit.ToPercentProof),
 			}
