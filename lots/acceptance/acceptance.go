@@ -703,17 +703,8 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 	// Balakrishnan vol. 2, 31.7): k(m) ~ z_p + z_gamma sqrt(1/m + z_p^2/(2m)),
 	// so m ~ (1 + z_p^2/2) (z_gamma / (q - z_p))^2; then step away from it
 	// in doubling steps until the answer is bracketed, and bisect. The guess
-	// only saves work: the answer is decided by the exact k alone, so it is
+	// only saves work: the answer is decided by the factor alone, so it is
 	// the same as a bisection over the whole range.
-	//
-	// The guess is then refined with Natrella's closed-form approximation
-	// of k (Natrella 1963, Experimental Statistics, NBS Handbook 91; NIST/
-	// SEMATECH e-Handbook of Statistical Methods, section 7.2.6.3):
-	// k ~ (z_p + sqrt(z_p^2 - a b))/a, a = 1 - z_gamma^2/(2(m-1)),
-	// b = z_p^2 - z_gamma^2/m, shifted by its error at the first guess
-	// (where the exact k is computed anyway), and solved for m. Near the
-	// answer that error changes slowly, so the refined guess is usually
-	// the answer or next to it, and two or three exact factors settle it.
 	if zg := -math.Sqrt2 * math.Erfcinv(2*gamma); zg > 0 {
 		d := (q - zp) / zg
 		guess := (1 + zp*zp/2) / (d * d)
@@ -722,27 +713,6 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 			good, err := ok(m)
 			if err != nil {
 				return 0, err
-			}
-			if k0, err := normalK(m, p, gamma); err == nil {
-				if kn0 := natrellaK(m, zp, zg); !math.IsNaN(kn0) {
-					shift := k0 - kn0
-					// Smallest m in (lo, hi] with the shifted approximation <= q.
-					a, b := lo, hi
-					for b-a > 1 {
-						mid := (a + b) / 2
-						if kn := natrellaK(mid, zp, zg); !math.IsNaN(kn) && kn+shift <= q {
-							b = mid
-						} else {
-							a = mid
-						}
-					}
-					if b != m && b > lo && b < hi {
-						m = b
-						if good, err = ok(m); err != nil {
-							return 0, err
-						}
-					}
-				}
 			}
 			for step := 1; ; step *= 2 {
 				c := m + step
@@ -782,19 +752,6 @@ func neededSpecimens(q, p, gamma float64, n0 int, normalK func(n int, p, gamma f
 		}
 	}
 	return hi, nil
-}
-
-// natrellaK is Natrella's approximation of the one-sided normal tolerance
-// factor for m specimens (see neededSpecimens), NaN where it is undefined
-// (a <= 0 or a negative root, for very few specimens).
-func natrellaK(m int, zp, zg float64) float64 {
-	a := 1 - zg*zg/(2*float64(m-1))
-	b := zp*zp - zg*zg/float64(m)
-	r := zp*zp - a*b
-	if !(a > 0) || r < 0 {
-		return math.NaN()
-	}
-	return (zp + math.Sqrt(r)) / a
 }
 
 // Display returns a copy of r with every value converted from the internal

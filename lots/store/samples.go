@@ -275,7 +275,7 @@ type lotValues struct {
 
 func (a *lotValues) Step(_ *sqlite.FunctionContext, args []driver.Value) error {
 	if args[1] == nil {
-		return nil // a specimen without measurements (left join)
+		return nil // no measurement (not written by this package)
 	}
 	id, ok1 := args[0].(string)
 	prop, ok2 := args[1].(string)
