@@ -81,8 +81,8 @@ func TestReadCSVTrimsPaddedFields(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for i := range want.Specimens {
-		w, g := want.Specimens[i], got.Specimens[i]
+	for i := range want.Len() {
+		w, g := want.Specimen(i), got.Specimen(i)
 		if g.ID != w.ID || g.Lot != w.Lot || g.Supplier != w.Supplier || g.Material != w.Material || !slices.Equal(g.Values, w.Values) {
 			t.Errorf("row %d: padded %+v, plain %+v", i+1, g, w)
 		}

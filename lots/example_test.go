@@ -64,7 +64,7 @@ func Example() {
 	opt := allowables.DefaultOptions()
 	opt.Properties = []string{"tensile"}
 	opt.Exclude = map[string]string{}
-	for _, sp := range d.Specimens {
+	for _, sp := range d.All() {
 		if sp.Material != s.Material {
 			opt.Exclude[sp.ID] = "not " + s.Material
 		}

@@ -32,7 +32,7 @@ type Group struct {
 	Key       string // the lot or heat label
 	Supplier  string
 	Material  string
-	Specimens []int // indexes into Dataset.Specimens
+	Specimens []int // indexes of the dataset's specimens
 	Mixed     bool  // supplier or material differs within the group
 }
 
@@ -43,29 +43,42 @@ type Group struct {
 func (d *Dataset) Group(by GroupBy, keep func(*Specimen) bool) ([]Group, error) {
 	index := map[string]int{}
 	var out []Group
-	for i := range d.Specimens {
-		s := &d.Specimens[i]
-		if keep != nil && !keep(s) {
-			continue
-		}
-		key := s.Lot
-		if by == ByHeat {
-			key = s.Heat
-			if key == "" {
-				return nil, noHeatError(d.Source, s)
+	// Specimens of one identity (lot, heat, supplier, material, date,
+	// condition) fall in the same group: it is looked up once for each.
+	groupOf := make([]int, len(d.idents))
+	for k := range groupOf {
+		groupOf[k] = -1
+	}
+	var s Specimen
+	for i := range d.n {
+		if keep != nil {
+			s = d.Specimen(i)
+			if !keep(&s) {
+				continue
 			}
 		}
-		g, ok := index[key]
-		if !ok {
-			g = len(out)
-			index[key] = g
-			out = append(out, Group{Key: key, Supplier: s.Supplier, Material: s.Material})
+		g := groupOf[d.kind(i)]
+		if g < 0 {
+			s = d.Specimen(i)
+			key := s.Lot
+			if by == ByHeat {
+				key = s.Heat
+				if key == "" {
+					return nil, noHeatError(d.Source, &s)
+				}
+			}
+			var ok bool
+			if g, ok = index[key]; !ok {
+				g = len(out)
+				index[key] = g
+				out = append(out, Group{Key: key, Supplier: s.Supplier, Material: s.Material})
+			}
+			if gr := &out[g]; gr.Supplier != s.Supplier || gr.Material != s.Material {
+				gr.Mixed = true
+			}
+			groupOf[d.kind(i)] = g
 		}
-		gr := &out[g]
-		if gr.Supplier != s.Supplier || gr.Material != s.Material {
-			gr.Mixed = true
-		}
-		gr.Specimens = append(gr.Specimens, i)
+		out[g].Specimens = append(out[g].Specimens, i)
 	}
 	return out, nil
 }

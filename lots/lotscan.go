@@ -90,8 +90,7 @@ func (d *Dataset) Lot(g Group, index int) *Lot {
 	l := &Lot{Key: g.Key, Supplier: g.Supplier, Material: g.Material, Mixed: g.Mixed, Index: index,
 		Values: make([][]float64, len(d.Properties))}
 	for _, i := range g.Specimens {
-		s := &d.Specimens[i]
-		l.add(s.ID, s.Line, func(p int) float64 { return s.Values[p] })
+		l.add(d.ID(i), d.Specimen(i).Line, func(p int) float64 { return d.Value(i, p) })
 	}
 	return l
 }

@@ -42,12 +42,13 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 	np := len(out.Properties)
 	byID := map[string]int{}
 	var probs problems
+	var merged []Specimen
 	for di, d := range ds {
 		cols := make([]int, len(d.Properties))
 		for j, p := range d.Properties {
 			cols[j] = propIndex[strings.ToLower(p.Name)]
 		}
-		for _, s := range d.Specimens {
+		for _, s := range d.All() {
 			where := fmt.Sprintf("%s:%d", d.Source, s.Line)
 			i, seen := byID[s.ID]
 			if !seen {
@@ -59,11 +60,11 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 				for j, v := range s.Values {
 					c.Values[cols[j]] = v
 				}
-				byID[s.ID] = len(out.Specimens)
-				out.Specimens = append(out.Specimens, c)
+				byID[s.ID] = len(merged)
+				merged = append(merged, c)
 				continue
 			}
-			t := &out.Specimens[i]
+			t := &merged[i]
 			for _, f := range []struct {
 				name     string
 				dst, src *string
@@ -104,13 +105,10 @@ func Merge(source string, ds ...*Dataset) (*Dataset, error) {
 		return nil, err
 	}
 	out.Digest = hex.EncodeToString(h.Sum(nil))
-	out.Missing = make([]int, np)
-	for i := range out.Specimens {
-		for j, v := range out.Specimens[i].Values {
-			if math.IsNaN(v) {
-				out.Missing[j]++
-			}
-		}
+	out.np = np
+	for _, s := range merged {
+		out.Add(s)
 	}
+	out.CountMissing()
 	return out, nil
 }

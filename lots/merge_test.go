@@ -13,18 +13,18 @@ func TestMerge(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(m.Specimens) != 3 || len(m.Properties) != 2 {
-		t.Fatalf("%d specimens %d properties", len(m.Specimens), len(m.Properties))
+	if m.Len() != 3 || len(m.Properties) != 2 {
+		t.Fatalf("%d specimens %d properties", m.Len(), len(m.Properties))
 	}
-	s2 := m.Specimens[1]
+	s2 := m.Specimen(1)
 	if s2.ID != "S2" || s2.Values[0] != 310 || s2.Values[1] != 95 || s2.Supplier != "M" {
 		t.Errorf("S2 merged wrong: %+v", s2)
 	}
 	// 45 ksi in MPa (exact definitions, NIST SP 811).
-	if got := m.Specimens[2].Values[0]; math.Abs(got-45*6.894757293168361) > 1e-9 {
+	if got := m.Specimen(2).Values[0]; math.Abs(got-45*6.894757293168361) > 1e-9 {
 		t.Errorf("S3 tensile %g", got)
 	}
-	if !m.Specimens[0].Missing(1) || m.Missing[1] != 1 {
+	if !m.Specimen(0).Missing(1) || m.Missing[1] != 1 {
 		t.Errorf("missing hardness not counted: %v", m.Missing)
 	}
 	c, _ := ReadCSV(strings.NewReader("specimen,lot,tensile [MPa]\nS1,L9,300\n"), "c.csv")

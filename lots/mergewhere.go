@@ -19,8 +19,8 @@ func givenAt(ds []*Dataset, id string, match func(s *Specimen, cols []int) bool,
 				cols[j] = propIndex[0][strings.ToLower(p.Name)]
 			}
 		}
-		for i := range d.Specimens {
-			if s := &d.Specimens[i]; s.ID == id && match(s, cols) {
+		for i := range d.Len() {
+			if s := d.Specimen(i); s.ID == id && match(&s, cols) {
 				return fmt.Sprintf("%s:%d", d.Source, s.Line)
 			}
 		}

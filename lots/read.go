@@ -396,30 +396,8 @@ func ReadCSV(r io.Reader, name string) (*Dataset, error) {
 	sum := sha256.New()
 	cnt := &countingReader{r: io.TeeReader(r, sum)}
 	d := &Dataset{Source: name}
-	var backing []float64
-	// Identity strings other than the id repeat from row to row: one copy
-	// of each is kept.
-	names := map[string]string{}
-	keep := func(v string) string {
-		if k, ok := names[v]; ok {
-			return k
-		}
-		k := strings.Clone(v)
-		names[k] = k
-		return k
-	}
 	h, err := ScanCSV(cnt, name, func(h *Header, s *Specimen) error {
-		np := len(h.Properties)
-		if len(backing) < np {
-			backing = make([]float64, np*1024)
-		}
-		c := *s
-		c.ID = strings.Clone(s.ID)
-		c.Lot, c.Heat, c.Supplier, c.Material = keep(s.Lot), keep(s.Heat), keep(s.Supplier), keep(s.Material)
-		c.Tested, c.Condition = keep(s.Tested), keep(s.Condition)
-		c.Values, backing = backing[:np:np], backing[np:]
-		copy(c.Values, s.Values)
-		d.Specimens = append(d.Specimens, c)
+		d.Add(*s)
 		return nil
 	})
 	if err != nil {
@@ -434,14 +412,10 @@ func finish(d *Dataset, h *Header, sum hash.Hash, n int64) {
 	d.Properties = h.Properties
 	d.Digest = hex.EncodeToString(sum.Sum(nil))
 	d.Bytes = n
-	d.Missing = make([]int, len(h.Properties))
-	for i := range d.Specimens {
-		for j, v := range d.Specimens[i].Values {
-			if math.IsNaN(v) {
-				d.Missing[j]++
-			}
-		}
+	if d.Len() == 0 {
+		d.np = len(h.Properties)
 	}
+	d.CountMissing()
 }
 
 // withProgress reports the bytes read from r to progress, when set.

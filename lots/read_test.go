@@ -100,10 +100,10 @@ func TestReadCSVGoodInput(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(d.Specimens) != 2 || len(d.Properties) != 3 {
-		t.Fatalf("got %d specimens, %d properties", len(d.Specimens), len(d.Properties))
+	if d.Len() != 2 || len(d.Properties) != 3 {
+		t.Fatalf("got %d specimens, %d properties", d.Len(), len(d.Properties))
 	}
-	s := d.Specimens[0]
+	s := d.Specimen(0)
 	if s.ID != "A-1" || s.Lot != "L, 1" || s.Supplier != `Mill "North"` || s.Tested != "2026-01-05" || s.Condition != "RT" {
 		t.Errorf("identity read wrong: %+v", s)
 	}
@@ -116,7 +116,7 @@ func TestReadCSVGoodInput(t *testing.T) {
 	if got := s.Values[2]; got != 200000 {
 		t.Errorf("200 GPa = %g MPa, want 200000", got)
 	}
-	if !d.Specimens[1].Missing(1) || d.Missing[1] != 1 || d.Missing[0] != 0 {
+	if !d.Specimen(1).Missing(1) || d.Missing[1] != 1 || d.Missing[0] != 0 {
 		t.Errorf("missing value not counted: %v", d.Missing)
 	}
 	if d.Digest == "" || d.Bytes != int64(len(in)) {
@@ -194,7 +194,7 @@ func TestDuplicateIDsAcrossSpilledRuns(t *testing.T) {
 		t.Fatalf("got\n%v\nwant\n%s", err, want)
 	}
 	d, err := ReadCSV(strings.NewReader(strings.SplitN(b.String(), "S3,L1,950", 2)[0]), "r.csv")
-	if err != nil || len(d.Specimens) != 20 {
+	if err != nil || d.Len() != 20 {
 		t.Fatalf("no duplicates: %v", err)
 	}
 }

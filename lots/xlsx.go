@@ -120,7 +120,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 		}
 		s := Specimen{Values: make([]float64, len(h.Properties))}
 		if t.parseRow(cols, row, loc, &s) {
-			d.Specimens = append(d.Specimens, s)
+			d.Add(s)
 		}
 	}
 	if h == nil {
@@ -130,7 +130,7 @@ func ReadXLSX(name, sheet string) (*Dataset, error) {
 	if err := t.problems.err(); err != nil {
 		return nil, err
 	}
-	if len(d.Specimens) == 0 {
+	if d.Len() == 0 {
 		return nil, Inputf(fmt.Sprintf("%s:%s!A%d", name, sheet, row+1), "add one row per specimen below the header", "the sheet has a header but no specimen rows")
 	}
 	finish(d, h, sum, size)

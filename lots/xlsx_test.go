@@ -37,8 +37,8 @@ func TestReadXLSX(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(d.Specimens) != 2 || d.Specimens[0].Values[0] != 1000.5 || d.Specimens[1].Values[0] != 1001.25 || !d.Specimens[1].Missing(1) {
-		t.Fatalf("read %+v", d.Specimens)
+	if d.Len() != 2 || d.Specimen(0).Values[0] != 1000.5 || d.Specimen(1).Values[0] != 1001.25 || !d.Specimen(1).Missing(1) {
+		t.Fatalf("read %+v", d)
 	}
 	if d.Missing[1] != 1 || d.Digest == "" {
 		t.Errorf("missing %v digest %q", d.Missing, d.Digest)

@@ -76,7 +76,7 @@ func TestXLSXDateCells(t *testing.T) {
 			continue
 		}
 		for i, w := range c.want {
-			if got := d.Specimens[i].Tested; got != w {
+			if got := d.Specimen(i).Tested; got != w {
 				t.Errorf("%s: serial %g read as %q, want %q", c.name, c.serials[i], got, w)
 			}
 		}

@@ -1,9 +1,10 @@
 package stats
 
 import (
+	"cmp"
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 )
 
 // KSampleADResult is the outcome of the k-sample Anderson-Darling test.
@@ -177,7 +178,11 @@ func ksPrepare(groups [][]float64) ([]labelled, []int, error) {
 		return nil, nil, fmt.Errorf("%d samples, need at least 2: %w", len(groups), ErrTooFew)
 	}
 	sizes := make([]int, len(groups))
-	var all []labelled
+	n := 0
+	for _, g := range groups {
+		n += len(g)
+	}
+	all := make([]labelled, 0, n)
 	for i, g := range groups {
 		if len(g) == 0 {
 			return nil, nil, fmt.Errorf("sample %d is empty: %w", i, ErrTooFew)
@@ -193,7 +198,15 @@ func ksPrepare(groups [][]float64) ([]labelled, []int, error) {
 	if len(all) < 5 {
 		return nil, nil, fmt.Errorf("%d values in all, need at least 5: %w", len(all), ErrTooFew)
 	}
-	sort.SliceStable(all, func(a, b int) bool { return all[a].v < all[b].v })
+	// By value, ties by sample: the order a stable sort by value gives,
+	// since the values of one sample were appended in order and tied
+	// values of one sample are indistinguishable.
+	slices.SortFunc(all, func(a, b labelled) int {
+		if c := cmp.Compare(a.v, b.v); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.g, b.g)
+	})
 	if all[0].v == all[len(all)-1].v {
 		return nil, nil, fmt.Errorf("all values are equal: %w", ErrZeroSpread)
 	}

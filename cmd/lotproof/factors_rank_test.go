@@ -56,7 +56,7 @@ func TestFactorsNonparametricRankAsApplied(t *testing.T) {
 		u, _ := units.Parse("MPa")
 		d := &lots.Dataset{Source: "t", Properties: []lots.Property{{Name: "x", Unit: u}}}
 		for i, v := range vals {
-			d.Specimens = append(d.Specimens, lots.Specimen{ID: strconv.Itoa(i), Lot: "L1", Values: []float64{v}})
+			d.Add(lots.Specimen{ID: strconv.Itoa(i), Lot: "L1", Values: []float64{v}})
 		}
 		rep, err := allowables.Analyze(d, opt, "2026-12-02")
 		if err != nil {

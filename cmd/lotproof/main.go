@@ -21,7 +21,21 @@ func main() {
 	stop := profileCPU(os.Getenv("LOTPROOF_CPUPROFILE"))
 	code := execute(os.Args[1:], st)
 	stop()
+	profileMemory(os.Getenv("LOTPROOF_MEMPROFILE"))
 	os.Exit(code)
+}
+
+// profileMemory writes the allocation profile of the command to the file
+// named (for developers: go tool pprof -sample_index=alloc_space).
+// Nothing when name is empty or the file cannot be made.
+func profileMemory(name string) {
+	if name == "" {
+		return
+	}
+	if f, err := os.Create(name); err == nil {
+		pprof.Lookup("allocs").WriteTo(f, 0)
+		f.Close()
+	}
 }
 
 // profileCPU writes a CPU profile of the command to the file named (for

@@ -51,7 +51,7 @@ func TestReduceCSVFeedsSummary(t *testing.T) {
 	}
 	p := d.Property("proof")
 	for i, sp := range reduceSpecs {
-		if got := d.Specimens[i].Values[p]; math.Abs(got-sp.Rp) > 0.002*sp.Rp {
+		if got := d.Value(i, p); math.Abs(got-sp.Rp) > 0.002*sp.Rp {
 			t.Errorf("%s proof %g, want %g", sp.ID, got, sp.Rp)
 		}
 	}

@@ -364,9 +364,9 @@ func checkExclusions(d *lots.Dataset, ex map[string]string) error {
 		return nil
 	}
 	found := map[string]bool{}
-	for i := range d.Specimens {
-		if _, ok := ex[d.Specimens[i].ID]; ok {
-			found[d.Specimens[i].ID] = true
+	for i := range d.Len() {
+		if _, ok := ex[d.ID(i)]; ok {
+			found[d.ID(i)] = true
 		}
 	}
 	ids := make([]string, 0, len(ex))
@@ -402,17 +402,17 @@ func analyzeOne(d *lots.Dataset, p int, cond string, groups []lots.Group, opt Op
 	var ids [][]string
 	for _, g := range groups {
 		vals, idx := d.Values(p, g.Specimens)
-		var keep []float64
-		var keepIDs []string
+		keep := make([]float64, 0, len(vals))
+		keepIDs := make([]string, 0, len(vals))
 		for j, v := range vals {
-			s := &d.Specimens[idx[j]]
+			id := d.ID(idx[j])
 			v = u.FromInternal(v)
-			if reason, ok := opt.Exclude[s.ID]; ok {
-				r.Excluded = append(r.Excluded, Exclusion{Specimen: s.ID, Lot: g.Key, Value: lots.Float(v), Reason: reason})
+			if reason, ok := opt.Exclude[id]; ok {
+				r.Excluded = append(r.Excluded, Exclusion{Specimen: id, Lot: g.Key, Value: lots.Float(v), Reason: reason})
 				continue
 			}
 			keep = append(keep, v)
-			keepIDs = append(keepIDs, s.ID)
+			keepIDs = append(keepIDs, id)
 		}
 		if len(keep) == 0 {
 			continue
@@ -485,7 +485,11 @@ func (r *Result) warn(format string, args ...any) {
 }
 
 func flatten(v [][]float64) []float64 {
-	var out []float64
+	n := 0
+	for _, x := range v {
+		n += len(x)
+	}
+	out := make([]float64, 0, n)
 	for _, x := range v {
 		out = append(out, x...)
 	}
@@ -527,14 +531,15 @@ func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 		i := i
 		flag(vals, func(j int) (string, string) { return lotKeys[i], ids[i][j] }, "lot "+lotKeys[i])
 	}
-	var allLot, allID []string
-	for i := range r.values {
-		for j := range r.values[i] {
-			allLot = append(allLot, lotKeys[i])
-			allID = append(allID, ids[i][j])
-		}
+	// The lot of the j-th of all values: the last lot starting at or before j.
+	start := make([]int, len(r.values))
+	for i := 1; i < len(r.values); i++ {
+		start[i] = start[i-1] + len(r.values[i-1])
 	}
-	flag(flatten(r.values), func(j int) (string, string) { return allLot[j], allID[j] }, "all data")
+	flag(flatten(r.values), func(j int) (string, string) {
+		i := sort.Search(len(start), func(i int) bool { return start[i] > j }) - 1
+		return lotKeys[i], ids[i][j-start[i]]
+	}, "all data")
 	if len(r.Outliers) == 0 {
 		r.step("outlier screen", math.NaN(), math.NaN(), "no outliers",
 			fmt.Sprintf("maximum normed residual test at alpha %g within each lot of 4 or more values and over all data", opt.OutlierAlpha))

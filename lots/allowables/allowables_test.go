@@ -177,7 +177,7 @@ func TestPoolingAcrossConditions(t *testing.T) {
 func TestBadCampaigns(t *testing.T) {
 	opt := DefaultOptions()
 	one := read(t, "specimen,lot,strength [MPa]\nA,L1,100\nB,L2,110\n")
-	one.Specimens = one.Specimens[:1]
+	one.Truncate(1)
 	if _, err := Analyze(one, opt, "d"); err == nil || !strings.Contains(err.Error(), "a tolerance bound needs at least 2") {
 		t.Errorf("one value: %v", err)
 	}

@@ -41,7 +41,7 @@ func procedureCoverage(c coverageCase, reps int, seed uint64, method string) (a,
 		for i := 0; i < c.k; i++ {
 			mu := 100 + c.lotSD*rng.NormFloat64()
 			for j := 0; j < c.m; j++ {
-				d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprint(i, "-", j), Lot: fmt.Sprint("L", i),
+				d.Add(lots.Specimen{ID: fmt.Sprint(i, "-", j), Lot: fmt.Sprint("L", i),
 					Values: []float64{mu + within*rng.NormFloat64()}})
 			}
 		}

@@ -32,7 +32,7 @@ func TestDesignValuesMatchesAnalyze(t *testing.T) {
 					v = mu * math.Pow(-math.Log(1-rng.Float64()), 1.0/15)
 				}
 				lot = append(lot, v)
-				d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprint(i, "-", j), Lot: fmt.Sprint("L", i), Values: []float64{v}})
+				d.Add(lots.Specimen{ID: fmt.Sprint(i, "-", j), Lot: fmt.Sprint("L", i), Values: []float64{v}})
 			}
 			vals = append(vals, lot)
 		}

@@ -55,7 +55,7 @@ func dataset(vals []float64, lot func(i int) string) *lots.Dataset {
 	u, _ := units.Parse("MPa")
 	d := &lots.Dataset{Source: "ref", Properties: []lots.Property{{Name: "x", Unit: u}}}
 	for i, v := range vals {
-		d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprint(i), Lot: lot(i), Values: []float64{v}})
+		d.Add(lots.Specimen{ID: fmt.Sprint(i), Lot: lot(i), Values: []float64{v}})
 	}
 	return d
 }

@@ -216,7 +216,7 @@ func reducedRows(d *lots.Dataset, sys units.System) []Reduced {
 	col := func(name string) int { return d.Property(name) }
 	e, p, t, a := col("modulus"), col("proof"), col("tensile"), col("elongation")
 	var rows []Reduced
-	for _, s := range d.Specimens {
+	for _, s := range d.All() {
 		r := Reduced{Specimen: s.ID, Lot: s.Lot, Modulus: lots.NaN, Proof: lots.NaN, Tensile: lots.NaN, Elongation: lots.NaN}
 		for _, c := range []struct {
 			i   int

@@ -96,7 +96,7 @@ func Dataset(rs []*Result, source string) *lots.Dataset {
 				d.Missing[j]++
 			}
 		}
-		d.Specimens = append(d.Specimens, sp)
+		d.Add(sp)
 	}
 	return d
 }

@@ -28,12 +28,12 @@ func TestResultsCSVReadBack(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v\n%s", sys, err, b)
 		}
-		if len(d.Specimens) != 2 || len(d.Properties) != len(Columns) {
-			t.Fatalf("%s: %d specimens %d properties", sys, len(d.Specimens), len(d.Properties))
+		if d.Len() != 2 || len(d.Properties) != len(Columns) {
+			t.Fatalf("%s: %d specimens %d properties", sys, d.Len(), len(d.Properties))
 		}
 		for i, r := range rs {
 			for j, c := range Columns {
-				want, got := c.Value(r), d.Specimens[i].Values[j]
+				want, got := c.Value(r), d.Specimen(i).Values[j]
 				if math.IsNaN(want) != math.IsNaN(got) {
 					t.Errorf("%s %s %s: got %g want %g", sys, r.ID, c.Name, got, want)
 					continue
@@ -50,7 +50,7 @@ func TestResultsCSVReadBack(t *testing.T) {
 		t.Errorf("US header\n%s\nwant\n%s", head, want)
 	}
 	d := Dataset(rs, "x")
-	if d.Property("proof") != 1 || d.Specimens[1].Values[2] != y.UpperYield || d.Missing[2] != 1 {
+	if d.Property("proof") != 1 || d.Specimen(1).Values[2] != y.UpperYield || d.Missing[2] != 1 {
 		t.Errorf("dataset %+v", d.Missing)
 	}
 }

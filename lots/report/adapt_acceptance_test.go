@@ -98,13 +98,14 @@ acceptance:
 // summary, and that the OC figure is drawn.
 func TestAcceptanceSection(t *testing.T) {
 	d, _ := layoutDataset()
-	for i := range d.Specimens {
-		d.Specimens[i].Material = "bar"
-		d.Specimens[i].Supplier = "Supplier " + hostile
+	for i := range d.Len() {
+		s := d.Specimen(i)
+		s.Material, s.Supplier = "bar", "Supplier "+hostile
+		d.Set(i, s)
 	}
 	// The third lot falls below the minimum.
 	for i := 10; i < 15; i++ {
-		d.Specimens[i].Values[0] -= 40
+		d.Specimen(i).Values[0] -= 40
 	}
 	sp, err := spec.Parse("layout.yaml", []byte(layoutSpec))
 	if err != nil {

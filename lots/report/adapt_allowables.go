@@ -197,7 +197,7 @@ func CampaignResolution(campaign *lots.Dataset, r allowables.Result) render.Reso
 	for _, sys := range []units.System{units.SI, units.US} {
 		if u := campaign.Properties[i].Unit.Display(sys); u.Symbol == r.Unit {
 			res := &render.Resolution{}
-			for _, s := range campaign.Specimens {
+			for _, s := range campaign.All() {
 				if i < len(s.Values) {
 					res.Add(u.FromInternal(s.Values[i]))
 				}

@@ -22,7 +22,7 @@ func layoutCampaign() *lots.Dataset {
 		if i/6 == 1 {
 			lot = hostile
 		}
-		d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprintf("Q%02d", i+1), Lot: lot, Material: "plate", Values: []float64{v}})
+		d.Add(lots.Specimen{ID: fmt.Sprintf("Q%02d", i+1), Lot: lot, Material: "plate", Values: []float64{v}})
 	}
 	return d
 }

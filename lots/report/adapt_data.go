@@ -20,7 +20,7 @@ func DataResolutions(d *lots.Dataset, sys units.System) render.Resolutions {
 	}
 	for p, prop := range d.Properties {
 		u := prop.Unit.Display(sys)
-		for _, s := range d.Specimens {
+		for _, s := range d.All() {
 			if p < len(s.Values) {
 				rs.Add(s.Material, prop.Name, u.FromInternal(s.Values[p]))
 			}

@@ -23,12 +23,12 @@ func layoutDataset() (*lots.Dataset, []lots.Group) {
 		key := []string{"L-1", hostile, "L-3"}[g]
 		grp := lots.Group{Key: key}
 		for i := range 5 {
-			grp.Specimens = append(grp.Specimens, len(d.Specimens))
-			d.Specimens = append(d.Specimens, lots.Specimen{ID: key + "-" + string(rune('a'+i)), Lot: key, Values: []float64{vals[g*5+i]}})
+			grp.Specimens = append(grp.Specimens, d.Len())
+			d.Add(lots.Specimen{ID: key + "-" + string(rune('a'+i)), Lot: key, Values: []float64{vals[g*5+i]}})
 		}
 		groups = append(groups, grp)
 	}
-	d.Specimens[3].Values[0] = math.NaN() // a missing value is skipped
+	d.Specimen(3).Values[0] = math.NaN() // a missing value is skipped
 	return d, groups
 }
 

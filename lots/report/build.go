@@ -82,7 +82,7 @@ func Build(in Inputs) (*Document, error) {
 			return nil, err
 		}
 		d.Summary = append(d.Summary,
-			KV{Key: "Specimens", Value: strconv.Itoa(len(in.Data.Specimens))},
+			KV{Key: "Specimens", Value: strconv.Itoa(in.Data.Len())},
 			KV{Key: strings.ToUpper(string(by[:1])) + string(by[1:]) + "s", Value: strconv.Itoa(len(groups))})
 		// One section per material and property: values of different
 		// materials are never mixed in a figure.

@@ -11,11 +11,13 @@ import (
 func TestBuild(t *testing.T) {
 	d, _ := layoutDataset()
 	d.Digest = "ab12"
-	for i := range d.Specimens {
-		d.Specimens[i].Material = "bar"
+	for i := range d.Len() {
+		s := d.Specimen(i)
+		s.Material = "bar"
 		if i >= 10 {
-			d.Specimens[i].Material = "plate"
+			s.Material = "plate"
 		}
+		d.Set(i, s)
 	}
 	tr := layoutTrend(t)
 	doc, err := Build(Inputs{Title: "Receiving " + hostile, Date: "2026-12-02", Data: d, System: units.SI,

@@ -65,8 +65,8 @@ func dataset(t testing.TB, source string, ls []lotSpec, seed uint64) *lots.Datas
 	for _, l := range ls {
 		for s := 1; s <= 5; s++ {
 			sp := lots.Specimen{ID: fmt.Sprintf("%s/%d", l.lot, s), Lot: l.lot, Heat: l.heat, Supplier: l.supplier, Material: "bar 42",
-				Tested: l.tested, Condition: "RT", Values: []float64{l.tensile + 8*rng.NormFloat64(), l.proof + 8*rng.NormFloat64()}, Line: len(d.Specimens) + 2}
-			d.Specimens = append(d.Specimens, sp)
+				Tested: l.tested, Condition: "RT", Values: []float64{l.tensile + 8*rng.NormFloat64(), l.proof + 8*rng.NormFloat64()}, Line: d.Len() + 2}
+			d.Add(sp)
 			fmt.Fprintf(h, "%q %q %q %q %v\n", sp.ID, sp.Lot, sp.Supplier, sp.Tested, sp.Values)
 		}
 	}

@@ -188,10 +188,12 @@ func (s *Store) Record(ctx context.Context, d *lots.Dataset, verdicts []Verdict,
 
 // DatasetInput is the RecordInput of a dataset held in memory.
 func DatasetInput(d *lots.Dataset) RecordInput {
-	return RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: len(d.Specimens),
+	return RecordInput{Digest: d.Digest, Source: d.Source, Properties: d.Properties, Specimens: d.Len(),
 		Each: func(fn func(*lots.Specimen) error) error {
-			for i := range d.Specimens {
-				if err := fn(&d.Specimens[i]); err != nil {
+			var s lots.Specimen // one for all: fn does not keep it
+			for i := range d.Len() {
+				s = d.Specimen(i)
+				if err := fn(&s); err != nil {
 					return err
 				}
 			}

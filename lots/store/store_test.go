@@ -78,7 +78,7 @@ func dataset(t testing.TB, source string, rows []specRow) *lots.Dataset {
 	d := &lots.Dataset{Source: source, Properties: []lots.Property{{Name: "tensile", Unit: mpa}, {Name: "proof", Unit: mpa}}}
 	h := sha256.New()
 	for i, r := range rows {
-		d.Specimens = append(d.Specimens, lots.Specimen{ID: r.id, Lot: r.lot, Heat: "H-" + r.lot, Supplier: r.supplier, Material: r.material,
+		d.Add(lots.Specimen{ID: r.id, Lot: r.lot, Heat: "H-" + r.lot, Supplier: r.supplier, Material: r.material,
 			Tested: r.tested, Condition: "RT", Values: []float64{r.tensile, r.proof}, Line: i + 2})
 		fmt.Fprintf(h, "%q,%q,%q,%q,%q,%v,%v\n", r.id, r.lot, r.supplier, r.material, r.tested, r.tensile, r.proof)
 	}

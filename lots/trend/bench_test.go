@@ -41,7 +41,7 @@ func BenchmarkTrend20000Lots(b *testing.B) {
 		lot := fmt.Sprintf("L%05d", l)
 		mt, mp := 1000+6*rng.NormFloat64(), 880+6*rng.NormFloat64()
 		for s := 0; s < 5; s++ {
-			d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprintf("%s-%d", lot, s), Lot: lot, Supplier: sup, Material: "bar", Tested: tested,
+			d.Add(lots.Specimen{ID: fmt.Sprintf("%s-%d", lot, s), Lot: lot, Supplier: sup, Material: "bar", Tested: tested,
 				Values: []float64{mt + 14*rng.NormFloat64(), mp + 14*rng.NormFloat64()}})
 		}
 		fmt.Fprint(h, lot)
@@ -79,7 +79,6 @@ func millionHistory() *lots.Dataset {
 	rng := rand.New(rand.NewPCG(7, 12))
 	h := sha256.New()
 	r1 := func(v float64) float64 { return math.Round(10*v) / 10 }
-	d.Specimens = make([]lots.Specimen, 0, 1000000)
 	for l := 0; l < 20000; l++ {
 		sup := fmt.Sprintf("Supplier %02d", l%10)
 		q := l / 500
@@ -87,7 +86,7 @@ func millionHistory() *lots.Dataset {
 		lot := fmt.Sprintf("L%05d", l)
 		mt, mp, me := 1000+6*rng.NormFloat64(), 880+6*rng.NormFloat64(), 15+0.5*rng.NormFloat64()
 		for s := 0; s < 50; s++ {
-			d.Specimens = append(d.Specimens, lots.Specimen{ID: fmt.Sprintf("%s-%02d", lot, s), Lot: lot, Supplier: sup, Material: "bar", Tested: tested,
+			d.Add(lots.Specimen{ID: fmt.Sprintf("%s-%02d", lot, s), Lot: lot, Supplier: sup, Material: "bar", Tested: tested,
 				Values: []float64{r1(mt + 14*rng.NormFloat64()), r1(mp + 14*rng.NormFloat64()), r1(me + rng.NormFloat64())}})
 		}
 		fmt.Fprint(h, lot)

@@ -26,7 +26,7 @@ func TestRecordAndCompute(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if rec.SpecimensNew != len(d.Specimens) || rec.Verdicts != 1 {
+	if rec.SpecimensNew != d.Len() || rec.Verdicts != 1 {
 		t.Fatalf("record %+v", rec)
 	}
 	rejected := 0
