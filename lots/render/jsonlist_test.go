@@ -41,9 +41,31 @@ func TestWriteJSONListSameAsWriteJSON(t *testing.T) {
 			t.Errorf("%d elements:\ngot  %s\nwant %s", n, got.String(), want.String())
 		}
 	}
+	// A list left out when empty (omitempty): the head holds a
+	// placeholder element.
+	type sparse struct {
+		Source string   `json:"source"`
+		Lots   []item   `json:"lots,omitempty"`
+		Notes  []string `json:"notes"`
+	}
+	for _, n := range []int{1, 3} {
+		v := sparse{Source: "s.csv", Lots: all[:n], Notes: []string{"a"}}
+		var want, got bytes.Buffer
+		if err := WriteJSON(&want, v); err != nil {
+			t.Fatal(err)
+		}
+		head := v
+		head.Lots = []item{{Lot: "placeholder", Values: []float64{1}, Lots: []string{"x"}}}
+		if err := WriteJSONList(&got, head, "lots", n, func(i int) any { return v.Lots[i] }); err != nil {
+			t.Fatal(err)
+		}
+		if got.String() != want.String() {
+			t.Errorf("omitempty, %d elements:\ngot  %s\nwant %s", n, got.String(), want.String())
+		}
+	}
 	var b bytes.Buffer
-	if err := WriteJSONList(&b, whole{Lots: all}, "lots", 3, func(i int) any { return all[i] }); err == nil {
-		t.Error("a head whose list is not nil: no error")
+	if err := WriteJSONList(&b, whole{Lots: all}, "items", 3, func(i int) any { return all[i] }); err == nil {
+		t.Error("a head without the member: no error")
 	}
 }
 

@@ -416,7 +416,7 @@ func (j *JSONItems) end() error {
 // WriteJSONList writes what WriteJSON writes for a value whose member key
 // (at the top level) is a long list, without building the whole text in
 // memory: head is the value with that list set to nil (so that it encodes
-// as null), and item(i) returns the list's i-th of n elements, each encoded
+// as null; or to a placeholder list, when nil would leave it out), and item(i) returns the list's i-th of n elements, each encoded
 // on its own in the same indented form. The bytes are those of WriteJSON
 // on the whole value (TestWriteJSONListSameAsWriteJSON).
 func WriteJSONList(w io.Writer, head any, key string, n int, item func(i int) any) error {
@@ -444,16 +444,26 @@ func writeJSONList(w io.Writer, head any, key string, n int, items func(bw *bufi
 	if err != nil {
 		return err
 	}
-	marker := append(append([]byte("\n  "), kb...), []byte(": null")...)
-	at := bytes.Index(hb.Bytes(), marker)
-	if at < 0 || bytes.Contains(hb.Bytes()[at+len(marker):], marker) {
-		return fmt.Errorf("render: the member %s is not a single top-level null", key)
+	// The member is null, or a placeholder list (where omitempty would
+	// leave an empty one out): indented output closes a top-level list
+	// with a line of two spaces and "]", and nothing inside it can.
+	hj := hb.Bytes()
+	var before, tail []byte
+	null := append(append([]byte("\n  "), kb...), ": null"...)
+	list := append(append([]byte("\n  "), kb...), ": [\n"...)
+	if at := bytes.Index(hj, null); at >= 0 && !bytes.Contains(hj[at+len(null):], null) {
+		before, tail = hj[:at+len(null)-len("null")], hj[at+len(null):]
+	} else if at := bytes.Index(hj, list); at >= 0 && !bytes.Contains(hj[at+len(list):], list) {
+		end := bytes.Index(hj[at:], []byte("\n  ]"))
+		before, tail = hj[:at+len(list)-len("[\n")], hj[at+end+len("\n  ]"):]
+	} else {
+		return fmt.Errorf("render: the member %s is not a single top-level null or list", key)
 	}
 	bw := bufio.NewWriterSize(w, 1<<16)
-	bw.Write(hb.Bytes()[:at+len(marker)-len("null")])
+	bw.Write(before)
 	if n == 0 { // an empty (not nil) list
 		bw.WriteString("[]")
-		bw.Write(hb.Bytes()[at+len(marker):])
+		bw.Write(tail)
 		return bw.Flush()
 	}
 	bw.WriteString("[\n")
@@ -461,6 +471,6 @@ func writeJSONList(w io.Writer, head any, key string, n int, items func(bw *bufi
 		return err
 	}
 	bw.WriteString("  ]")
-	bw.Write(hb.Bytes()[at+len(marker):])
+	bw.Write(tail)
 	return bw.Flush()
 }
