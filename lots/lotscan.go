@@ -103,6 +103,10 @@ type LotScan struct {
 	// reads a file a second time when it turns out not to be grouped by
 	// lot: whatever the caller collected from the first pass is void then.
 	Begin func(d *Dataset)
+	// Keep, when set, selects the specimens the lots are made of (as
+	// Dataset.Group's keep does). It is called with every specimen in
+	// file order, on every pass.
+	Keep func(s *Specimen) bool
 	// Lot is called with every complete lot, in order of first
 	// appearance. The lot belongs to the callee. An error stops the scan
 	// and is returned as is.
@@ -164,7 +168,7 @@ func (d *Dataset) ScanLots(scan LotScan) error {
 	if scan.Begin != nil {
 		scan.Begin(d) // before a grouping error, as for a CSV
 	}
-	groups, err := d.Group(scan.By, nil)
+	groups, err := d.Group(scan.By, scan.Keep)
 	if err != nil {
 		return err
 	}
@@ -264,6 +268,9 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 				missing[p]++
 			}
 		}
+		if scan.Keep != nil && !scan.Keep(s) {
+			return nil
+		}
 		key := s.Lot
 		if scan.By == ByHeat {
 			key = s.Heat
@@ -341,6 +348,16 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 type GroupError struct{ msg string }
 
 func (e *GroupError) Error() string { return e.msg }
+
+// GroupInputError words a grouping error (GroupError) as an input error
+// of source; other errors are returned as they are.
+func GroupInputError(source string, err error) error {
+	var ge *GroupError
+	if errors.As(err, &ge) {
+		return Inputf(source, "group by lot, or fill the heat column", "%v", err)
+	}
+	return err
+}
 
 // noHeatError is the error of grouping by heat a specimen that has none.
 func noHeatError(source string, s *Specimen) error {

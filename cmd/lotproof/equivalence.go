@@ -80,26 +80,68 @@ func runEquivalence(o equivalenceOptions, st streams) error {
 	if err := o.Test.Check(o.Data != ""); err != nil {
 		return usageError{err}
 	}
+	o.Test.System = o.Out.System
 	var d *lots.Dataset
 	var by lots.GroupBy
+	var res equivalence.Result
 	var err error
-	if o.Data != "" {
-		if d, by, err = readData(o.Data, o.Input, st); err != nil {
+	// The text table's decimals come from the resolution of the tested
+	// column's values over the whole file.
+	rs := render.Resolutions{}
+	if o.Data == "" {
+		if res, err = equivalence.Test(nil, "", o.Test); err != nil {
+			return err
+		}
+	} else {
+		// One lot at a time (lots.ScanLotsFile); Begin starts afresh when
+		// the file is read a second time.
+		var t *equivalence.Tester
+		var startErr error
+		var keep func(*lots.Specimen) bool
+		d, by, err = scanLotsWith(o.Data, o.Input, st, lots.LotScan{
+			Begin: func(d *lots.Dataset) {
+				rs = render.Resolutions{}
+				if t, startErr = equivalence.NewTester(d, o.Test); startErr != nil {
+					keep = func(*lots.Specimen) bool { return false }
+					return
+				}
+				var see func(*lots.Specimen)
+				if o.Out.Format == render.Text {
+					p := d.Property(o.Test.Property)
+					u, name := d.Properties[p].Unit.Display(o.Out.System), d.Properties[p].Name
+					see = func(s *lots.Specimen) { rs.Add(s.Material, name, u.FromInternal(s.Values[p])) }
+				}
+				keep = t.Keep(see)
+			},
+			Keep: func(s *lots.Specimen) bool { return keep == nil || keep(s) },
+			Lot:  func(l *lots.Lot) error { return t.Lot(l) },
+		})
+		if err != nil {
+			// the source, as lots.Merge names it
+			err = lots.GroupInputError(strings.Join(append([]string{o.Data}, o.Input.More...), " + "), err)
+		} else {
+			err = startErr
+		}
+		if err == nil {
+			res, err = t.Result(d)
+		}
+		if err != nil {
 			return err
 		}
 	}
-	o.Test.System = o.Out.System
-	res, err := equivalence.Test(d, by, o.Test)
-	if err != nil {
-		return err
-	}
 	err = emit(st.Out, func(w io.Writer) error {
 		if o.Out.Format == render.JSON {
-			return render.WriteJSON(w, res)
+			if len(res.Lots) == 0 {
+				return render.WriteJSON(w, res)
+			}
+			// Lot by lot: a year of receipts is tens of MB of JSON.
+			head := res
+			head.Lots = res.Lots[:1] // a placeholder: omitempty leaves out an empty list
+			return render.WriteJSONList(w, head, "lots", len(res.Lots), func(i int) any { return res.Lots[i] })
 		}
 		var pr render.Resolution // of the lots' values (unknown without them)
 		if d != nil && o.Out.Format == render.Text {
-			pr = resolutionsOf(d, o.Out.System).Of("", res.Property)
+			pr = rs.Of("", res.Property)
 		}
 		ft := render.NewTable("Equivalence limits", ">n", ">alpha", ">k minimum", ">k mean", ">alpha each", ">min individual limit", ">mean limit", "unit")
 		for _, f := range res.Factors {

@@ -12,17 +12,24 @@ import (
 // lots.ScanLotsFile), for the commands that only need one lot at a time.
 // Several files (in.More) are read whole and combined, as readData does.
 func scanLots(name string, in inputOptions, st streams, begin func(*lots.Dataset), lot func(*lots.Lot) error) (*lots.Dataset, lots.GroupBy, error) {
+	return scanLotsWith(name, in, st, lots.LotScan{Begin: begin, Lot: lot})
+}
+
+// scanLotsWith is scanLots with the whole lots.LotScan (its By is taken
+// from in).
+func scanLotsWith(name string, in inputOptions, st streams, scan lots.LotScan) (*lots.Dataset, lots.GroupBy, error) {
 	by, err := lots.ParseGroupBy(in.GroupBy)
 	if err != nil {
 		return nil, "", usageError{err}
 	}
+	scan.By = by
 	if len(in.More) > 0 {
 		// Several files are combined by specimen id first (lots.Merge).
 		d, by, err := readData(name, in, st)
 		if err != nil {
 			return nil, "", err
 		}
-		return d, by, d.ScanLots(lots.LotScan{By: by, Begin: begin, Lot: lot})
+		return d, by, d.ScanLots(scan)
 	}
 	ro := lots.ReadOptions{Sheet: in.Sheet, Stdin: st.In}
 	// A bar over the bytes of a large file, on a terminal only.
@@ -32,7 +39,7 @@ func scanLots(name string, in inputOptions, st streams, begin func(*lots.Dataset
 		var last int64
 		ro.Progress = func(n int64) { bar.Add(n - last); last = n }
 	}
-	d, err := lots.ScanLotsFile(name, ro, lots.LotScan{By: by, Begin: begin, Lot: lot})
+	d, err := lots.ScanLotsFile(name, ro, scan)
 	if err != nil {
 		return nil, "", err
 	}

@@ -2,7 +2,10 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
+	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -10,9 +13,11 @@ import (
 
 	"lotproof/lots"
 	"lotproof/lots/acceptance"
+	"lotproof/lots/equivalence"
 	"lotproof/lots/render"
 	"lotproof/lots/units"
 	"lotproof/spec"
+	"lotproof/stats"
 )
 
 // pipeReader hides Seek: standard input from a pipe.
@@ -150,4 +155,114 @@ func shownRes(d *lots.Dataset, out output) render.Resolutions {
 		return nil
 	}
 	return resolutionsOf(d, out.System)
+}
+
+// equivalence reads one lot at a time too: on the demo receipts as they
+// are, interleaved (read twice) and from a pipe, by lot and by heat, with
+// and without a material filter (a lot holding a specimen of the other
+// material keeps only the chosen one's), each lot's n, mean and minimum
+// must be those of the plain grouping of the whole file (Dataset.Group
+// with the same filter), its limits M - k S with the factors of
+// stats.MeanMinFactors for its size (Vangel 2002), and the table for
+// people the same from a file and from a pipe.
+func TestEquivalenceStreamed(t *testing.T) {
+	raw, err := os.ReadFile("../../lots/demo/data/receipts.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ls := strings.SplitAfter(string(raw), "\n")
+	// A specimen of the third data row is given the plate's material: its
+	// lot (steel bar) becomes mixed.
+	ls[3] = strings.Replace(ls[3], "QT bar OH-S42", "Plate OH-A61", 1)
+	var inter strings.Builder
+	inter.WriteString(ls[0])
+	for start := 1; start <= 2; start++ {
+		for i := start; i < len(ls); i += 2 {
+			inter.WriteString(ls[i])
+		}
+	}
+	dir := t.TempDir()
+	files := map[string]string{"grouped": strings.Join(ls, ""), "interleaved": inter.String()}
+	for name, text := range files {
+		if err := os.WriteFile(filepath.Join(dir, name+".csv"), []byte(text), 0o600); err != nil {
+			t.Fatal(err)
+		}
+	}
+	const mu, sd = 900.0, 40.0
+	factors := map[int]stats.EquivalenceFactors{}
+	for _, name := range []string{"grouped", "interleaved"} {
+		file := filepath.Join(dir, name+".csv")
+		d, err := lots.ReadFile(file, lots.ReadOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, by := range []lots.GroupBy{lots.ByLot, lots.ByHeat} {
+			for _, mat := range []string{"QT bar OH-S42", "plate oh-a61", ""} {
+				o := equivalence.Options{Mean: mu, SD: sd, Alpha: 0.05, Property: "tensile", Material: mat, AllMaterials: mat == ""}
+				what := fmt.Sprintf("%s by %s, material %q", name, by, mat)
+				var keep func(*lots.Specimen) bool
+				if mat != "" {
+					keep = func(s *lots.Specimen) bool { return strings.EqualFold(s.Material, mat) }
+				}
+				groups, err := d.Group(by, keep)
+				if err != nil {
+					t.Fatal(err)
+				}
+				var got bytes.Buffer
+				err = runEquivalence(equivalenceOptions{Data: file, Test: o, Input: inputOptions{GroupBy: string(by)}, Out: output{Format: render.JSON, System: units.SI}},
+					streams{Out: &got, Err: io.Discard})
+				if _, verdict := err.(verdictError); err != nil && !verdict {
+					t.Fatalf("%s: %v", what, err)
+				}
+				var res equivalence.Result
+				if err := json.Unmarshal(got.Bytes(), &res); err != nil {
+					t.Fatal(err)
+				}
+				if len(res.Lots) != len(groups) {
+					t.Fatalf("%s: %d lots, want %d", what, len(res.Lots), len(groups))
+				}
+				p := d.Property("tensile")
+				for i, g := range groups {
+					vals, _ := d.Values(p, g.Specimens)
+					l := res.Lots[i]
+					mean, mn := 0.0, math.Inf(1)
+					for _, v := range vals {
+						mean += v / float64(len(vals))
+						mn = math.Min(mn, v)
+					}
+					if l.Lot != g.Key || l.N != len(vals) || len(vals) >= 2 && (math.Abs(float64(l.Mean)-mean) > 1e-9*mean || float64(l.Min) != mn) {
+						t.Errorf("%s: lot %d is %s n %d mean %v min %v, want %s n %d mean %v min %v", what, i, l.Lot, l.N, l.Mean, l.Min, g.Key, len(vals), mean, mn)
+						continue
+					}
+					if len(vals) < 2 {
+						continue
+					}
+					f, ok := factors[len(vals)]
+					if !ok {
+						if f, err = stats.MeanMinFactors(len(vals), 0.05); err != nil {
+							t.Fatal(err)
+						}
+						factors[len(vals)] = f
+					}
+					if math.Abs(float64(l.MeanLimit)-(mu-f.KMean*sd)) > 1e-9*mu || math.Abs(float64(l.MinLimit)-(mu-f.KMin*sd)) > 1e-9*mu {
+						t.Errorf("%s: lot %s limits %v %v", what, l.Lot, l.MeanLimit, l.MinLimit)
+					}
+				}
+				// The table for people: the same from the file and from a
+				// pipe (read into the column store at once).
+				if mat == "" {
+					continue
+				}
+				var fromFile, fromPipe bytes.Buffer
+				out := output{Format: render.Text, System: units.SI}
+				runEquivalence(equivalenceOptions{Data: file, Test: o, Input: inputOptions{GroupBy: string(by)}, Out: out}, streams{Out: &fromFile, Err: io.Discard})
+				runEquivalence(equivalenceOptions{Data: "-", Test: o, Input: inputOptions{GroupBy: string(by)}, Out: out},
+					streams{In: pipeReader{strings.NewReader(files[name])}, Out: &fromPipe, Err: io.Discard})
+				a := strings.ReplaceAll(fromFile.String(), file, "-")
+				if a != fromPipe.String() || !strings.Contains(a, "Lots (tensile)") {
+					t.Errorf("%s: the table from the file and from a pipe differ:\n%s\n---\n%s", what, a, fromPipe.String())
+				}
+			}
+		}
+	}
 }

@@ -115,13 +115,43 @@ func (o Options) Check(withData bool) error {
 // tests each of its groups (by lot or heat) of o.Material in o.Property
 // with the factors for its own size.
 func Test(d *lots.Dataset, by lots.GroupBy, o Options) (Result, error) {
-	if err := o.Check(d != nil); err != nil {
+	t, err := NewTester(d, o)
+	if err != nil {
 		return Result{}, err
+	}
+	if d != nil {
+		err := d.ScanLots(lots.LotScan{By: by, Keep: t.Keep(nil), Lot: t.Lot})
+		if err != nil {
+			return Result{}, lots.GroupInputError(d.Source, err)
+		}
+	}
+	return t.Result(d)
+}
+
+// Tester tests lots one at a time (Lot), for a file read lot by lot;
+// Result gives the whole outcome.
+type Tester struct {
+	o        Options
+	prop     int // the tested column; -1 without data
+	mu, sd   float64
+	disp     units.Unit
+	res      Result
+	factors  map[int]stats.EquivalenceFactors
+	material map[string]bool // lower-case materials of the lots seen
+	mats     []string        // the same, quoted as given, in order
+}
+
+// NewTester checks the options and, with data (d holds at least the
+// source and the property columns), the tested column and the baseline
+// unit.
+func NewTester(d *lots.Dataset, o Options) (*Tester, error) {
+	if err := o.Check(d != nil); err != nil {
+		return nil, err
 	}
 	prop := -1
 	if d != nil {
 		if prop = d.Property(o.Property); prop < 0 {
-			return Result{}, lots.Inputf(d.Source, "choose one of the file's property columns", "no property %q (columns: %v)", o.Property, d.PropertyNames())
+			return nil, lots.Inputf(d.Source, "choose one of the file's property columns", "no property %q (columns: %v)", o.Property, d.PropertyNames())
 		}
 	}
 	// Baseline unit.
@@ -130,7 +160,7 @@ func Test(d *lots.Dataset, by lots.GroupBy, o Options) (Result, error) {
 	switch {
 	case o.Unit != "":
 		if bu, err = units.Parse(o.Unit); err != nil {
-			return Result{}, err
+			return nil, err
 		}
 	case d != nil:
 		bu = d.Properties[prop].Unit
@@ -138,118 +168,123 @@ func Test(d *lots.Dataset, by lots.GroupBy, o Options) (Result, error) {
 		bu, _ = units.Parse("MPa")
 	}
 	if d != nil && !units.Compatible(bu, d.Properties[prop].Unit) {
-		return Result{}, fmt.Errorf("--unit %s cannot be compared with %s in %s", bu.Symbol, d.Properties[prop].Unit.Symbol, d.Source)
+		return nil, fmt.Errorf("--unit %s cannot be compared with %s in %s", bu.Symbol, d.Properties[prop].Unit.Symbol, d.Source)
 	}
-	mu, sd := bu.ToInternal(o.Mean), bu.ToInternal(o.SD)
-	disp := bu
+	t := &Tester{o: o, prop: prop, mu: bu.ToInternal(o.Mean), sd: bu.ToInternal(o.SD), disp: bu,
+		factors: map[int]stats.EquivalenceFactors{}, material: map[string]bool{}}
 	if d != nil {
-		disp = d.Properties[prop].Unit.Display(o.System)
+		t.disp = d.Properties[prop].Unit.Display(o.System)
 	} else if bu.Quantity != units.Hardness {
-		disp = bu.Display(o.System)
+		t.disp = bu.Display(o.System)
 	}
-	show := func(v float64) lots.Float { return lots.Float(disp.FromInternal(v)) }
-	res := Result{Unit: disp.Symbol, BaselineMean: disp.FromInternal(mu), BaselineSD: disp.FromInternal(sd), Alpha: o.Alpha,
+	t.res = Result{Unit: t.disp.Symbol, BaselineMean: t.disp.FromInternal(t.mu), BaselineSD: t.disp.FromInternal(t.sd), Alpha: o.Alpha,
 		Method: method, Cautions: []string{Caution}}
-	factors := map[int]stats.EquivalenceFactors{}
-	factor := func(n int) (stats.EquivalenceFactors, error) {
-		if f, ok := factors[n]; ok {
-			return f, nil
+	if o.N > 0 {
+		if _, err := t.factor(o.N); err != nil {
+			return nil, err
 		}
-		f, err := stats.MeanMinFactors(n, o.Alpha)
-		if err != nil {
-			return f, err
+	}
+	return t, nil
+}
+
+// Keep is the specimen filter of the lots to test (those of o.Material),
+// nil when every specimen is tested. Every specimen of the input is shown
+// to it in file order; each is passed on to see first, when set.
+func (t *Tester) Keep(see func(*lots.Specimen)) func(*lots.Specimen) bool {
+	want := strings.TrimSpace(t.o.Material)
+	switch {
+	case want == "" && see == nil:
+		return nil
+	case want == "":
+		return func(s *lots.Specimen) bool { see(s); return true }
+	}
+	return func(s *lots.Specimen) bool {
+		if see != nil {
+			see(s)
 		}
-		factors[n] = f
+		return strings.EqualFold(strings.TrimSpace(s.Material), want)
+	}
+}
+
+func (t *Tester) factor(n int) (stats.EquivalenceFactors, error) {
+	if f, ok := t.factors[n]; ok {
 		return f, nil
 	}
-	if o.N > 0 {
-		if _, err := factor(o.N); err != nil {
-			return Result{}, err
-		}
+	f, err := stats.MeanMinFactors(n, t.o.Alpha)
+	if err != nil {
+		return f, err
 	}
+	t.factors[n] = f
+	return f, nil
+}
+
+func (t *Tester) show(v float64) lots.Float { return lots.Float(t.disp.FromInternal(v)) }
+
+// Lot tests one lot (of the kept specimens), in order of first appearance.
+func (t *Tester) Lot(g *lots.Lot) error {
+	if m := strings.TrimSpace(g.Material); !t.material[strings.ToLower(m)] {
+		t.material[strings.ToLower(m)] = true
+		t.mats = append(t.mats, strconv.Quote(m))
+	}
+	vals, _ := g.Present(t.prop)
+	l := Lot{Lot: g.Key, Supplier: g.Supplier, N: len(vals), Mean: lots.NaN, Min: lots.NaN, MeanLimit: lots.NaN, MinLimit: lots.NaN, Reasons: []string{}}
+	defer func() { t.res.Lots = append(t.res.Lots, l) }()
+	if len(vals) < 2 || len(vals) > 200 {
+		l.Verdict = "not tested"
+		l.Reasons = append(l.Reasons, fmt.Sprintf("%d values; the test needs 2 to 200", len(vals)))
+		return nil
+	}
+	f, err := t.factor(len(vals))
+	if err != nil {
+		return err
+	}
+	sum, mn := 0.0, math.Inf(1)
+	for _, v := range vals {
+		sum += v
+		mn = math.Min(mn, v)
+	}
+	mean := sum / float64(len(vals))
+	ml, nl := t.mu-f.KMean*t.sd, t.mu-f.KMin*t.sd
+	sym := t.disp.Symbol
+	l.Mean, l.Min, l.MeanLimit, l.MinLimit = t.show(mean), t.show(mn), t.show(ml), t.show(nl)
+	l.Verdict = "equivalent"
+	if mean < ml {
+		l.Verdict = "not equivalent"
+		l.Reasons = append(l.Reasons, fmt.Sprintf("mean %.4g is below the mean limit %.4g %s", float64(l.Mean), float64(l.MeanLimit), sym))
+	}
+	if mn < nl {
+		l.Verdict = "not equivalent"
+		l.Reasons = append(l.Reasons, fmt.Sprintf("minimum %.4g is below the minimum-individual limit %.4g %s", float64(l.Min), float64(l.MinLimit), sym))
+	}
+	if l.Verdict == "equivalent" {
+		l.Reasons = append(l.Reasons, "mean and minimum meet both limits")
+	}
+	return nil
+}
+
+// Result is the outcome, once every lot of d (nil without data) has been
+// tested. It refuses data of several materials unless o.Material or
+// o.AllMaterials says which to test.
+func (t *Tester) Result(d *lots.Dataset) (Result, error) {
+	res := t.res
 	if d != nil {
-		res.Source, res.Digest, res.Property = d.Source, d.Digest, d.Properties[prop].Name
-		groups, err := groupsOf(d, by, o)
-		if err != nil {
-			return Result{}, err
+		if len(res.Lots) == 0 {
+			return Result{}, lots.Inputf(d.Source, "check --material against the file's material column", "no lots of material %q", t.o.Material)
 		}
-		for _, g := range groups {
-			vals, _ := d.Values(prop, g.Specimens)
-			l := Lot{Lot: g.Key, Supplier: g.Supplier, N: len(vals), Mean: lots.NaN, Min: lots.NaN, MeanLimit: lots.NaN, MinLimit: lots.NaN, Reasons: []string{}}
-			if len(vals) < 2 || len(vals) > 200 {
-				l.Verdict = "not tested"
-				l.Reasons = append(l.Reasons, fmt.Sprintf("%d values; the test needs 2 to 200", len(vals)))
-				res.Lots = append(res.Lots, l)
-				continue
-			}
-			f, err := factor(len(vals))
-			if err != nil {
-				return Result{}, err
-			}
-			sum, mn := 0.0, math.Inf(1)
-			for _, v := range vals {
-				sum += v
-				mn = math.Min(mn, v)
-			}
-			mean := sum / float64(len(vals))
-			ml, nl := mu-f.KMean*sd, mu-f.KMin*sd
-			l.Mean, l.Min, l.MeanLimit, l.MinLimit = show(mean), show(mn), show(ml), show(nl)
-			l.Verdict = "equivalent"
-			if mean < ml {
-				l.Verdict = "not equivalent"
-				l.Reasons = append(l.Reasons, fmt.Sprintf("mean %.4g is below the mean limit %.4g %s", float64(l.Mean), float64(l.MeanLimit), disp.Symbol))
-			}
-			if mn < nl {
-				l.Verdict = "not equivalent"
-				l.Reasons = append(l.Reasons, fmt.Sprintf("minimum %.4g is below the minimum-individual limit %.4g %s", float64(l.Min), float64(l.MinLimit), disp.Symbol))
-			}
-			if l.Verdict == "equivalent" {
-				l.Reasons = append(l.Reasons, "mean and minimum meet both limits")
-			}
-			res.Lots = append(res.Lots, l)
+		if t.o.Material == "" && !t.o.AllMaterials && len(t.mats) > 1 {
+			return Result{}, fmt.Errorf("%s holds lots of %d materials (%s), and a baseline describes one: give --material, or --all-materials to test them all against this baseline", d.Source, len(t.mats), strings.Join(t.mats, ", "))
 		}
+		res.Source, res.Digest, res.Property = d.Source, d.Digest, d.Properties[t.prop].Name
 	}
-	ns := make([]int, 0, len(factors))
-	for n := range factors {
+	ns := make([]int, 0, len(t.factors))
+	for n := range t.factors {
 		ns = append(ns, n)
 	}
 	sort.Ints(ns)
 	for _, n := range ns {
-		f := factors[n]
+		f := t.factors[n]
 		res.Factors = append(res.Factors, FactorRow{N: n, KMin: f.KMin, KMean: f.KMean, AlphaEach: f.AlphaEach,
-			MinLimit: show(mu - f.KMin*sd), MeanLimit: show(mu - f.KMean*sd)})
+			MinLimit: t.show(t.mu - f.KMin*t.sd), MeanLimit: t.show(t.mu - f.KMean*t.sd)})
 	}
 	return res, nil
-}
-
-// groupsOf groups d's specimens of o.Material and refuses data of several
-// materials unless o.Material or o.AllMaterials says which to test.
-func groupsOf(d *lots.Dataset, by lots.GroupBy, o Options) ([]lots.Group, error) {
-	var keep func(*lots.Specimen) bool
-	if o.Material != "" {
-		keep = func(s *lots.Specimen) bool {
-			return strings.EqualFold(strings.TrimSpace(s.Material), strings.TrimSpace(o.Material))
-		}
-	}
-	groups, err := d.Group(by, keep)
-	if err != nil {
-		return nil, lots.Inputf(d.Source, "group by lot, or fill the heat column", "%v", err)
-	}
-	if len(groups) == 0 {
-		return nil, lots.Inputf(d.Source, "check --material against the file's material column", "no lots of material %q", o.Material)
-	}
-	if o.Material == "" && !o.AllMaterials {
-		var mats []string
-		seen := map[string]bool{}
-		for _, g := range groups {
-			if m := strings.TrimSpace(g.Material); !seen[strings.ToLower(m)] {
-				seen[strings.ToLower(m)] = true
-				mats = append(mats, strconv.Quote(m))
-			}
-		}
-		if len(mats) > 1 {
-			return nil, fmt.Errorf("%s holds lots of %d materials (%s), and a baseline describes one: give --material, or --all-materials to test them all against this baseline", d.Source, len(mats), strings.Join(mats, ", "))
-		}
-	}
-	return groups, nil
 }
