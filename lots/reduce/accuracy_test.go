@@ -7,6 +7,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // roMaterial is an analytic Ramberg-Osgood material (Ramberg and Osgood,
@@ -333,6 +335,101 @@ func TestTwoStageCurve(t *testing.T) {
 			relNear(t, name+": proof", r.Proof, rp, tolR)
 			if nz == 0 && seed > 1 {
 				break
+			}
+		}
+	}
+}
+
+// modulusBound is the Cramér-Rao lower bound (Cramér, Mathematical
+// Methods of Statistics, 1946, section 32.3; Rao, Bulletin of the
+// Calcutta Mathematical Society 37, 1945) on the relative standard
+// deviation of any unbiased estimate of the modulus from the points of
+// the record sp (made without noise) up to the maximum force, for normal
+// stress noise of SD sp.Noise and the Ramberg-Osgood form with its four
+// parameters free, strain = e0 + stress/E + 0.002 (stress/Rp)^m with
+// e0, ln E, ln of the multiple and m unknown: the (ln E, ln E) element of
+// the inverse of the Fisher information sum of g g' / sigma^2, with g the
+// derivatives of the curve's stress at each point's strain (implicit
+// differentiation: d stress/d theta = -(d strain/d theta)/(d strain/d
+// stress); gonum mat).
+func modulusBound(t *testing.T, sp SynthSpec) float64 {
+	t.Helper()
+	noise := sp.Noise
+	sp.Noise = 0
+	rec := synthRecord(t, sp)
+	f, x, _ := pointsOf(rec)
+	m := math.Log(sp.Uniform/0.002) / math.Log(sp.Rm/sp.Rp)
+	var rows []float64
+	for i := range x {
+		s := f[i] / rec.Area
+		if x[i] > sp.Rm/sp.E+sp.Uniform || !(s > 0) {
+			continue
+		}
+		u := s / sp.Rp
+		p := 0.002 * math.Pow(u, m)
+		ds := 1/sp.E + 0.002*m/sp.Rp*math.Pow(u, m-1)
+		for _, d := range []float64{1, -s / sp.E, p, p * math.Log(u)} {
+			rows = append(rows, -d/ds/noise)
+		}
+	}
+	J := mat.NewDense(len(rows)/4, 4, rows)
+	var F mat.SymDense
+	F.SymOuterK(1, J.T())
+	var ch mat.Cholesky
+	if !ch.Factorize(&F) {
+		t.Fatal("singular information matrix")
+	}
+	var C mat.SymDense
+	if err := ch.InverseTo(&C); err != nil {
+		t.Fatal(err)
+	}
+	return math.Sqrt(C.At(1, 1))
+}
+
+// TestGradualNoisyManySeeds: the gradually yielding materials of
+// roMaterials (hardening exponents 5 and 6), 500 and 2,000 points sampled
+// evenly in strain and evenly in time (ISO 6892-1 method A rates), force
+// noise of 0.2 % of Rm, 40 seeds each (320 records). Every record: Rp0.2
+// within 0.5 % (ISO 6892-1 clause 12, ASTM E8/E8M 7.7), Rm within 0.5 %
+// (ISO 6892-1 clause 19), nothing missing. The modulus (ASTM E111,
+// tangent modulus of the fitted curve): within 1 % on 2,000 points (the
+// issue's target). On 500 points no estimate can hold 1 % on every seed:
+// the Cramér-Rao bound on its standard deviation (modulusBound) is 0.6 %
+// to 0.7 % there, so one record in seven or so falls outside 1 % whatever
+// the method; there the test checks that the estimate is as good as the
+// bound allows (its RMS error over the 80 records of a material no more
+// than 1.1 times the bound's RMS) and that the standard error the fit
+// states covers the error (within three of it on every seed). Clause
+// numbers from memory.
+func TestGradualNoisyManySeeds(t *testing.T) {
+	const seeds = 40
+	for _, mt := range []roMaterial{roMaterials[0], roMaterials[1]} {
+		for _, pts := range []int{500, 2000} {
+			var sq, bsq float64
+			worst := 0.0
+			for _, rate := range []bool{false, true} {
+				bound := modulusBound(t, mt.sampled(pts, 0.002, 1, rate))
+				for seed := uint64(1); seed <= seeds; seed++ {
+					sp := mt.sampled(pts, 0.002, seed, rate)
+					r := reduceSpec(t, sp, Options{})
+					name := fmt.Sprintf("%s %d points rate %v seed %d", mt.name, pts, rate, seed)
+					relNear(t, name+": Rp0.2 (ISO 6892-1 clause 12)", r.Proof, sp.Rp, 0.005)
+					relNear(t, name+": Rm (ISO 6892-1 clause 19)", r.Tensile, sp.Rm, 0.005)
+					e := r.Modulus/sp.E - 1
+					if pts >= 2000 {
+						relNear(t, name+": E (ASTM E111)", r.Modulus, sp.E, 0.01)
+					} else if math.IsNaN(e) || math.Abs(e) > 3*r.Fit.SlopeRelSE {
+						t.Errorf("%s: E (ASTM E111) off by %.3f %%, beyond three times its stated standard error %.3f %%", name, 100*e, 100*r.Fit.SlopeRelSE)
+					}
+					sq += e * e
+					bsq += bound * bound
+					worst = math.Max(worst, math.Abs(e))
+				}
+			}
+			rms, brms := math.Sqrt(sq/(2*seeds)), math.Sqrt(bsq/(2*seeds))
+			t.Logf("%s %d points: modulus RMS error %.3f %%, worst %.3f %%, Cramér-Rao bound %.3f %%", mt.name, pts, 100*rms, 100*worst, 100*brms)
+			if rms > 1.1*brms {
+				t.Errorf("%s %d points: modulus RMS error %.3f %% above 1.1 times the Cramér-Rao bound %.3f %%", mt.name, pts, 100*rms, 100*brms)
 			}
 		}
 	}

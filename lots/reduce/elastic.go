@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // elasticGrid are the window bounds of the automatic elastic fit, as
@@ -196,4 +198,72 @@ func (res *Result) autoElastic(x, s []float64, iEnd int) (w window, ok bool) {
 	res.FitMethod = fmt.Sprintf("least squares over the straight window with the smallest combined error (standard error of the slope and half the slope change across the window): %.0f %% to %.0f %% of the loading branch's top stress %.4g MPa (slope change across the window %.2f %%, limit %.2f %%)",
 		100*w.a, 100*w.b, top, 100*w.curve, 100*math.Min(linCurveMax, math.Max(linCurve, 3*w.curveSE)))
 	return w, true
+}
+
+// modulusInfo is what the modulus fit taken knows of its own precision:
+// the information matrix J'WJ of its parameters at the solution (the
+// straight line: intercept and slope; the Ramberg-Osgood fit: b0, b1, b2
+// and m, see refineRO), the residual variance v, the index k of the
+// parameter the modulus rests on and its value, the derivative row of a
+// point at a given strain, and the strain range of the points fitted.
+type modulusInfo struct {
+	dim      int // 0: none
+	a        [4][4]float64
+	v        float64
+	k        int
+	scale    float64
+	row      func(strain float64) ([4]float64, bool)
+	xlo, xhi float64
+}
+
+// shift is the standard deviation, relative to the modulus, of the change
+// of the modulus that points at the given strains (each of weight w)
+// would bring if they were fitted too: sqrt(v ((A^-1)_kk - (A'^-1)_kk))
+// with A the information matrix of the fit and A' = A + w sum r r' with
+// the points' derivative rows r. It is the variance of the difference of
+// two nested least-squares estimates, the efficient one less the other
+// (Hausman, Econometrica 46, 1978); it does not depend on the values the
+// points would have had, only on where they lie. Points outside the
+// fit's strain range add nothing.
+func (mi modulusInfo) shift(strains []float64, w float64) float64 {
+	if mi.dim == 0 || !(mi.v > 0) || mi.scale == 0 {
+		return 0
+	}
+	d := mi.dim
+	a0 := mat.NewSymDense(d, nil)
+	a1 := mat.NewSymDense(d, nil)
+	for i := 0; i < d; i++ {
+		for c := i; c < d; c++ {
+			a0.SetSym(i, c, mi.a[i][c])
+			a1.SetSym(i, c, mi.a[i][c])
+		}
+	}
+	added := false
+	for _, xs := range strains {
+		if xs < mi.xlo || xs > mi.xhi {
+			continue
+		}
+		r, ok := mi.row(xs)
+		if !ok {
+			continue
+		}
+		added = true
+		for i := 0; i < d; i++ {
+			for c := i; c < d; c++ {
+				a1.SetSym(i, c, a1.At(i, c)+w*r[i]*r[c])
+			}
+		}
+	}
+	if !added {
+		return 0
+	}
+	var c0, c1 mat.Cholesky
+	if !c0.Factorize(a0) || !c1.Factorize(a1) {
+		return 0
+	}
+	var i0, i1 mat.SymDense
+	if c0.InverseTo(&i0) != nil || c1.InverseTo(&i1) != nil {
+		return 0
+	}
+	return math.Sqrt(mi.v*math.Max(0, i0.At(mi.k, mi.k)-i1.At(mi.k, mi.k))) / math.Abs(mi.scale)
 }

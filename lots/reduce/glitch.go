@@ -602,10 +602,7 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 			res.warn("%d more glitches left out (see the audit)", len(left)-listed)
 			break
 		}
-		where := fmt.Sprintf("line %d", g.Line)
-		if g.LastLine != g.Line {
-			where = fmt.Sprintf("lines %d to %d", g.Line, g.LastLine)
-		}
+		where := glitchWhere(g)
 		unit, size, noise, thr := "MPa", fmt.Sprintf("%+.4g", g.Size), fmt.Sprintf("%.3g", g.Noise), fmt.Sprintf("%.3g", g.Threshold)
 		if g.Series == "extension" {
 			unit, size, noise, thr = "% strain", fmt.Sprintf("%+.3g", 100*g.Size), fmt.Sprintf("%.3g", 100*g.Noise), fmt.Sprintf("%.3g", 100*g.Threshold)
@@ -621,6 +618,85 @@ func (res *Result) glitches(rec *Record, n int, stressAt, strainAt func(int) flo
 		}
 		res.warn("extension step at line %d: the extension jumps by %+.3g %% strain and stays (noise SD %.3g %%, threshold %.3g %%): the extensometer probably slipped; properties measured beyond it are not reported",
 			g.Line, 100*g.Size, 100*g.Noise, 100*g.Threshold)
+	}
+}
+
+// glitchWhere names the file line or lines of a glitch.
+func glitchWhere(g Glitch) string {
+	if g.LastLine != g.Line {
+		return fmt.Sprintf("lines %d to %d", g.Line, g.LastLine)
+	}
+	return fmt.Sprintf("line %d", g.Line)
+}
+
+// glitchAtFracture returns the glitch left out between the last point
+// before the fracture's fall (its last file line before) and the first
+// point after it (its first file line after), if any: the point or points
+// left out there may be the last the specimen carried load through, so
+// the fracture cannot be placed to better than the strain they span, and
+// a glitch there decides the elongation after fracture (the rule
+// for glitches: a glitch where it decides a property leaves the property
+// empty, with its line named). An extension glitch whose every force
+// reading lies below the fracture tail's level (forceTail [force unit])
+// was read after the fracture and decides nothing.
+func (res *Result) glitchAtFracture(rec *Record, before, after int, forceTail float64) *Glitch {
+	res.fractureLines = [2]int{before, after}
+	for i := range res.left {
+		g := &res.left[i]
+		if g.LastLine <= before || g.Line >= after || g.Kind == "repeat" {
+			continue
+		}
+		if g.Series == "extension" {
+			high := false
+			for j := g.from; j < g.to; j++ {
+				f, _, _ := rec.Point(j)
+				high = high || f >= forceTail
+			}
+			if !high {
+				continue
+			}
+		}
+		return g
+	}
+	return nil
+}
+
+// glitchShiftLimit is the largest change of the modulus, relative, that
+// the points of one glitch left out may bring at three standard
+// deviations (99.7 % for normal noise; the package's other agreement
+// checks use three as well): the target for one glitch, 0.5 %.
+const glitchShiftLimit = 0.005
+
+// glitchInModulus leaves the modulus empty, with a warning naming the
+// glitch, when the points of a glitch left out lie among those that carry
+// the modulus fit so that, fitted, they could have moved it by more than
+// glitchShiftLimit at three standard deviations (modulusInfo.shift: the
+// shift does not depend on the values the points would have had). The
+// strains of the points left out are interpolated between the points
+// around the run (an extension glitch has no strain to trust); in a
+// record averaged in bins each weighs 1/bin of a working point. The
+// slope is still used for the offset line, as for a crosshead record.
+// The rule is this package's own (the issue's: a glitch where it decides
+// a property leaves the property empty).
+func (res *Result) glitchInModulus(rec *Record) {
+	n := rec.Len()
+	strain := func(i int) float64 { _, x, _ := rec.Point(i); return x }
+	w := 1 / float64(max(1, res.Bin))
+	for _, g := range res.left {
+		if g.Kind == "repeat" || g.from <= 0 || g.to >= n {
+			continue
+		}
+		xa, xb := strain(g.from-1), strain(g.to)
+		var xs []float64
+		for j := g.from; j < g.to; j++ {
+			xs = append(xs, xa+(xb-xa)*float64(j-g.from+1)/float64(g.to-g.from+1))
+		}
+		if sd := res.modInfo.shift(xs, w); 3*sd > glitchShiftLimit {
+			res.Modulus = math.NaN()
+			res.warn("modulus not reported: the %s %s at %s, left out, lay among the points that carry the modulus; fitted, they could have moved it by %.2g %% (three standard deviations of the change, from the fit's covariance), more than %.1f %%; the slope %.4g GPa is used only for the offset line",
+				g.Series, g.Kind, glitchWhere(g), 300*sd, 100*glitchShiftLimit, res.Fit.Slope/1000)
+			return
+		}
 	}
 }
 

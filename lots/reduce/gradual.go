@@ -11,9 +11,10 @@ import (
 // strain = e0 + stress/E + c stress^m, over working points lo..hi-1.
 type roCurve struct {
 	E, e0, c, m float64
-	relSE       float64 // relative standard error of E (all four parameters free)
-	resid       float64 // residual SD of the stress [MPa]
-	r2          float64 // coefficient of determination of the stress
+	relSE       float64     // relative standard error of E (all four parameters free)
+	info        modulusInfo // the fit's information, for the weight of points left out (refineRO only)
+	resid       float64     // residual SD of the stress [MPa]
+	r2          float64     // coefficient of determination of the stress
 	lo, hi      int
 }
 
@@ -352,6 +353,7 @@ func (res *Result) gradualFit(x, s []float64, lnFirst, lnLast []int, lin window,
 	for i := lo; i < hi; i++ {
 		from, to = math.Min(from, s[i]), math.Max(to, s[i])
 	}
+	res.modInfo = rc.info
 	res.Fit = Fit{Slope: rc.E, Intercept: -rc.E * rc.e0, R2: rc.r2, ResidualSD: rc.resid, SlopeRelSE: rc.relSE, N: n, From: from, To: to,
 		FirstLine: lnFirst[lo], LastLine: lnLast[hi-1]}
 	res.fitSpan = hi - lo
@@ -614,5 +616,25 @@ func refineRO(x, s []float64, idx []int, noise float64, rc roCurve) (roCurve, bo
 	out := roCurve{E: sRef / p[1], e0: p[0], c: p[2] / math.Pow(sRef, p[3]), m: p[3],
 		relSE: math.Sqrt(v*math.Max(0, cov.At(1, 1))) / p[1], resid: math.Sqrt(ssr / float64(n-4)), lo: idx[0], hi: idx[n-1] + 1}
 	out.r2 = 1 - ssr/sst
+	out.info = modulusInfo{dim: 4, k: 1, v: v, scale: p[1], xlo: x[idx[0]], xhi: x[idx[n-1]]}
+	for i := 0; i < 4; i++ {
+		for c := i; c < 4; c++ {
+			out.info.a[i][c], out.info.a[c][i] = a[i][c], a[i][c]
+		}
+	}
+	b, m := [3]float64{p[0], p[1], p[2]}, p[3]
+	out.info.row = func(xs float64) (r [4]float64, ok bool) {
+		u, d := roInverse(b, m, xs, math.Max(0, (xs-b[0])/b[1]))
+		if !(d > 0) || math.IsNaN(u) {
+			return r, false
+		}
+		um, lu := 0.0, 0.0
+		if u > 0 {
+			lu = math.Log(u)
+			um = math.Exp(m * lu)
+		}
+		f := -sRef / d
+		return [4]float64{f, f * u, f * um, f * b[2] * um * lu}, true
+	}
 	return out, out.E > 0 && !math.IsNaN(out.relSE)
 }

@@ -91,6 +91,10 @@ type Result struct {
 	fitSpan  int     // working points from the first to the last of the elastic fit
 	noLinear string  // the warning when none is straight
 
+	modInfo        modulusInfo // the information of the modulus fit taken
+	fractureGlitch *Glitch     // a glitch left out where it decides the fracture point
+	fractureLines  [2]int      // the last file line before the fracture's fall, the first after it
+
 	left, steps                                                   []Glitch // raw point ranges left out; lone extension steps
 	tooMany                                                       bool     // more than maxGlitches glitches
 	Points, Duplicates, Backward, LoopPoints, PointsAfterFracture int
@@ -113,7 +117,11 @@ func (r *Result) note(format string, a ...any) { r.Notes = append(r.Notes, fmt.S
 //     back, repeated data blocks) found on the raw points against the
 //     record's own noise and left out, each named by its line in a
 //     warning; a lone extension step (the extensometer slipped) leaves
-//     the properties measured beyond it empty (see findGlitches);
+//     the properties measured beyond it empty (see findGlitches); a
+//     glitch at the fracture leaves the elongation from the record empty
+//     (glitchAtFracture), and one among the points that carry the modulus
+//     leaves the modulus empty when, fitted, they could have moved it by
+//     more than 0.5 % (glitchInModulus);
 //   - a record of more than binTarget points is averaged in bins of
 //     consecutive points, so that the noise of the working curve falls
 //     with the sampling rate (see workingPoints);
@@ -254,6 +262,7 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 		}
 		res.Fractured = true
 		res.PointsAfterFracture = len(s) - 1 - f
+		res.fractureGlitch = res.glitchAtFracture(rec, lnLast[f], ln[f+1], tailFrac*sm*rec.Area)
 	} else {
 		res.warn("no fracture in the record (the force at the end is %.0f %% of the maximum): elongation from the record and toughness are not reported", 100*s[f]/sm)
 	}
@@ -316,6 +325,7 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 			res.warn("modulus not reported: crosshead travel includes the machine's compliance (ASTM E111 needs an extensometer); the fitted slope %.4g GPa is used only for the offset line", E/1000)
 		} else {
 			res.Modulus = E
+			res.glitchInModulus(rec)
 		}
 		// Toe compensation: the strain origin moves to the intercept of the
 		// elastic line; the curve before the fit range is replaced by that
@@ -362,7 +372,11 @@ func Reduce(rec *Record, opt Options) (*Result, error) {
 	// 10. Elongation after fracture.
 	if res.Fractured {
 		res.FractureStrain = cx[last]
-		if ok {
+		switch g := res.fractureGlitch; {
+		case g != nil:
+			res.warn("%s %s at %s sits at the fracture, between the last point before the fall (line %d) and the first after it: the fracture may lie before or after it, a strain step or more apart; elongation from the record not reported",
+				g.Series, g.Kind, glitchWhere(*g), res.fractureLines[0])
+		case ok:
 			res.ExtensometerElongation = math.Max(0, cx[last]-cs[last]/E)
 		}
 	}
@@ -716,6 +730,16 @@ func (res *Result) fitLine(x, s []float64) {
 	}
 	res.Fit = Fit{Slope: beta, Intercept: alpha, R2: r2, ResidualSD: math.Sqrt(sse / float64(len(x)-2)), N: len(x), From: lo, To: hi,
 		SlopeRelSE: math.NaN()}
+	mi := modulusInfo{dim: 2, k: 1, v: sse / float64(len(x)-2), scale: beta, xlo: math.Inf(1), xhi: math.Inf(-1),
+		row: func(xs float64) ([4]float64, bool) { return [4]float64{1, xs}, true }}
+	for _, xi := range x {
+		mi.a[0][0]++
+		mi.a[0][1] += xi
+		mi.a[1][1] += xi * xi
+		mi.xlo, mi.xhi = math.Min(mi.xlo, xi), math.Max(mi.xhi, xi)
+	}
+	mi.a[1][0] = mi.a[0][1]
+	res.modInfo = mi
 	if len(x) > 2 && r2 > 0 {
 		res.Fit.SlopeRelSE = math.Sqrt(math.Max(0, 1/r2-1) / float64(len(x)-2))
 	}
