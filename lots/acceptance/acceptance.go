@@ -507,21 +507,27 @@ func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(in
 	L := sign * limit
 	sum := 0.0
 	ext := math.Inf(1)
-	var fails []string
+	// The values beyond the limit, listed as "id value unit, ...".
+	var fails []byte
+	nfail := 0
 	for i, v := range x {
 		sum += v
 		ext = math.Min(ext, v)
 		if v < L {
-			fails = append(fails, ids(i)+" "+show(sign*v))
+			if nfail > 0 {
+				fails = append(fails, ", "...)
+			}
+			fails = appendVal(append(append(fails, ids(i)...), ' '), l.Unit, sign*v)
+			nfail++
 		}
 	}
 	pr.Extreme = lots.Float(sign * ext)
-	pr.Beyond = len(fails)
+	pr.Beyond = nfail
 	mean := sum / float64(n)
 	pr.Mean = lots.Float(sign * mean)
 	decided := ""
-	if len(fails) > 0 {
-		msg := strconv.Itoa(len(fails)) + " value(s) " + beyond + " the " + word + " " + limitText + ": " + strings.Join(fails, ", ")
+	if nfail > 0 {
+		msg := strconv.Itoa(nfail) + " value(s) " + beyond + " the " + word + " " + limitText + ": " + string(fails)
 		if r.IndividualReject {
 			decided = Nonconforming
 			pr.Reasons = append(pr.Reasons, msg+" (an individual value beyond a limit rejects the lot)")
@@ -539,7 +545,7 @@ func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(in
 		return pr, fmt.Errorf("describe %s: %w", l.Property, err)
 	}
 	pr.Mean, pr.SD = lots.Float(sign*mean), lots.Float(sd)
-	if sd == 0 && len(fails) == n {
+	if sd == 0 && nfail == n {
 		// Every value is beyond the limit: the estimated fraction beyond
 		// it is 1, and the lower confidence bound on that fraction tends
 		// to 1 as the spread tends to 0 (it falls as the margin grows,
@@ -594,15 +600,21 @@ func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(in
 		pr.Reasons = append(pr.Reasons, "with confidence "+gfmt(r.Confidence)+" more than "+strconv.FormatFloat(allowed, 'g', 3, 64)+" of the lot is "+beyond+" the "+word+" "+limitText+" (lower confidence bound on that fraction "+strconv.FormatFloat(lo, 'g', 3, 64)+")")
 	case tb >= L && n >= r.MinSpecimens:
 		pr.Verdict = Conforming
-		// (Joined rather than formatted: most limits of most lots end here.)
-		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is not "+beyond+" the "+word+" "+limitText+": at least "+gfmt(r.Content)+" of the lot meets it with confidence "+gfmt(r.Confidence))
+		// (Appended rather than formatted: most limits of most lots end here.)
+		b := appendBound(make([]byte, 0, 160), boundWord, l.Unit, sign*tb, k, n)
+		b = append(append(append(append(b, ") is not "...), beyond...), " the "...), word...)
+		b = append(append(append(append(b, ' '), limitText...), ": at least "...), gfmt(r.Content)...)
+		pr.Reasons = append(pr.Reasons, string(append(append(b, " of the lot meets it with confidence "...), gfmt(r.Confidence)...)))
 	case tb >= L:
 		pr.Verdict = Undecided
 		pr.Reasons = append(pr.Reasons, fmt.Sprintf("the tolerance bound meets the limit but the lot has %d specimens, fewer than the %d required", n, r.MinSpecimens))
 		pr.NeededN = r.MinSpecimens
 	default:
 		pr.Verdict = Undecided
-		pr.Reasons = append(pr.Reasons, boundWord+" tolerance bound "+show(sign*tb)+" (k = "+strconv.FormatFloat(k, 'f', 4, 64)+", n = "+strconv.Itoa(n)+") is "+beyond+" the "+word+" "+limitText+": confidence "+gfmt(r.Confidence)+" for content "+gfmt(r.Content)+" not reached")
+		b := appendBound(make([]byte, 0, 160), boundWord, l.Unit, sign*tb, k, n)
+		b = append(append(append(append(append(append(b, ") is "...), beyond...), " the "...), word...), ' '), limitText...)
+		b = append(append(append(append(b, ": confidence "...), gfmt(r.Confidence)...), " for content "...), gfmt(r.Content)...)
+		pr.Reasons = append(pr.Reasons, string(append(b, " not reached"...)))
 		// The factors of the search from the interpolant over each decade
 		// of sizes above 100 (agreeing with the exact factor to about
 		// 1e-14 relative, TestNeededSpecimensMatchesBisection).
@@ -664,9 +676,21 @@ func (t limitTexts) of(s *spec.Spec, i int, side string) string {
 func gfmt(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // fmtVal shows an internal value in the limit's own unit.
-func fmtVal(u units.Unit, v float64) string {
+func fmtVal(u units.Unit, v float64) string { return string(appendVal(nil, u, v)) }
+
+// appendVal appends fmtVal(u, v) to b.
+func appendVal(b []byte, u units.Unit, v float64) []byte {
 	// strconv's 'g' with 4 digits is fmt's %.4g, without its cost.
-	return strconv.FormatFloat(u.FromInternal(v), 'g', 4, 64) + " " + u.Symbol
+	b = strconv.AppendFloat(b, u.FromInternal(v), 'g', 4, 64)
+	return append(append(b, ' '), u.Symbol...)
+}
+
+// appendBound appends "lower tolerance bound 512.3 MPa (k = 2.1234, n = 10"
+// (the word given, the bound in the limit's unit).
+func appendBound(b []byte, word string, u units.Unit, tb, k float64, n int) []byte {
+	b = appendVal(append(append(b, word...), " tolerance bound "...), u, tb)
+	b = strconv.AppendFloat(append(b, " (k = "...), k, 'f', 4, 64)
+	return strconv.AppendInt(append(b, ", n = "...), int64(n), 10)
 }
 
 // NeededSpecimens returns the smallest total number of specimens m >= n0
