@@ -1,11 +1,17 @@
 package lots
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"reflect"
+	"runtime"
+	"strconv"
 	"testing"
+
+	"lotproof/lots/scale"
 )
 
 // plainSpecimens are specimens with repeating identities, missing values
@@ -138,4 +144,39 @@ func TestDatasetColumns(t *testing.T) {
 	}
 	d.Add(want[7]) // grows again after truncating to nothing
 	sameSpecimen(t, "added after Truncate(0)", d.Specimen(0), want[7])
+}
+
+// BenchmarkDatasetBytes reads a generated, invented year of receipts
+// (1,000,000 specimens in 20,000 lots, three properties; set
+// LOTPROOF_SCALE_SPECIMENS for another size) into a Dataset and reports
+// the heap it keeps per specimen: what allowables holds (issue 12 asks
+// for the bytes per specimen to be stated).
+//
+//	go test ./lots -run XXX -bench DatasetBytes -benchtime 1x
+func BenchmarkDatasetBytes(b *testing.B) {
+	n := 1_000_000
+	if v, err := strconv.Atoi(os.Getenv("LOTPROOF_SCALE_SPECIMENS")); err == nil && v > 0 {
+		n = v
+	}
+	var buf bytes.Buffer
+	if _, err := scale.Write(&buf, scale.Options{Specimens: n, Lots: max(1, n/50)}); err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(int64(buf.Len()))
+	var kept uint64
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		var before, after runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&before)
+		d, err := ReadCSV(bytes.NewReader(buf.Bytes()), "receipts.csv")
+		if err != nil {
+			b.Fatal(err)
+		}
+		runtime.GC()
+		runtime.ReadMemStats(&after)
+		kept = after.HeapAlloc - before.HeapAlloc
+		runtime.KeepAlive(d)
+	}
+	b.ReportMetric(float64(kept)/float64(n), "bytes/specimen")
 }

@@ -12,6 +12,8 @@ import (
 	"testing"
 	"time"
 
+	"lotproof/lots/allowables"
+	"lotproof/lots/equivalence"
 	"lotproof/lots/render"
 	"lotproof/lots/scale"
 	"lotproof/lots/units"
@@ -26,7 +28,9 @@ import (
 // 12): accept with three minimums at least 5x faster than the pandas +
 // scipy script (testdata/bench/compare.sh) and peak RSS at most 250 MiB at
 // 1M and 5M specimens; summary at least 100 MB/s with RSS independent of
-// the file size.
+// the file size; equivalence, like accept, flat in the number of lots
+// beyond its results; allowables holds the whole file compactly (see
+// lots.BenchmarkDatasetBytes).
 //
 //	go test ./cmd/lotproof -run XXX -bench Scale -benchtime 1x
 
@@ -126,4 +130,23 @@ func BenchmarkScaleRecord(b *testing.B) {
 			DB: filepath.Join(dir, "h"+strconv.Itoa(i)+".db"), Out: output{Format: render.CSV, System: units.SI}, User: "bench"}
 		return runRecord(o, discard)
 	})
+}
+
+// BenchmarkScaleEquivalence: equivalence of every lot's tensile strength
+// to a baseline, JSON output (one lot at a time; the results are kept).
+func BenchmarkScaleEquivalence(b *testing.B) {
+	name, n := scaleFile(b)
+	o := equivalenceOptions{Data: name, Test: equivalence.Options{Mean: 1000, SD: 20, Alpha: 0.05, Property: "tensile"},
+		Input: inputOptions{GroupBy: "lot"}, Out: output{Format: render.JSON, System: units.SI}}
+	measure(b, n, func() error { return runEquivalence(o, discard) })
+}
+
+// BenchmarkScaleAllowables: design values of the three properties over
+// every lot, JSON output (the whole file held in the dataset's columns).
+func BenchmarkScaleAllowables(b *testing.B) {
+	name, n := scaleFile(b)
+	def := allowables.DefaultOptions()
+	o := allowablesOptions{Data: name, AContent: def.A.Content, BContent: def.B.Content, Confidence: def.A.Confidence, Seed: def.Seed, Sims: def.Sims,
+		Method: "auto", Date: "2026-01-01", Input: inputOptions{GroupBy: "lot"}, Out: output{Format: render.JSON, System: units.SI}}
+	measure(b, n, func() error { return runAllowables(o, discard) })
 }
