@@ -50,7 +50,12 @@ func (d *Dataset) Group(by GroupBy, keep func(*Specimen) bool) ([]Group, error) 
 		groupOf[k] = -1
 	}
 	var s Specimen
+	// First each kept specimen's group and the group sizes, then the
+	// indexes into one array cut to size (no slice grows).
+	of := make([]int32, d.n)
+	var size []int
 	for i := range d.n {
+		of[i] = -1
 		if keep != nil {
 			s = d.Specimen(i)
 			if !keep(&s) {
@@ -78,7 +83,24 @@ func (d *Dataset) Group(by GroupBy, keep func(*Specimen) bool) ([]Group, error) 
 			}
 			groupOf[d.kind(i)] = g
 		}
-		out[g].Specimens = append(out[g].Specimens, i)
+		if g == len(size) {
+			size = append(size, 0)
+		}
+		of[i] = int32(g)
+		size[g]++
+	}
+	total := 0
+	for _, k := range size {
+		total += k
+	}
+	all := make([]int, 0, total)
+	for g := range out {
+		out[g].Specimens, all = all[:0:size[g]], all[size[g]:size[g]]
+	}
+	for i, g := range of {
+		if g >= 0 {
+			out[g].Specimens = append(out[g].Specimens, i)
+		}
 	}
 	return out, nil
 }

@@ -399,26 +399,26 @@ func analyzeOne(d *lots.Dataset, p int, cond string, groups []lots.Group, opt Op
 	r := &Result{Property: prop.Name, Condition: cond, Unit: u.Symbol, LotSizes: map[string]int{},
 		Parameters: map[string]lots.Float{}, Outliers: []Outlier{}, Excluded: []Exclusion{}, Warnings: []string{}}
 	var lotKeys []string
-	var ids [][]string
+	var at [][]int // per lot: the dataset index of each value kept
 	for _, g := range groups {
 		vals, idx := d.Values(p, g.Specimens)
-		keep := make([]float64, 0, len(vals))
-		keepIDs := make([]string, 0, len(vals))
+		// Kept values and indexes overwrite the slices as they are read.
+		keep, keepAt := vals[:0], idx[:0]
 		for j, v := range vals {
-			id := d.ID(idx[j])
+			i := idx[j]
 			v = u.FromInternal(v)
-			if reason, ok := opt.Exclude[id]; ok {
-				r.Excluded = append(r.Excluded, Exclusion{Specimen: id, Lot: g.Key, Value: lots.Float(v), Reason: reason})
+			if reason, ok := opt.Exclude[d.ID(i)]; ok {
+				r.Excluded = append(r.Excluded, Exclusion{Specimen: d.ID(i), Lot: g.Key, Value: lots.Float(v), Reason: reason})
 				continue
 			}
 			keep = append(keep, v)
-			keepIDs = append(keepIDs, id)
+			keepAt = append(keepAt, i)
 		}
 		if len(keep) == 0 {
 			continue
 		}
 		lotKeys = append(lotKeys, g.Key)
-		ids = append(ids, keepIDs)
+		at = append(at, keepAt)
 		r.values = append(r.values, keep)
 		r.LotSizes[g.Key] = len(keep)
 	}
@@ -447,7 +447,7 @@ func analyzeOne(d *lots.Dataset, p int, cond string, groups []lots.Group, opt Op
 	if sum.SD == 0 {
 		return nil, lots.Inputf(d.Source, "check the data: identical values usually mean a copied column or a rounding problem", "%s: all %d values are equal (%g); no distribution can be fitted", where, r.N, sum.Mean)
 	}
-	screenOutliers(r, lotKeys, ids, opt)
+	screenOutliers(r, lotKeys, func(i, j int) string { return d.ID(at[i][j]) }, opt)
 	auto, err := chooseMethod(r, opt)
 	if err != nil {
 		return nil, lots.Inputf(d.Source, "check the values", "%s: %v", where, err)
@@ -501,8 +501,9 @@ const minScreen = 4
 
 // screenOutliers runs the maximum normed residual test (iteratively, as in
 // CMH-17-1G 8.3.3) within each lot of at least 4 values and over all data.
-// Flagged values are reported and kept.
-func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
+// Flagged values are reported and kept; id(i, j) is the specimen id of
+// the j-th value of lot i.
+func screenOutliers(r *Result, lotKeys []string, id func(lot, j int) string, opt Options) {
 	flag := func(vals []float64, lotOf func(int) (string, string), within string) {
 		if len(vals) < minScreen {
 			return
@@ -529,7 +530,7 @@ func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 	}
 	for i, vals := range r.values {
 		i := i
-		flag(vals, func(j int) (string, string) { return lotKeys[i], ids[i][j] }, "lot "+lotKeys[i])
+		flag(vals, func(j int) (string, string) { return lotKeys[i], id(i, j) }, "lot "+lotKeys[i])
 	}
 	// The lot of the j-th of all values: the last lot starting at or before j.
 	start := make([]int, len(r.values))
@@ -538,7 +539,7 @@ func screenOutliers(r *Result, lotKeys []string, ids [][]string, opt Options) {
 	}
 	flag(flatten(r.values), func(j int) (string, string) {
 		i := sort.Search(len(start), func(i int) bool { return start[i] > j }) - 1
-		return lotKeys[i], ids[i][j-start[i]]
+		return lotKeys[i], id(i, j-start[i])
 	}, "all data")
 	if len(r.Outliers) == 0 {
 		r.step("outlier screen", math.NaN(), math.NaN(), "no outliers",
