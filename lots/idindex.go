@@ -322,60 +322,66 @@ func (h *runHeap) Pop() any {
 	return v
 }
 
-// idQueue fills an idIndex on its own goroutine, so that a large input's
-// duplicate-id check (a random access into a table of tens of megabytes
-// per specimen) runs on a second core while the first parses. It only
-// says whether some id was repeated: the caller then reads the input again
-// with the check in line, for the messages.
+// idQueue checks ids for repeats on its own goroutine (idRuns: sorted
+// runs of their hashes), so that a large input's duplicate-id check runs
+// on a second core while the first parses. It only says whether some id
+// was repeated: the caller then reads the input again with the check in
+// line (idIndex), for the messages.
 type idQueue struct {
-	x    *idIndex
-	cur  []idSlot
-	in   chan []idSlot
-	free chan []idSlot
+	r    idRuns
+	cur  []uint64
+	in   chan []uint64
+	free chan []uint64
 	done chan struct{}
-	dup  atomic.Bool
+	dup  atomic.Bool // a repeat (or a failed check) was found
 	busy bool
 }
 
 const idBatch = 4096
 
-func newIDQueue(x *idIndex) *idQueue {
-	q := &idQueue{x: x, in: make(chan []idSlot, 4), free: make(chan []idSlot, 6), done: make(chan struct{}), busy: true}
+func newIDQueue() *idQueue {
+	q := &idQueue{in: make(chan []uint64, 4), free: make(chan []uint64, 6), done: make(chan struct{}), busy: true}
 	go func() {
 		defer close(q.done)
 		for b := range q.in {
-			for _, e := range b {
-				if q.x.seen(e.hash, int(e.line), int(e.col)) > 0 {
-					q.dup.Store(true)
-				}
+			for _, h := range b {
+				q.r.add(h)
+			}
+			if q.r.dup || q.r.err != nil {
+				q.dup.Store(true)
 			}
 			select {
 			case q.free <- b[:0]:
 			default:
 			}
 		}
+		if dup, err := q.r.finish(); dup || err != nil {
+			q.dup.Store(true)
+		}
 	}()
 	return q
 }
 
-// add queues an id's hash and place.
-func (q *idQueue) add(h uint64, line, col int) {
+// add queues an id's hash.
+func (q *idQueue) add(h uint64) {
 	if q.cur == nil {
 		select {
 		case q.cur = <-q.free:
 		default:
-			q.cur = make([]idSlot, 0, idBatch)
+			q.cur = make([]uint64, 0, idBatch)
 		}
 	}
-	q.cur = append(q.cur, idSlot{h, uint32(line), uint32(col)})
+	q.cur = append(q.cur, h)
 	if len(q.cur) == idBatch {
 		q.in <- q.cur
 		q.cur = nil
 	}
 }
 
-// stop waits until every queued id is in the index and reports whether
-// one was repeated. Calling it again does nothing.
+// stop waits until every queued id has been checked and reports whether
+// one was repeated, or the check could not be completed (the caller then
+// reads the input again with idIndex, which says where). Calling it again
+// does nothing.
 func (q *idQueue) stop() bool {
 	if q.busy {
 		q.busy = false

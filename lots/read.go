@@ -51,7 +51,7 @@ type table struct {
 	header   *Header
 	problems problems
 	seen     idIndex  // hashes of the specimen ids seen, with their lines
-	ids      *idQueue // when set, seen is filled on another goroutine
+	ids      *idQueue // when set, ids are checked on another goroutine instead of in seen
 	rows     int
 	// The row being parsed is printable ASCII; it holds no space
 	// (recordReader.split). False for a row from elsewhere (checked and
@@ -192,9 +192,10 @@ func (t *table) parseRow(fields []string, line int, loc locator, s *Specimen) bo
 	if s.ID == "" {
 		t.problems.add(loc.at(h.idCol), "specimen id is empty", "give every specimen a unique id")
 		ok = false
-	} else if l, c := loc.pos(h.idCol); t.ids != nil {
-		t.ids.add(fnv64(s.ID), l, c) // checked on another core (see idQueue)
+	} else if t.ids != nil {
+		t.ids.add(fnv64(s.ID)) // checked on another core (see idQueue)
 	} else {
+		l, c := loc.pos(h.idCol)
 		if first := t.seen.seen(fnv64(s.ID), l, c); first > 0 {
 			t.problems.add(loc.at(h.idCol), fmt.Sprintf("duplicate specimen id %s (first on line %d)", short(s.ID), first),
 				"specimen ids must be unique; rename or remove one of them")
@@ -304,7 +305,7 @@ func scanCSV(r io.Reader, name string, fn func(*Header, *Specimen) error, asyncI
 	t := newTable(name)
 	defer t.seen.close()
 	if asyncIDs {
-		t.ids = newIDQueue(&t.seen)
+		t.ids = newIDQueue()
 		defer t.ids.stop()
 	}
 	rr := newRecordReader(r, name)
