@@ -36,12 +36,15 @@ type Lot struct {
 func (l *Lot) Len() int { return len(l.Lines) }
 
 // ID is the id of the lot's specimen i.
-func (l *Lot) ID(i int) string {
+func (l *Lot) ID(i int) string { return string(l.AppendID(nil, i)) }
+
+// AppendID appends the id of the lot's specimen i to b.
+func (l *Lot) AppendID(b []byte, i int) []byte {
 	from := 0
 	if i > 0 {
 		from = l.idEnd[i-1]
 	}
-	return string(l.ids[from:l.idEnd[i]])
+	return append(b, l.ids[from:l.idEnd[i]]...)
 }
 
 // Present returns the non-missing values of property p in file order,

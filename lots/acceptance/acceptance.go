@@ -395,11 +395,11 @@ func judgeLot(d *lots.Dataset, g *lots.Lot, specs []*spec.Spec, f *stats.Factors
 		if slices.ContainsFunc(vals, math.IsNaN) {
 			vals, idx = g.Present(pi)
 		}
-		ids := func(j int) string {
+		ids := func(b []byte, j int) []byte {
 			if idx == nil {
-				return g.ID(j)
+				return g.AppendID(b, j)
 			}
-			return g.ID(idx[j])
+			return g.AppendID(b, idx[j])
 		}
 		for _, side := range []string{"min", "max"} {
 			if (side == "min" && !l.HasMin()) || (side == "max" && !l.HasMax()) {
@@ -474,8 +474,9 @@ func unitLabel(u units.Unit) string {
 
 // judgeSide judges the values of one property against one limit. A maximum
 // is judged as the minimum of the negated values (the methods are
-// symmetric), and the figures are mirrored back.
-func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(int) string, r spec.Rule, f *stats.Factors) (PropertyResult, error) {
+// symmetric), and the figures are mirrored back. ids appends the id of
+// the specimen of value i to its first argument.
+func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(b []byte, i int) []byte, r spec.Rule, f *stats.Factors) (PropertyResult, error) {
 	sign, limit := 1.0, l.Min
 	word, beyond := "minimum", "below"
 	if side == "max" {
@@ -517,7 +518,7 @@ func judgeSide(l spec.Limit, side, limitText string, vals []float64, ids func(in
 			if nfail > 0 {
 				fails = append(fails, ", "...)
 			}
-			fails = appendVal(append(append(fails, ids(i)...), ' '), l.Unit, sign*v)
+			fails = appendVal(append(ids(fails, i), ' '), l.Unit, sign*v)
 			nfail++
 		}
 	}
