@@ -275,67 +275,154 @@ func TestGradualOtherForm(t *testing.T) {
 	}
 }
 
+// twoStageStrain is the strain at stress sg of the two-stage curve of
+// stainless steel (Rasmussen, Journal of Constructional Steel Research
+// 59, 2003, from memory) with strain offset e0, modulus E, 0.2 % proof
+// strength rp, first power n, and second multiple k and power m: below
+// rp strain = e0 + sg/E + 0.002 (sg/rp)^n; above it strain = e0 + rp/E
+// + 0.002 + (sg - rp)/E2 + k (sg - rp)^m with E2 = E/(1 + 0.002 n E/rp),
+// the tangent at rp.
+func twoStageStrain(e0, E, rp, n, k, m, sg float64) float64 {
+	if sg <= rp {
+		return e0 + sg/E + 0.002*math.Pow(sg/rp, n)
+	}
+	e2 := E / (1 + 0.002*n*E/rp)
+	return e0 + rp/E + 0.002 + (sg-rp)/e2 + k*math.Pow(sg-rp, m)
+}
+
+// twoStageBound is the Cramér-Rao lower bound (Cramér 1946, section
+// 32.3; Rao 1945; see modulusBound) on the relative standard deviation of
+// any unbiased estimate of the modulus from points of stress s (made
+// without noise) on the two-stage curve of twoStageStrain, normal stress
+// noise of SD noise, with all six parameters free (e0, ln E, ln rp, n,
+// ln k, m): the (ln E, ln E) element of the inverse of the Fisher
+// information sum of g g' / noise^2, g the derivatives of the curve's
+// stress at each point's strain (implicit differentiation, the
+// derivatives of the strain by central differences; gonum mat).
+func twoStageBound(t *testing.T, s []float64, th [6]float64, noise float64) float64 {
+	t.Helper()
+	strain := func(th [6]float64, sg float64) float64 {
+		return twoStageStrain(th[0], math.Exp(th[1]), math.Exp(th[2]), th[3], math.Exp(th[4]), th[5], sg)
+	}
+	var rows []float64
+	for _, sg := range s {
+		if !(sg > 0) {
+			continue
+		}
+		h := 1e-6 * sg
+		ds := (strain(th, sg+h) - strain(th, sg-h)) / (2 * h)
+		for j := range th {
+			d := 1e-6 * math.Max(1e-3, math.Abs(th[j]))
+			if j == 0 {
+				d = 1e-9
+			}
+			t1, t2 := th, th
+			t1[j] += d
+			t2[j] -= d
+			rows = append(rows, -(strain(t1, sg)-strain(t2, sg))/(2*d)/ds/noise)
+		}
+	}
+	J := mat.NewDense(len(rows)/6, 6, rows)
+	var F mat.SymDense
+	F.SymOuterK(1, J.T())
+	var ch mat.Cholesky
+	if !ch.Factorize(&F) {
+		t.Fatal("singular information matrix")
+	}
+	var C mat.SymDense
+	if err := ch.InverseTo(&C); err != nil {
+		t.Fatal(err)
+	}
+	return math.Sqrt(C.At(1, 1))
+}
+
 // TestTwoStageCurve: a gradually yielding curve whose power changes at
 // the proof strength, as stainless steels do (the two-stage form of
-// Rasmussen, Journal of Constructional Steel Research 59, 2003, from
-// memory: below Rp0.2 strain = stress/E + 0.002 (stress/Rp0.2)^n; above
-// it strain = (stress - Rp0.2)/E2 + eu' ((stress - Rp0.2)/(Rm - Rp0.2))^m
-// + Rp0.2/E + 0.002, with E2 = E/(1 + 0.002 n E/Rp0.2) the tangent at
-// Rp0.2, m = 1 + 3.5 Rp0.2/Rm and eu' = eu - Rp0.2/E - 0.002 - (Rm -
-// Rp0.2)/E2), on 2,000 points (E 200 GPa, Rp0.2 280 MPa, Rm 640 MPa,
-// n 6, eu 0.5: values in the range of austenitic stainless steel, common
-// practice). One Ramberg-Osgood power does not hold beyond Rp0.2, so the
-// modulus fit must not run over the whole loading branch. Clean: E within
-// 0.5 % (ASTM E111) and Rp0.2 within 0.2 % (ISO 6892-1 clause 12, from
-// memory); with force noise of 0.2 % of Rm, Rp0.2 within 0.5 % and E
-// within 1.5 %, a miss of the 1 % target (see below).
+// Rasmussen 2003, twoStageStrain, with m = 1 + 3.5 Rp0.2/Rm and k =
+// eu'/(Rm - Rp0.2)^m, eu' = eu - Rp0.2/E - 0.002 - (Rm - Rp0.2)/E2), on
+// 2,000 points, a quarter up to 1 % strain (E 200 GPa, Rp0.2 280 MPa, Rm
+// 640 MPa, n 6, eu 0.5: values in the range of austenitic stainless
+// steel, common practice). One Ramberg-Osgood power does not hold beyond
+// Rp0.2, so the modulus fit must stop there. Clean: E within 0.5 % (ASTM
+// E111) and Rp0.2 within 0.2 % (ISO 6892-1 clause 12, from memory). With
+// force noise of 0.2 % of Rm, 40 seeds: Rp0.2 within 0.5 % and, for the
+// modulus, no bias (the mean error within three standard errors of the
+// mean, the RMS error over the square root of the number of seeds), an
+// RMS error no more than 1.1 times the Cramér-Rao bound of the two-stage
+// form with its six parameters free (twoStageBound, about 0.53 %), the
+// error within three times the standard error the fit states, and E
+// within 1.5 % on every seed. The 1 % on every seed is out of
+// reach on this record: with a bound of 0.53 % on the standard deviation
+// of any unbiased estimate, one seed in sixteen or so falls outside 1 %
+// whatever the method.
 func TestTwoStageCurve(t *testing.T) {
 	const E, rp, rm, n, eu = 200000.0, 280.0, 640.0, 6.0, 0.5
 	e2 := E / (1 + 0.002*n*E/rp)
 	m := 1 + 3.5*rp/rm
-	eu2 := eu - rp/E - 0.002 - (rm-rp)/e2
-	strainAt := func(sg float64) float64 {
-		if sg <= rp {
-			return sg/E + 0.002*math.Pow(sg/rp, n)
+	k := (eu - rp/E - 0.002 - (rm-rp)/e2) / math.Pow(rm-rp, m)
+	const pts, seeds = 2000, 40
+	// curve returns the strains (a quarter of the points up to 1 %, the
+	// rest beyond) and the stresses on the curve there (bisection).
+	curve := func() (x, s []float64) {
+		for i := 0; i < pts; i++ {
+			e := 0.01 * float64(i) / (pts / 4)
+			if i >= pts/4 {
+				e = 0.01 + (eu-0.01)*float64(i-pts/4)/(pts-pts/4)
+			}
+			lo, hi := 0.0, rm
+			for it := 0; it < 100; it++ {
+				if mid := (lo + hi) / 2; twoStageStrain(0, E, rp, n, k, m, mid) < e {
+					lo = mid
+				} else {
+					hi = mid
+				}
+			}
+			x, s = append(x, e), append(s, (lo+hi)/2)
 		}
-		return (sg-rp)/e2 + eu2*math.Pow((sg-rp)/(rm-rp), m) + rp/E + 0.002
+		return x, s
 	}
+	x0, s0 := curve()
+	bound := twoStageBound(t, s0, [6]float64{0, math.Log(E), math.Log(rp), n, math.Log(k), m}, 0.002*rm)
 	for _, nz := range []float64{0, 0.002} {
-		for seed := uint64(1); seed <= 5; seed++ {
+		var sum, sq, worst float64
+		for seed := uint64(1); seed <= seeds; seed++ {
 			rng := rand.New(rand.NewPCG(seed, 3))
-			var x, s []float64
-			const pts = 2000
-			for i := 0; i < pts; i++ {
-				// A quarter of the points up to 1 % strain, the rest beyond.
-				e := 0.01 * float64(i) / (pts / 4)
-				if i >= pts/4 {
-					e = 0.01 + (eu-0.01)*float64(i-pts/4)/(pts-pts/4)
-				}
-				lo, hi := 0.0, rm
-				for it := 0; it < 100; it++ {
-					if mid := (lo + hi) / 2; strainAt(mid) < e {
-						lo = mid
-					} else {
-						hi = mid
-					}
-				}
-				x, s = append(x, e), append(s, (lo+hi)/2+nz*rm*rng.NormFloat64())
+			s := make([]float64, len(s0))
+			for i := range s0 {
+				s[i] = s0[i] + nz*rm*rng.NormFloat64()
 			}
-			x, s = append(x, eu+0.01), append(s, 1)
+			x := append(append([]float64(nil), x0...), eu+0.01)
+			s = append(s, 1)
 			r := reduceBytes(t, record("TS", x, s))
-			tolE, tolR := 0.005, 0.002
-			if nz > 0 {
-				// A miss: the fit up to 0.3 % plastic strain leaves the
-				// modulus about 0.5 % low on average here, up to 1.27 %
-				// over 20 seeds (1.42 % before the fit in stress).
-				tolE, tolR = 0.015, 0.005
-			}
 			name := fmt.Sprintf("noise %.1f %% seed %d", 100*nz, seed)
-			relNear(t, name+": modulus", r.Modulus, E, tolE)
-			relNear(t, name+": proof", r.Proof, rp, tolR)
-			if nz == 0 && seed > 1 {
-				break
+			if nz == 0 {
+				relNear(t, name+": modulus (ASTM E111)", r.Modulus, E, 0.005)
+				relNear(t, name+": proof (ISO 6892-1 clause 12)", r.Proof, rp, 0.002)
+				if seed > 1 {
+					break
+				}
+				continue
 			}
+			relNear(t, name+": modulus (ASTM E111)", r.Modulus, E, 0.015)
+			relNear(t, name+": proof (ISO 6892-1 clause 12)", r.Proof, rp, 0.005)
+			e := r.Modulus/E - 1
+			if math.IsNaN(e) || math.Abs(e) > 3*r.Fit.SlopeRelSE {
+				t.Errorf("%s: modulus off by %.3f %%, beyond three times its stated standard error %.3f %%", name, 100*e, 100*r.Fit.SlopeRelSE)
+			}
+			sum += e
+			sq += e * e
+			worst = math.Max(worst, math.Abs(e))
+		}
+		if nz == 0 {
+			continue
+		}
+		mean, rms := sum/seeds, math.Sqrt(sq/seeds)
+		t.Logf("two-stage curve, noise %.1f %% of Rm, %d seeds: modulus mean error %.3f %%, RMS %.3f %%, worst %.3f %%, Cramér-Rao bound %.3f %%", 100*nz, seeds, 100*mean, 100*rms, 100*worst, 100*bound)
+		if math.Abs(mean) > 3*rms/math.Sqrt(seeds) {
+			t.Errorf("modulus biased: mean error %.3f %% beyond three standard errors of the mean %.3f %%", 100*mean, 100*rms/math.Sqrt(seeds))
+		}
+		if rms > 1.1*bound {
+			t.Errorf("modulus RMS error %.3f %% above 1.1 times the Cramér-Rao bound %.3f %%", 100*rms, 100*bound)
 		}
 	}
 }
