@@ -37,7 +37,7 @@ var idRunLen = 1 << 20
 // (Knuth, TAOCP vol. 3, 6.4, as in idIndex).
 func (r *idRuns) add(h uint64) {
 	if r.run == nil {
-		r.run = make([]uint64, 0, idRunLen)
+		r.run = newWords(idRunLen)[:0]
 	}
 	r.run = append(r.run, h*fibonacci)
 	if len(r.run) == cap(r.run) {
@@ -49,7 +49,7 @@ func (r *idRuns) add(h uint64) {
 // file and starts a new one.
 func (r *idRuns) flush(more bool) {
 	if len(r.scratch) < len(r.run) {
-		r.scratch = make([]uint64, cap(r.run))
+		r.scratch = newWords(cap(r.run))
 	}
 	radixSort(r.run, r.scratch[:len(r.run)])
 	for i := 1; i < len(r.run); i++ {
@@ -146,6 +146,14 @@ func (r *idRuns) close() {
 		f.Close()
 	}
 	r.files = nil
+	if r.run != nil {
+		releaseWords(r.run)
+		r.run = nil
+	}
+	if r.scratch != nil {
+		releaseWords(r.scratch)
+		r.scratch = nil
+	}
 }
 
 // radixSort sorts a in place, using tmp (as long as a) as the second
