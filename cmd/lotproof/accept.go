@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync/atomic"
 
 	"github.com/spf13/cobra"
 
@@ -141,9 +142,16 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 	if table == "" {
 		table = acceptTableNames[0]
 	}
+	var write func(*acceptance.LotResult) error // one lot's rows or item
+	// The rows or items are made on a goroutine of their own, in the
+	// order of the lots, so that encoding (JSON especially) does not hold
+	// up the reading.
+	var sink *orderedSink
 	// begin starts over (the input is read again when it turns out not
 	// to be grouped by lot).
 	begin := func() {
+		sink.stop()
+		sink = newOrderedSink(write)
 		buf.close()
 		buf = &spillBuffer{}
 		if o.Out.Format == render.JSON {
@@ -155,7 +163,8 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 		cw = csv.NewWriter(buf)
 		cw.Write(lay.table(table).Columns)
 	}
-	deliver := func(l *acceptance.LotResult) error {
+	deliver := func(l *acceptance.LotResult) error { return sink.put(l) }
+	write = func(l *acceptance.LotResult) error {
 		if items != nil {
 			dis.Lot(l)
 			return items.Add(l)
@@ -167,11 +176,15 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 		return lay.table(table).WriteCSVRows(cw)
 	}
 	res, err := judgeStream(o.Data, o.Input, st, specs, nil, o.Out.System, begin, deliver)
+	if e := sink.stop(); e != nil {
+		err = e // the writer's own error, rather than its echo
+	}
 	if err != nil {
 		return nil, err
 	}
 	if buf == nil { // no pass over the input began
 		begin()
+		sink.stop()
 	}
 	if items != nil && items.Len() == 0 {
 		return res, render.WriteJSON(st.Out, res)
@@ -374,4 +387,54 @@ func (a *acceptLayout) finish(r *acceptance.Result) []*render.Table {
 		last.Note("Caution: %s", c)
 	}
 	return []*render.Table{lt, pt, ot}
+}
+
+// orderedSink hands results to fn on a goroutine of its own, in the order
+// they are put.
+type orderedSink struct {
+	ch     chan acceptance.LotResult
+	done   chan struct{}
+	err    error // fn's first error; read after done
+	failed atomic.Bool
+}
+
+// errSinkFailed is what put returns once fn has failed; stop returns
+// fn's error itself.
+var errSinkFailed = errors.New("writing the output failed")
+
+func newOrderedSink(fn func(*acceptance.LotResult) error) *orderedSink {
+	s := &orderedSink{ch: make(chan acceptance.LotResult, 64), done: make(chan struct{})}
+	go func() {
+		defer close(s.done)
+		for r := range s.ch {
+			if s.err == nil {
+				if s.err = fn(&r); s.err != nil {
+					s.failed.Store(true)
+				}
+			}
+		}
+	}()
+	return s
+}
+
+// put queues a copy of r (the caller may reuse r; what it points to is
+// left alone from then on).
+func (s *orderedSink) put(r *acceptance.LotResult) error {
+	if s.failed.Load() {
+		return errSinkFailed
+	}
+	s.ch <- *r
+	return nil
+}
+
+// stop waits until every result is written and returns fn's error. It
+// does nothing on a nil or stopped sink.
+func (s *orderedSink) stop() error {
+	if s == nil || s.ch == nil {
+		return nil
+	}
+	close(s.ch)
+	<-s.done
+	s.ch = nil
+	return s.err
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -264,5 +265,39 @@ func TestEquivalenceStreamed(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// The ordered sink writes results in the order they are put, on its own
+// goroutine; after the writer fails, put refuses more and stop returns
+// the writer's own error.
+func TestOrderedSink(t *testing.T) {
+	var got []string
+	boom := errors.New("disk full")
+	s := newOrderedSink(func(r *acceptance.LotResult) error {
+		if r.Lot == "L3" {
+			return boom
+		}
+		got = append(got, r.Lot)
+		return nil
+	})
+	refused := false
+	for i := range 200 {
+		if err := s.put(&acceptance.LotResult{Lot: fmt.Sprint("L", i)}); err != nil {
+			refused = true
+			break
+		}
+	}
+	if err := s.stop(); err != boom {
+		t.Errorf("stop: %v, want the writer's error", err)
+	}
+	if strings.Join(got, " ") != "L0 L1 L2" {
+		t.Errorf("written %v, want L0 L1 L2", got)
+	}
+	if !refused {
+		t.Log("every put was taken before the failure was seen (the channel holds 64)")
+	}
+	if s.stop() != nil || (*orderedSink)(nil).stop() != nil {
+		t.Error("stop again, or on no sink: an error")
 	}
 }
