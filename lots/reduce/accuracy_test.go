@@ -322,18 +322,7 @@ func twoStageBound(t *testing.T, s []float64, th [6]float64, noise float64) floa
 			rows = append(rows, -(strain(t1, sg)-strain(t2, sg))/(2*d)/ds/noise)
 		}
 	}
-	J := mat.NewDense(len(rows)/6, 6, rows)
-	var F mat.SymDense
-	F.SymOuterK(1, J.T())
-	var ch mat.Cholesky
-	if !ch.Factorize(&F) {
-		t.Fatal("singular information matrix")
-	}
-	var C mat.SymDense
-	if err := ch.InverseTo(&C); err != nil {
-		t.Fatal(err)
-	}
-	return math.Sqrt(C.At(1, 1))
+	return boundOfSecond(t, rows, 6)
 }
 
 // TestTwoStageCurve: a gradually yielding curve whose power changes at
@@ -459,7 +448,17 @@ func modulusBound(t *testing.T, sp SynthSpec) float64 {
 			rows = append(rows, -d/ds/noise)
 		}
 	}
-	J := mat.NewDense(len(rows)/4, 4, rows)
+	return boundOfSecond(t, rows, 4)
+}
+
+// boundOfSecond is the Cramér-Rao bound on the standard deviation of the
+// second of k parameters (the modulus), from the rows of the Jacobian of
+// the noise-scaled residuals (k values a row): the square root of the
+// (1, 1) element of the inverse of the Fisher information J'J (Cramér
+// 1946; Rao 1945).
+func boundOfSecond(t *testing.T, rows []float64, k int) float64 {
+	t.Helper()
+	J := mat.NewDense(len(rows)/k, k, rows)
 	var F mat.SymDense
 	F.SymOuterK(1, J.T())
 	var ch mat.Cholesky
