@@ -18,31 +18,28 @@ func quickDecimal(s string) (v float64, ok bool) {
 		neg = s[i] == '-'
 		i++
 	}
+	// The digits before and after the point, in two tight loops (a byte
+	// below '0' wraps around above 9).
 	var m uint64
-	digits, frac, point := 0, 0, false
-	for ; i < len(s); i++ {
-		c := s[i]
-		switch {
-		case c >= '0' && c <= '9':
-			if m == 0 && c == '0' && !point {
-				digits++ // a leading zero adds nothing to m
-				continue
-			}
-			m = 10*m + uint64(c-'0')
-			digits++
-			if m >= 1e15 {
-				return 0, false
-			}
-			if point {
-				frac++
-			}
-		case c == '.' && !point:
-			point = true
-		default:
-			return 0, false
-		}
+	from := i
+	for i < len(s) && s[i]-'0' < 10 {
+		m = 10*m + uint64(s[i]-'0')
+		i++
 	}
-	if digits == 0 || frac > 22 {
+	digits, frac := i-from, 0
+	if i < len(s) && s[i] == '.' {
+		i++
+		from = i
+		for i < len(s) && s[i]-'0' < 10 {
+			m = 10*m + uint64(s[i]-'0')
+			i++
+		}
+		frac = i - from
+		digits += frac
+	}
+	// Up to 19 digits m is exact in a uint64; the fast path needs it
+	// below 10^15 (exact in a float64) and at most 22 decimals.
+	if i != len(s) || digits == 0 || digits > 19 || m >= 1e15 || frac > 22 {
 		return 0, false
 	}
 	v = float64(m) / pow10[frac]

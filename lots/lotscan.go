@@ -61,12 +61,13 @@ func (l *Lot) Present(p int) (vals []float64, at []int) {
 	return vals, at
 }
 
-func (l *Lot) add(id string, line int, vals func(p int) float64) {
+// add appends one specimen: its id, line and values (one per property).
+func (l *Lot) add(id string, line int, vals []float64) {
 	l.ids = append(l.ids, id...)
 	l.idEnd = append(l.idEnd, len(l.ids))
 	l.Lines = append(l.Lines, line)
-	for p := range l.Values {
-		l.Values[p] = append(l.Values[p], vals(p))
+	for p, v := range vals[:len(l.Values)] {
+		l.Values[p] = append(l.Values[p], v)
 	}
 }
 
@@ -93,7 +94,8 @@ func (d *Dataset) Lot(g Group, index int) *Lot {
 	l := &Lot{Key: g.Key, Supplier: g.Supplier, Material: g.Material, Mixed: g.Mixed, Index: index,
 		Values: make([][]float64, len(d.Properties))}
 	for _, i := range g.Specimens {
-		l.add(d.ID(i), d.Specimen(i).Line, func(p int) float64 { return d.Value(i, p) })
+		s := d.Specimen(i)
+		l.add(s.ID, s.Line, s.Values)
 	}
 	return l
 }
@@ -308,7 +310,7 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 			if cur.Supplier != s.Supplier || cur.Material != s.Material {
 				cur.Mixed = true
 			}
-			cur.add(s.ID, s.Line, func(p int) float64 { return s.Values[p] })
+			cur.add(s.ID, s.Line, s.Values)
 			return nil
 		}
 		i, seen := index[key]
@@ -409,6 +411,7 @@ func (c *colStore) lots(lotOf []*Lot, fn func(*Lot) error) error {
 		next[l]++
 	}
 	c.lot = nil
+	vals := make([]float64, len(c.vals))
 	for i, l := range lotOf {
 		for _, s := range order[first[i]:first[i+1]] {
 			from := uint32(0)
@@ -416,7 +419,10 @@ func (c *colStore) lots(lotOf []*Lot, fn func(*Lot) error) error {
 				from = c.idEnd[s-1]
 			}
 			id := c.ids[from:c.idEnd[s]]
-			l.add(unsafe.String(unsafe.SliceData(id), len(id)), int(c.line[s]), func(p int) float64 { return c.vals[p][s] })
+			for p := range vals {
+				vals[p] = c.vals[p][s]
+			}
+			l.add(unsafe.String(unsafe.SliceData(id), len(id)), int(c.line[s]), vals)
 		}
 		lotOf[i] = nil // handed over
 		if err := fn(l); err != nil {
