@@ -261,8 +261,13 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 			}
 		}
 	}
-	var noHeat error // the first specimen without a heat, when grouping by heat
-	index := map[string]int{}
+	var noHeat error          // the first specimen without a heat, when grouping by heat
+	index := map[string]int{} // not grouped: each lot's index
+	// Grouped: the lots met, by a 64-bit hash of the key (8 bytes a lot,
+	// where the keys would take tens). Two keys sharing a hash only make
+	// a grouped file look ungrouped: it is then read a second time, with
+	// the same result.
+	met := map[uint64]struct{}{}
 	var cur *Lot    // grouped: the lot being filled
 	var cs colStore // not grouped
 	var lotOf []*Lot
@@ -295,7 +300,8 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 				if cur != nil {
 					size = cur.Len()
 				}
-				if _, again := index[key]; again {
+				h := fnv64(key)
+				if _, again := met[h]; again {
 					return errRegroup
 				}
 				if cur != nil {
@@ -303,9 +309,9 @@ func scanPass(r io.Reader, name string, progress func(int64), scan LotScan, grou
 						return err
 					}
 				}
-				cur = newLot(key, s.Supplier, s.Material, len(index), len(s.Values))
+				cur = newLot(key, s.Supplier, s.Material, len(met), len(s.Values))
 				cur.reserve(size, len(s.ID))
-				index[cur.Key] = cur.Index // cur.Key: a copy (key lives in the reader's buffer)
+				met[h] = struct{}{}
 			}
 			if cur.Supplier != s.Supplier || cur.Material != s.Material {
 				cur.Mixed = true
