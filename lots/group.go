@@ -64,7 +64,9 @@ func (d *Dataset) Group(by GroupBy, keep func(*Specimen) bool) ([]Group, error) 
 		}
 		g := groupOf[d.kind(i)]
 		if g < 0 {
-			s = d.Specimen(i)
+			if keep == nil {
+				s = d.Specimen(i)
+			}
 			key := s.Lot
 			if by == ByHeat {
 				key = s.Heat

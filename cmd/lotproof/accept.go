@@ -142,7 +142,18 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 	if table == "" {
 		table = acceptTableNames[0]
 	}
-	var write func(*acceptance.LotResult) error // one lot's rows or item
+	// write makes one lot's rows or item.
+	write := func(l *acceptance.LotResult) error {
+		if items != nil {
+			dis.Lot(l)
+			return items.Add(l)
+		}
+		if table != "lots" { // the lots table shows no values in units
+			dis.Lot(l)
+		}
+		lay.add(l)
+		return lay.table(table).WriteCSVRows(cw)
+	}
 	// The rows or items are made on a goroutine of their own, in the
 	// order of the lots, so that encoding (JSON especially) does not hold
 	// up the reading.
@@ -151,7 +162,7 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 	// to be grouped by lot).
 	begin := func() {
 		sink.stop()
-		sink = newOrderedSink(write)
+		defer func() { sink = newOrderedSink(write) }() // once the writers are set up
 		buf.close()
 		buf = &spillBuffer{}
 		if o.Out.Format == render.JSON {
@@ -164,17 +175,6 @@ func acceptStreamed(o acceptOptions, st streams, specs []*spec.Spec) (*acceptanc
 		cw.Write(lay.table(table).Columns)
 	}
 	deliver := func(l *acceptance.LotResult) error { return sink.put(l) }
-	write = func(l *acceptance.LotResult) error {
-		if items != nil {
-			dis.Lot(l)
-			return items.Add(l)
-		}
-		if table != "lots" { // the lots table shows no values in units
-			dis.Lot(l)
-		}
-		lay.add(l)
-		return lay.table(table).WriteCSVRows(cw)
-	}
 	res, err := judgeStream(o.Data, o.Input, st, specs, nil, o.Out.System, begin, deliver)
 	if e := sink.stop(); e != nil {
 		err = e // the writer's own error, rather than its echo
